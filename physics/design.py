@@ -1,0 +1,273 @@
+"""The design record: one thin-body tunnel FET (or its MOSFET twin) and its bias ranges.
+
+A `Design` is frozen and validated on construction. Every field carries its unit in its
+name and has a documented allowed range (`FIELD_RANGES`); a value outside it, a wrong
+type, NaN/inf or an unknown field raises `ValueError` naming the field, the value and
+the range. `to_dict()` / `from_dict()` round-trip through JSON; that dictionary is the
+design file the command line reads and a snapshot stores.
+
+Geometry (x along transport, y across the body)::
+
+    x = 0 .. source_length_nm                 source (p+ for the tunnel FET, n+ for the twin)
+    .. + gate_length_nm                       channel (metallurgical length between junctions)
+    .. + drain_length_nm                      drain (n+)
+
+The gate spans from ``source_length_nm - gate_source_offset_nm`` to the drain junction:
+a positive offset overlaps the source, a negative one leaves an ungated gap (underlap).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import math
+from dataclasses import dataclass
+from typing import Any
+
+# Bias ranges accepted by the solvers [V]. Common practice for low-voltage logic, no source.
+VG_RANGE_V: tuple[float, float] = (-1.5, 2.0)
+VD_RANGE_V: tuple[float, float] = (-0.6, 1.0)
+
+
+@dataclass(frozen=True)
+class FieldSpec:
+    """Allowed values of one design field: a numeric range or a set of choices."""
+
+    kind: type
+    low: float | None = None
+    high: float | None = None
+    choices: tuple[str, ...] | None = None
+    help: str = ""
+
+    def describe(self) -> str:
+        if self.choices is not None:
+            return "one of " + ", ".join(repr(c) for c in self.choices)
+        return f"[{self.low:g}, {self.high:g}]"
+
+
+def _materials() -> tuple[str, ...]:
+    from physics.materials import SEMICONDUCTORS
+
+    return tuple(SEMICONDUCTORS)
+
+
+def _dielectrics() -> tuple[str, ...]:
+    from physics.materials import DIELECTRICS
+
+    return tuple(DIELECTRICS) + ("custom",)
+
+
+# Ranges: chosen to cover thin-body steep-slope designs while keeping the model inside
+# its assumptions (degenerate but non-metallic doping, bodies thick enough for a
+# continuum description). Engineering choice, no source.
+FIELD_RANGES: dict[str, FieldSpec] = {
+    "material": FieldSpec(str, help="semiconductor of the body"),
+    "source_type": FieldSpec(str, choices=("p", "n"),
+                             help="'p': p+ source, tunnel FET; 'n': n+ source, MOSFET twin"),
+    "source_doping_cm3": FieldSpec(float, 1e17, 1e21, help="source doping magnitude [cm^-3]"),
+    "channel_doping_cm3": FieldSpec(float, -1e19, 1e19,
+                                    help="channel doping, + donors, - acceptors [cm^-3]"),
+    "drain_doping_cm3": FieldSpec(float, 1e16, 1e21, help="drain donor doping [cm^-3]"),
+    "doping_gradient_nm_per_dec": FieldSpec(float, 0.0, 10.0,
+                                            help="junction abruptness, 0 = abrupt [nm/decade]"),
+    "body_thickness_nm": FieldSpec(float, 2.0, 30.0, help="semiconductor body thickness [nm]"),
+    "gate_length_nm": FieldSpec(float, 5.0, 200.0, help="channel length between junctions [nm]"),
+    "source_length_nm": FieldSpec(float, 5.0, 100.0, help="source region length [nm]"),
+    "drain_length_nm": FieldSpec(float, 5.0, 100.0, help="drain region length [nm]"),
+    "oxide_thickness_nm": FieldSpec(float, 0.5, 10.0, help="gate dielectric thickness [nm]"),
+    "oxide": FieldSpec(str, help="gate dielectric name, or 'custom'"),
+    "oxide_permittivity": FieldSpec(float, 1.0, 100.0,
+                                    help="relative permittivity when oxide='custom'"),
+    "gate_workfunction_eV": FieldSpec(float, 3.0, 6.0, help="gate metal work function [eV]"),
+    "gate_layout": FieldSpec(str, choices=("double", "single"),
+                             help="double gate, or single gate on a buried oxide"),
+    "buried_oxide_thickness_nm": FieldSpec(float, 1.0, 100.0,
+                                           help="buried oxide under a single-gate body [nm]"),
+    "gate_source_offset_nm": FieldSpec(float, -10.0, 10.0,
+                                       help="gate over the source (+) or underlap (-) [nm]"),
+    "temperature_K": FieldSpec(float, 150.0, 450.0, help="lattice temperature [K]"),
+}
+
+
+@dataclass(frozen=True)
+class Design:
+    """A thin-body tunnel FET or MOSFET twin. Units in the field names.
+
+    Parameters
+    ----------
+    material : str
+        body semiconductor, a name known to `physics.materials`.
+    source_type : str
+        "p" (p+ source: tunnel FET) or "n" (n+ source: the MOSFET twin).
+    source_doping_cm3 : float
+        source doping magnitude; acceptors for "p", donors for "n" [cm^-3].
+    channel_doping_cm3 : float
+        channel doping, signed: + donors, - acceptors [cm^-3].
+    drain_doping_cm3 : float
+        drain donor doping [cm^-3].
+    doping_gradient_nm_per_dec : float
+        decay of the source and drain dopants into the channel; 0 = abrupt [nm/decade].
+    body_thickness_nm, gate_length_nm, source_length_nm, drain_length_nm : float
+        geometry [nm] (see the module docstring).
+    oxide_thickness_nm : float
+        gate dielectric thickness [nm].
+    oxide : str
+        gate dielectric name, or "custom" with `oxide_permittivity`.
+    oxide_permittivity : float or None
+        relative permittivity of a custom dielectric [-]; ignored otherwise.
+    gate_workfunction_eV : float
+        gate metal work function [eV].
+    gate_layout : str
+        "double" (oxide/body/oxide, both gates tied) or "single" (oxide/body/buried oxide
+        over a grounded back plane of the gate metal).
+    buried_oxide_thickness_nm : float
+        buried oxide thickness, used for the single gate [nm].
+    gate_source_offset_nm : float
+        gate extension over the source (+) or underlap (-) [nm].
+    temperature_K : float
+        temperature [K].
+    """
+
+    material: str = "InAs"
+    source_type: str = "p"
+    source_doping_cm3: float = 4e19
+    channel_doping_cm3: float = 1e15
+    drain_doping_cm3: float = 2e18
+    doping_gradient_nm_per_dec: float = 1.0
+    body_thickness_nm: float = 7.0
+    gate_length_nm: float = 30.0
+    source_length_nm: float = 20.0
+    drain_length_nm: float = 20.0
+    oxide_thickness_nm: float = 2.0
+    oxide: str = "HfO2"
+    oxide_permittivity: float | None = None
+    gate_workfunction_eV: float = 4.8
+    gate_layout: str = "double"
+    buried_oxide_thickness_nm: float = 10.0
+    gate_source_offset_nm: float = 0.0
+    temperature_K: float = 300.0
+
+    def __post_init__(self) -> None:
+        for f in dataclasses.fields(self):
+            value = getattr(self, f.name)
+            if f.name == "oxide_permittivity" and value is None:
+                if self.oxide == "custom":
+                    raise ValueError("oxide_permittivity: required when oxide='custom'; "
+                                     f"allowed {FIELD_RANGES['oxide_permittivity'].describe()}")
+                continue
+            object.__setattr__(self, f.name, _check(f.name, value))
+
+    # ------------------------------------------------------------------ geometry
+    @property
+    def source_junction_nm(self) -> float:
+        """Position of the source/channel junction [nm]."""
+        return self.source_length_nm
+
+    @property
+    def drain_junction_nm(self) -> float:
+        """Position of the channel/drain junction [nm]."""
+        return self.source_length_nm + self.gate_length_nm
+
+    @property
+    def total_length_nm(self) -> float:
+        """Source + channel + drain [nm]."""
+        return self.source_length_nm + self.gate_length_nm + self.drain_length_nm
+
+    @property
+    def gate_start_nm(self) -> float:
+        """Source-side edge of the gate [nm]."""
+        return self.source_length_nm - self.gate_source_offset_nm
+
+    @property
+    def gate_end_nm(self) -> float:
+        """Drain-side edge of the gate (aligned with the drain junction) [nm]."""
+        return self.drain_junction_nm
+
+    def twin(self) -> Design:
+        """The MOSFET twin: the same design with an n+ source of the same doping."""
+        return self.replace(source_type="n")
+
+    def replace(self, **changes: Any) -> Design:
+        """A new validated design with some fields changed (unknown names raise)."""
+        unknown = sorted(set(changes) - set(FIELD_RANGES))
+        if unknown:
+            raise ValueError(f"{unknown[0]}: unknown design field; known fields: "
+                             + ", ".join(FIELD_RANGES))
+        return dataclasses.replace(self, **changes)
+
+    # ------------------------------------------------------------------ JSON
+    def to_dict(self) -> dict[str, Any]:
+        """Plain dictionary of all fields (JSON-safe)."""
+        return dataclasses.asdict(self)
+
+    @classmethod
+    def from_dict(cls, data: dict[str, Any]) -> Design:
+        """Build a design from a dictionary; missing fields take the defaults.
+
+        Raises ValueError for unknown fields and for any invalid value.
+        """
+        if not isinstance(data, dict):
+            raise ValueError(f"design: expected a JSON object, got {type(data).__name__}")
+        unknown = sorted(set(data) - set(FIELD_RANGES))
+        if unknown:
+            raise ValueError(f"{unknown[0]}: unknown design field; known fields: "
+                             + ", ".join(FIELD_RANGES))
+        return cls(**data)
+
+    def to_json(self) -> str:
+        return json.dumps(self.to_dict(), indent=2)
+
+    @classmethod
+    def from_json(cls, text: str) -> Design:
+        try:
+            data = json.loads(text)
+        except json.JSONDecodeError as exc:
+            raise ValueError(f"design: not valid JSON ({exc.msg} at line {exc.lineno})") from None
+        return cls.from_dict(data)
+
+
+def _check(name: str, value: Any) -> Any:
+    spec = FIELD_RANGES[name]
+    if spec.kind is str:
+        if not isinstance(value, str):
+            raise ValueError(f"{name}: expected text, got {value!r}")
+        if name == "material":
+            known = _materials()
+            match = [k for k in known if k.lower() == value.lower()]
+            if not match:
+                raise ValueError(f"{name}: unknown material {value!r}; known: "
+                                 + ", ".join(known))
+            return match[0]
+        if name == "oxide":
+            known = _dielectrics()
+            match = [k for k in known if k.lower() == value.lower()]
+            if not match:
+                raise ValueError(f"{name}: unknown dielectric {value!r}; known: "
+                                 + ", ".join(known))
+            return match[0]
+        if value not in spec.choices:
+            raise ValueError(f"{name}: {value!r} not allowed; allowed {spec.describe()}")
+        return value
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise ValueError(f"{name}: expected a number, got {value!r}; "
+                         f"allowed {spec.describe()}")
+    value = float(value)
+    if not math.isfinite(value):
+        raise ValueError(f"{name}: {value} is not a finite number; allowed {spec.describe()}")
+    if not spec.low <= value <= spec.high:
+        raise ValueError(f"{name}: {value:g} outside the allowed range {spec.describe()}")
+    return value
+
+
+def check_bias(vg_V: float, vd_V: float) -> tuple[float, float]:
+    """Validate a bias point; ValueError names the terminal and the allowed range [V]."""
+    out = []
+    for label, v, (lo, hi) in (("vg_V", vg_V, VG_RANGE_V), ("vd_V", vd_V, VD_RANGE_V)):
+        if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
+            raise ValueError(f"{label}: expected a finite number, got {v!r}; "
+                             f"allowed [{lo:g}, {hi:g}] V")
+        if not lo <= v <= hi:
+            raise ValueError(f"{label}: {v:g} V outside the allowed range [{lo:g}, {hi:g}] V")
+        out.append(float(v))
+    return out[0], out[1]
+

@@ -1,0 +1,103 @@
+"""The electrostatics of one design at one bias point: `solve_electrostatics`."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from physics.design import Design, check_bias
+from physics.poisson import SolverError, solve_poisson
+from physics.structure import DeviceFrame, build_frame, initial_guess, problem_at_bias
+
+
+@dataclass(frozen=True)
+class Electrostatics:
+    """Converged 2D electrostatics of a design at (V_g, V_d).
+
+    Attributes
+    ----------
+    design : Design
+    vg_V, vd_V : bias [V]
+    x_nm, y_nm : grid [nm]
+    psi_V : (nx, ny) electrostatic potential (vacuum level at -q psi) [V]
+    n_cm3, p_cm3 : (nx, ny) electron and hole densities, zero in the dielectrics [cm^-3]
+    ec_eV, ev_eV : (nx,) conduction and valence band edges on the body mid-plane, bulk
+        (no confinement shift), source Fermi level at 0 [eV]
+    efn_eV, efp_eV : (nx,) electron and hole quasi-Fermi levels [eV]
+    iterations : Newton steps; residual_V : final scaled residual [V];
+    history : largest Newton update of each step [V]
+    frame : the bias-independent structure (mesh, doping, operator)
+    """
+
+    design: Design
+    vg_V: float
+    vd_V: float
+    x_nm: np.ndarray
+    y_nm: np.ndarray
+    psi_V: np.ndarray
+    n_cm3: np.ndarray
+    p_cm3: np.ndarray
+    ec_eV: np.ndarray
+    ev_eV: np.ndarray
+    efn_eV: np.ndarray
+    efp_eV: np.ndarray
+    iterations: int
+    residual_V: float
+    history: tuple[float, ...]
+    frame: DeviceFrame
+
+    @property
+    def ec_map_eV(self) -> np.ndarray:
+        """(nx, ny) bulk conduction-band edge, semiconductor affinity throughout [eV]."""
+        return -self.frame.bands.chi_eV - self.psi_V
+
+
+def solve_electrostatics(
+    design: Design,
+    vg_V: float,
+    vd_V: float,
+    initial: Electrostatics | None = None,
+    resolution: float = 1.0,
+    quantum_correction: bool = True,
+    max_iter: int = 60,
+) -> Electrostatics:
+    """Solve the nonlinear 2D Poisson equation of a design at one bias point.
+
+    Parameters
+    ----------
+    design : Design
+    vg_V : gate voltage [V]; vd_V : drain voltage [V] (source grounded)
+    initial : a previous solution of the same design and resolution to continue from
+    resolution : grid refinement factor (1 = default spacing) [-]
+    quantum_correction : shift the charge's band edges by the lowest subband energies
+    max_iter : Newton steps allowed
+
+    Raises
+    ------
+    ValueError
+        for a bias outside its range.
+    SolverError
+        when Newton does not converge (with the residual history).
+    """
+    vg_V, vd_V = check_bias(vg_V, vd_V)
+    frame = build_frame(design, resolution, quantum_correction)
+    problem = problem_at_bias(frame, vg_V, vd_V)
+    if initial is not None and initial.frame is frame:
+        start = initial.psi_V
+    else:
+        start = initial_guess(frame, problem)
+    try:
+        sol = solve_poisson(problem, start, frame.operator, max_iter=max_iter)
+    except SolverError as exc:
+        raise SolverError(f"electrostatics at Vg = {vg_V:g} V, Vd = {vd_V:g} V: {exc}",
+                          exc.history) from None
+    j = frame.body_j
+    psi_mid = sol.psi_V[:, j]
+    b = frame.bands
+    ec = -b.chi_eV - psi_mid
+    return Electrostatics(
+        design=design, vg_V=vg_V, vd_V=vd_V, x_nm=frame.mesh.x_nm, y_nm=frame.mesh.y_nm,
+        psi_V=sol.psi_V, n_cm3=sol.n_cm3, p_cm3=sol.p_cm3, ec_eV=ec, ev_eV=ec - b.eg_eV,
+        efn_eV=sol.efn_eV, efp_eV=sol.efp_eV, iterations=sol.iterations,
+        residual_V=sol.residual_V, history=tuple(sol.history), frame=frame)

@@ -1,0 +1,304 @@
+"""Nonlinear 2D Poisson equation with Fermi–Dirac carriers, solved by Newton's method.
+
+    -div(eps0 eps_r grad psi) = q (p - n + N_D - N_A)                        (1)
+
+finite volumes on a tensor grid (node-centred control volumes, harmonic-free face
+permittivities because materials change only across y cells). psi is the electrostatic
+potential with the vacuum level at -q psi, so that in the semiconductor
+
+    E_c = -chi - q psi + dE_c,    E_v = E_c - E_g - dE_c - dE_v                (2)
+
+with dE_c, dE_v the confinement shifts of the lowest subbands (quantum-corrected
+semiclassical charge) and, with the quasi-Fermi levels E_Fn, E_Fp,
+
+    n = N_c F_1/2((E_Fn - E_c)/kT),   p = N_v F_1/2((E_v - E_Fp)/kT)         (3)
+
+(Sze & Ng, Physics of Semiconductor Devices, 3rd ed., 2007, ch. 1; F_j normalised as in
+DLMF §25.12). Energies are in eV with the source Fermi level at 0.
+
+Newton's method: the Jacobian of the finite-volume residual is the (symmetric, positive
+definite) Laplacian plus a positive diagonal from dn/dpsi - dp/dpsi; unknowns are
+ordered with y fastest so that the bandwidth is the short dimension and each step is
+one banded Cholesky factorisation (LAPACK pbtrf via scipy.linalg). Dirichlet nodes
+(gates, ohmic contacts) are kept as identity rows and columns. Steps are capped and
+backtracked on the residual norm (damping); ``initial=`` continues from a previous
+solution.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.constants as sc
+import scipy.linalg as sla
+import scipy.sparse as sp
+
+from physics.mesh import Mesh
+from physics.statistics import fermi_half, fermi_minus_half
+
+# q / eps0 with lengths in nm and densities in cm^-3: [V nm^2 per (cm^-3 nm^-3 ...)]
+# charge term of the residual = QE * (control area [nm^2]) * density [cm^-3]  -> [V]
+QE_V_NM2_CM3 = sc.e / sc.epsilon_0 * 1e9 * 1e-21 * 1e-9  # e/eps0 [V m] -> [V nm], cm^-3 -> nm^-3
+
+
+class SolverError(RuntimeError):
+    """A solve that did not converge; carries the residual history."""
+
+    def __init__(self, message: str, history: list[float]):
+        hist = ", ".join(f"{r:.2e}" for r in history[-8:])
+        super().__init__(f"{message}; residual history [V]: {hist}")
+        self.history = history
+
+
+@dataclass(frozen=True)
+class BandParameters:
+    """Semiconductor parameters entering the charge (2)-(3).
+
+    chi_eV : electron affinity [eV]; eg_eV : gap [eV]; nc_cm3, nv_cm3 : effective
+    densities of states [cm^-3]; kT_eV : thermal energy [eV]; dec_eV, dev_eV :
+    confinement shifts of the lowest conduction / highest valence subband [eV].
+    """
+
+    chi_eV: float
+    eg_eV: float
+    nc_cm3: float
+    nv_cm3: float
+    kT_eV: float
+    dec_eV: float = 0.0
+    dev_eV: float = 0.0
+
+    def ec_eV(self, psi_V: np.ndarray) -> np.ndarray:
+        """Confinement-shifted conduction edge (2) [eV]."""
+        return -self.chi_eV - psi_V + self.dec_eV
+
+    def ev_eV(self, psi_V: np.ndarray) -> np.ndarray:
+        """Confinement-shifted valence edge (2) [eV]."""
+        return -self.chi_eV - self.eg_eV - psi_V - self.dev_eV
+
+    def densities(
+        self, psi_V: np.ndarray, efn_eV: np.ndarray, efp_eV: np.ndarray
+    ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """n, p [cm^-3] and their derivatives dn/dpsi, dp/dpsi [cm^-3/V], eq. (3)."""
+        eta_n = (efn_eV - self.ec_eV(psi_V)) / self.kT_eV
+        eta_p = (self.ev_eV(psi_V) - efp_eV) / self.kT_eV
+        n = self.nc_cm3 * fermi_half(eta_n)
+        p = self.nv_cm3 * fermi_half(eta_p)
+        dn = self.nc_cm3 * fermi_minus_half(eta_n) / self.kT_eV
+        dp = -self.nv_cm3 * fermi_minus_half(eta_p) / self.kT_eV
+        return n, p, dn, dp
+
+
+def neutral_potential(
+    bands: BandParameters,
+    net_doping_cm3: np.ndarray,
+    efn_eV: np.ndarray | float,
+    efp_eV: np.ndarray | float,
+) -> np.ndarray:
+    """Potential at which p - n + N_D - N_A = 0 (charge-neutral, ohmic) [V].
+
+    Vectorised bisection: the net charge falls monotonically with psi, eq. (3).
+    """
+    net = np.asarray(net_doping_cm3, dtype=float)
+    efn = np.broadcast_to(np.asarray(efn_eV, float), net.shape)
+    efp = np.broadcast_to(np.asarray(efp_eV, float), net.shape)
+    # bracket: holes dominate with E_v 2 eV above every Fermi level, electrons with E_c
+    # 2 eV below every Fermi level
+    lo = -bands.chi_eV - bands.eg_eV - bands.dev_eV - np.maximum(efn, efp) - 2.0
+    hi = -bands.chi_eV + bands.dec_eV - np.minimum(efn, efp) + 2.0
+    for _ in range(64):
+        mid = 0.5 * (lo + hi)
+        n, p, _, _ = bands.densities(mid, efn, efp)
+        positive = (p - n + net) > 0  # too much positive charge: raise psi
+        lo = np.where(positive, mid, lo)
+        hi = np.where(positive, hi, mid)
+    return 0.5 * (lo + hi)
+
+
+@dataclass(frozen=True)
+class PoissonProblem:
+    """Everything the Newton solver needs.
+
+    mesh : the grid; donors_cm3, acceptors_cm3 : (nx,) doping along x, uniform across
+    the body [cm^-3]; bands : charge model; dirichlet : (nx, ny) mask of fixed nodes;
+    dirichlet_psi_V : their values [V]; efn_eV, efp_eV : (nx,) quasi-Fermi levels
+    [eV]; carriers : False for a fixed-charge (linear) problem; split_efn : if set,
+    (efs, efd, x_lo, x_hi): electrons take efs up to the conduction-band maximum
+    between x_lo and x_hi and efd beyond it (top-of-barrier split for the MOSFET twin).
+    """
+
+    mesh: Mesh
+    donors_cm3: np.ndarray
+    acceptors_cm3: np.ndarray
+    bands: BandParameters
+    dirichlet: np.ndarray
+    dirichlet_psi_V: np.ndarray
+    efn_eV: np.ndarray
+    efp_eV: np.ndarray
+    carriers: bool = True
+    split_efn: tuple[float, float, float, float] | None = None
+    extra_charge_cm3: np.ndarray | None = None
+
+
+@dataclass
+class PoissonSolution:
+    """Converged potential and carriers on the grid (all (nx, ny) unless stated)."""
+
+    psi_V: np.ndarray
+    n_cm3: np.ndarray
+    p_cm3: np.ndarray
+    efn_eV: np.ndarray  # (nx,)
+    efp_eV: np.ndarray  # (nx,)
+    iterations: int
+    residual_V: float
+    history: list[float] = field(default_factory=list)
+
+
+class PoissonOperator:
+    """Finite-volume Laplacian of a mesh, in banded and sparse form (built once)."""
+
+    def __init__(self, mesh: Mesh, dirichlet: np.ndarray):
+        nx, ny = mesh.nx, mesh.ny
+        hx, hy = np.diff(mesh.x_nm), np.diff(mesh.y_nm)
+        eps = mesh.cell_permittivity
+        dx = mesh.dx_nm
+        # face "area" (length per unit depth) of an x-face at node row j, eps-weighted
+        ay = 0.5 * (np.concatenate([[0.0], hy * eps]) + np.concatenate([hy * eps, [0.0]]))
+        cx = ay[None, :] / hx[:, None]  # (nx-1, ny) coupling (i,j)-(i+1,j)
+        cy = dx[:, None] * (eps / hy)[None, :]  # (nx, ny-1) coupling (i,j)-(i,j+1)
+        self.shape = (nx, ny)
+        self.area_semi = dx[:, None] * mesh.dy_semiconductor_nm[None, :]  # [nm^2]
+        n = nx * ny
+        diag = np.zeros((nx, ny))
+        diag[:-1, :] += cx
+        diag[1:, :] += cx
+        diag[:, :-1] += cy
+        diag[:, 1:] += cy
+        k = np.arange(n).reshape(nx, ny)
+        rows = np.concatenate([k[:-1, :].ravel(), k[:, :-1].ravel()])
+        cols = np.concatenate([k[1:, :].ravel(), k[:, 1:].ravel()])
+        vals = -np.concatenate([cx.ravel(), cy.ravel()])
+        off = sp.coo_matrix((vals, (rows, cols)), shape=(n, n))
+        self.matrix = (off + off.T + sp.diags(diag.ravel())).tocsr()
+        # banded upper form for the Newton system, Dirichlet rows/columns -> identity
+        fixed = dirichlet.ravel()
+        self.fixed = fixed
+        ab = np.zeros((ny + 1, n))
+        ab[ny] = np.where(fixed, 1.0, diag.ravel())
+        yc = np.zeros((nx, ny))
+        yc[:, 1:] = -cy  # A[k-1, k] stored at column k
+        yc = yc.ravel()
+        yc[fixed | np.roll(fixed, 1)] = 0.0
+        ab[ny - 1] = yc
+        xc = np.zeros((nx, ny))
+        xc[1:, :] = -cx  # A[k-ny, k] stored at column k
+        xc = xc.ravel()
+        xc[fixed | np.roll(fixed, ny)] = 0.0
+        ab[0] = xc
+        self.banded = ab
+
+    def newton_matrix(self, charge_diag: np.ndarray) -> np.ndarray:
+        """Banded Jacobian: Laplacian + diag(charge derivative) on free nodes."""
+        ab = self.banded.copy()
+        ab[-1] += np.where(self.fixed, 0.0, charge_diag)
+        return ab
+
+
+def _efn_profile(problem: PoissonProblem, psi: np.ndarray, body_j: int) -> np.ndarray:
+    if problem.split_efn is None:
+        return problem.efn_eV
+    efs, efd, lo, hi = problem.split_efn
+    x = problem.mesh.x_nm
+    inside = (x >= lo) & (x <= hi)
+    ec_mid = -psi[:, body_j]
+    i_top = np.flatnonzero(inside)[np.argmax(ec_mid[inside])]
+    return np.where(np.arange(x.size) <= i_top, efs, efd)
+
+
+def solve_poisson(
+    problem: PoissonProblem,
+    initial_psi_V: np.ndarray,
+    operator: PoissonOperator | None = None,
+    tol_V: float = 1e-9,
+    max_iter: int = 60,
+    max_step_V: float = 1.0,
+) -> PoissonSolution:
+    """Damped Newton solution of (1)-(3).
+
+    Parameters
+    ----------
+    problem : PoissonProblem
+    initial_psi_V : (nx, ny) starting potential [V]; Dirichlet values are imposed.
+    operator : prebuilt PoissonOperator for this mesh and Dirichlet mask (reused).
+    tol_V : convergence when the largest Newton update is below this [V].
+    max_iter : Newton steps before giving up.
+    max_step_V : cap on the largest update of one step [V] (damping).
+
+    Raises
+    ------
+    SolverError
+        when the iteration does not converge, with the residual history.
+    """
+    mesh = problem.mesh
+    nx, ny = mesh.nx, mesh.ny
+    op = operator or PoissonOperator(mesh, problem.dirichlet)
+    psi = np.where(problem.dirichlet, problem.dirichlet_psi_V, initial_psi_V).ravel().copy()
+    semi_nodes = np.broadcast_to(mesh.node_semiconductor[None, :], (nx, ny))
+    doping = (problem.donors_cm3 - problem.acceptors_cm3)[:, None] * semi_nodes
+    if problem.extra_charge_cm3 is not None:
+        doping = doping + problem.extra_charge_cm3
+    area = op.area_semi
+    y_lo, y_hi = mesh.body_bounds_nm()
+    body_j = int(np.argmin(np.abs(mesh.y_nm - 0.5 * (y_lo + y_hi))))
+    free = ~op.fixed
+    efp2 = problem.efp_eV[:, None]
+
+    def residual(psi_flat: np.ndarray, efn: np.ndarray):
+        psi2 = psi_flat.reshape(nx, ny)
+        if problem.carriers:
+            n, p, dn, dp = problem.bands.densities(psi2, efn[:, None], efp2)
+            rho = p - n + doping
+            dq = (dn - dp) * area * QE_V_NM2_CM3
+        else:
+            n = p = np.zeros_like(psi2)
+            rho = doping
+            dq = np.zeros_like(psi2)
+        f = op.matrix @ psi_flat - (QE_V_NM2_CM3 * area * rho).ravel()
+        f[~free] = 0.0
+        return f, dq.ravel(), n, p
+
+    history: list[float] = []
+    efn = _efn_profile(problem, psi.reshape(nx, ny), body_j)
+    f, dq, n, p = residual(psi, efn)
+    for it in range(1, max_iter + 1):
+        ab = op.newton_matrix(dq)
+        try:
+            delta = sla.solveh_banded(ab, -f, lower=False, check_finite=False)
+        except np.linalg.LinAlgError as exc:
+            raise SolverError(f"Newton matrix not positive definite ({exc})", history) from None
+        step = float(np.max(np.abs(delta)))
+        history.append(step)
+        if not np.isfinite(step):
+            raise SolverError("non-finite Newton update", history)
+        t = min(1.0, max_step_V / step) if step > 0 else 1.0
+        norm0 = np.linalg.norm(f / ab[-1])
+        for _ in range(12):  # backtracking on the scaled residual norm
+            trial = psi + t * delta
+            f_t, dq_t, n_t, p_t = residual(trial, efn)
+            if np.linalg.norm(f_t / ab[-1]) <= norm0 * (1 - 1e-4 * t) or t * step < 1e-6:
+                break
+            t *= 0.5
+        psi, f, dq, n, p = trial, f_t, dq_t, n_t, p_t
+        if problem.split_efn is not None:
+            new_efn = _efn_profile(problem, psi.reshape(nx, ny), body_j)
+            if not np.array_equal(new_efn, efn):
+                efn = new_efn
+                f, dq, n, p = residual(psi, efn)
+                continue
+        if t * step < tol_V or not problem.carriers:
+            res = float(np.max(np.abs(f / op.newton_matrix(dq)[-1])))
+            return PoissonSolution(
+                psi_V=psi.reshape(nx, ny), n_cm3=n * semi_nodes, p_cm3=p * semi_nodes,
+                efn_eV=np.asarray(efn, float), efp_eV=np.asarray(problem.efp_eV, float),
+                iterations=it, residual_V=res, history=history)
+    raise SolverError(f"Newton did not converge in {max_iter} steps", history)

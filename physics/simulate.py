@@ -1,0 +1,250 @@
+"""The pipeline: electrostatics -> subband profiles -> tunnelling and thermionic current.
+
+`solve_bias` gives one bias point; `transfer_curve` and `output_curve` sweep one
+terminal with continuation from point to point. A `Simulator` keeps a cache of solved
+points and the last solution of each design (for warm starts); the module-level
+functions use a shared default one. Separate sessions should own separate simulators.
+"""
+
+from __future__ import annotations
+
+import threading
+import time
+from collections import OrderedDict
+from collections.abc import Callable
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from physics.design import Design, check_bias
+from physics.electrostatics import Electrostatics, solve_electrostatics
+from physics.metrics import Metrics, figures_of_merit, point_swing_mV_per_dec
+from physics.poisson import SolverError
+from physics.subbands import device_subbands
+from physics.transport import (
+    BandProfile,
+    Spectrum,
+    band_to_band,
+    thermionic_current,
+    tunnel_window,
+)
+
+
+@dataclass(frozen=True)
+class BiasPoint:
+    """Everything sub60 knows about one design at one bias.
+
+    Attributes
+    ----------
+    electrostatics : the 2D solution
+    x_nm : (nx,) [nm]
+    conduction_eV : (n_c, nx) conduction subband edges, lowest first [eV]
+    valence_eV : (n_v, nx) valence subband edges, highest first [eV]
+    conduction_labels, valence_labels : subband names ("C1", "HH1", "LH1", ...)
+    ec_eV, ev_eV : (nx,) lowest conduction / highest valence subband edge [eV]
+    efs_eV, efd_eV : source and drain Fermi levels [eV]
+    window_eV : (e_min, e_max) tunnel window, or None when closed [eV]
+    spectrum : band-to-band J(E) and T(E)
+    btbt_uA_per_um, electron_thermionic_uA_per_um, hole_thermionic_uA_per_um : parts
+    current_uA_per_um : total drain current per width [uA/um]
+    timings_s : wall time of each stage [s]
+    """
+
+    design: Design
+    vg_V: float
+    vd_V: float
+    electrostatics: Electrostatics
+    x_nm: np.ndarray
+    conduction_eV: np.ndarray
+    valence_eV: np.ndarray
+    conduction_labels: tuple[str, ...]
+    valence_labels: tuple[str, ...]
+    efs_eV: float
+    efd_eV: float
+    window_eV: tuple[float, float] | None
+    spectrum: Spectrum
+    btbt_uA_per_um: float
+    electron_thermionic_uA_per_um: float
+    hole_thermionic_uA_per_um: float
+    timings_s: dict[str, float] = field(default_factory=dict)
+
+    @property
+    def ec_eV(self) -> np.ndarray:
+        return self.conduction_eV[0]
+
+    @property
+    def ev_eV(self) -> np.ndarray:
+        return self.valence_eV.max(axis=0)
+
+    @property
+    def current_uA_per_um(self) -> float:
+        return self.btbt_uA_per_um + self.electron_thermionic_uA_per_um \
+            + self.hole_thermionic_uA_per_um
+
+
+@dataclass(frozen=True)
+class TransferCurve:
+    """Id-Vg of a design at fixed V_d, with its figures of merit."""
+
+    design: Design
+    vd_V: float
+    vg_V: np.ndarray
+    id_uA_per_um: np.ndarray
+    btbt_uA_per_um: np.ndarray
+    thermionic_uA_per_um: np.ndarray
+    ss_mV_per_dec: np.ndarray
+    metrics: Metrics
+
+
+@dataclass(frozen=True)
+class OutputCurve:
+    """Id-Vd of a design at fixed V_g."""
+
+    design: Design
+    vg_V: float
+    vd_V: np.ndarray
+    id_uA_per_um: np.ndarray
+
+
+def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") -> BiasPoint:
+    """Subband profiles, tunnel window and currents of a solved electrostatics."""
+    d = es.design
+    t0 = time.perf_counter()
+    sb = device_subbands(d)
+    cond, val = sb.profiles(es.y_nm, es.ec_map_eV, es.frame.bands.eg_eV)
+    t1 = time.perf_counter()
+    kT = es.frame.bands.kT_eV
+    efs, efd = 0.0, -es.vd_V
+    x = es.x_nm
+    cprof = [BandProfile(s.label, cond[i], s.inplane_mass) for i, s in enumerate(sb.conduction)]
+    vprof = [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)]
+    spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model)
+    i_n = thermionic_current(cprof, "conduction", efs, efd, kT)
+    i_p = thermionic_current(vprof, "valence", efs, efd, kT)
+    if es.vd_V == 0:
+        i_n = i_p = 0.0
+    window = tunnel_window(x, cond[0], val.max(axis=0), (d.gate_start_nm, d.gate_end_nm),
+                           d.source_junction_nm, efs, efd)
+    t2 = time.perf_counter()
+    return BiasPoint(
+        design=d, vg_V=es.vg_V, vd_V=es.vd_V, electrostatics=es, x_nm=x,
+        conduction_eV=cond, valence_eV=val,
+        conduction_labels=tuple(s.label for s in sb.conduction),
+        valence_labels=tuple(s.label for s in sb.valence),
+        efs_eV=efs, efd_eV=efd, window_eV=window, spectrum=spectrum,
+        btbt_uA_per_um=spectrum.current_uA_per_um,
+        electron_thermionic_uA_per_um=i_n, hole_thermionic_uA_per_um=i_p,
+        timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1})
+
+
+class Simulator:
+    """Solves bias points with caching and continuation (thread-safe).
+
+    Parameters
+    ----------
+    resolution : grid refinement factor [-]; model : tunnelling model;
+    cache_size : bias points kept.
+    """
+
+    def __init__(self, resolution: float = 1.0, model: str = "two-band", cache_size: int = 512):
+        self.resolution = float(resolution)
+        self.model = model
+        self._cache: OrderedDict[tuple, BiasPoint] = OrderedDict()
+        self._last: dict[Design, Electrostatics] = {}
+        self._size = cache_size
+        self._lock = threading.RLock()
+
+    def solve_bias(self, design: Design, vg_V: float, vd_V: float,
+                   initial: Electrostatics | None = None) -> BiasPoint:
+        """One bias point; cached; warm-started from the design's last solution."""
+        vg_V, vd_V = check_bias(vg_V, vd_V)
+        key = (design, round(vg_V, 9), round(vd_V, 9))
+        with self._lock:
+            hit = self._cache.get(key)
+            if hit is not None:
+                self._cache.move_to_end(key)
+                return hit
+            start = initial or self._last.get(design)
+        t0 = time.perf_counter()
+        es = self._electrostatics(design, vg_V, vd_V, start)
+        t1 = time.perf_counter()
+        bp = bias_point_from_electrostatics(es, self.model)
+        bp.timings_s["poisson"] = t1 - t0
+        with self._lock:
+            self._last[design] = es
+            if len(self._last) > 16:
+                self._last.pop(next(iter(self._last)))
+            self._cache[key] = bp
+            while len(self._cache) > self._size:
+                self._cache.popitem(last=False)
+        return bp
+
+    def _electrostatics(self, design, vg_V, vd_V, start) -> Electrostatics:
+        try:
+            return solve_electrostatics(design, vg_V, vd_V, initial=start,
+                                        resolution=self.resolution)
+        except SolverError:
+            if start is None:
+                raise
+        # bias ramp from the warm start in smaller steps (fallback)
+        es = start
+        for f in np.linspace(0, 1, 9)[1:]:
+            vg = es.vg_V + (vg_V - es.vg_V) * f if f < 1 else vg_V
+            vd = es.vd_V + (vd_V - es.vd_V) * f if f < 1 else vd_V
+            es_new = solve_electrostatics(design, vg, vd, initial=es, resolution=self.resolution)
+            es = es_new if f == 1 else es
+        return es
+
+    def transfer_curve(
+        self, design: Design, vg_V: np.ndarray, vd_V: float, temperature_K: float | None = None,
+        ioff_target_uA_per_um: float = 1e-3, vdd_V: float = 0.3,
+        progress: Callable[[int, int], None] | None = None,
+        cancelled: Callable[[], bool] | None = None,
+    ) -> TransferCurve:
+        """Id-Vg at fixed V_d with continuation along V_g, and its figures of merit."""
+        vg = np.asarray(vg_V, float)
+        points = []
+        prev = None
+        for i, v in enumerate(vg):
+            if cancelled is not None and cancelled():
+                raise InterruptedError("transfer curve superseded")
+            bp = self.solve_bias(design, float(v), vd_V, initial=prev)
+            prev = bp.electrostatics
+            points.append(bp)
+            if progress is not None:
+                progress(i + 1, vg.size)
+        current = np.array([p.current_uA_per_um for p in points])
+        btbt = np.array([p.btbt_uA_per_um for p in points])
+        therm = current - btbt
+        metrics = figures_of_merit(vg, current, design.temperature_K, ioff_target_uA_per_um, vdd_V)
+        return TransferCurve(design, float(vd_V), vg, current, btbt, therm,
+                             point_swing_mV_per_dec(vg, current), metrics)
+
+    def output_curve(self, design: Design, vg_V: float, vd_V: np.ndarray) -> OutputCurve:
+        """Id-Vd at fixed V_g with continuation along V_d."""
+        vd = np.asarray(vd_V, float)
+        prev = None
+        out = []
+        for v in vd:
+            bp = self.solve_bias(design, vg_V, float(v), initial=prev)
+            prev = bp.electrostatics
+            out.append(bp.current_uA_per_um)
+        return OutputCurve(design, float(vg_V), vd, np.array(out))
+
+
+_default = Simulator()
+
+
+def solve_bias(design: Design, vg_V: float, vd_V: float) -> BiasPoint:
+    """One bias point of a design (shared default simulator)."""
+    return _default.solve_bias(design, vg_V, vd_V)
+
+
+def transfer_curve(design: Design, vg_V: np.ndarray, vd_V: float, **kw) -> TransferCurve:
+    """Id-Vg sweep of a design (shared default simulator)."""
+    return _default.transfer_curve(design, vg_V, vd_V, **kw)
+
+
+def output_curve(design: Design, vg_V: float, vd_V: np.ndarray) -> OutputCurve:
+    """Id-Vd sweep of a design (shared default simulator)."""
+    return _default.output_curve(design, vg_V, vd_V)

@@ -1,0 +1,214 @@
+"""From a `Design` to a Poisson problem: grid, doping profile, contacts and gates.
+
+Doping: the source dopant (acceptors for a p+ source, donors for n+) is uniform up to
+the source junction and decays into the channel by one decade every
+``doping_gradient_nm_per_dec``; the drain donors likewise decay back from the drain
+junction; the channel doping fills the region between the junctions (exponential
+junction tails: common practice, no source). A gradient of 0 gives abrupt steps.
+
+Boundary conditions: gates are Dirichlet, psi = V_g - phi_m (the vacuum level at the
+metal sits phi_m above its Fermi level, which is -q V_g on our energy scale); a single
+gate's back plane is the gate metal, grounded. Source and drain ends are ohmic:
+charge-neutral potential for the local doping and quasi-Fermi levels. Every other
+outer surface has zero normal field.
+
+Quasi-Fermi levels (reverse-biased p-i-n convention): in the tunnel FET holes carry
+the source Fermi level (0) and electrons the drain's (-q V_d) everywhere; in the MOSFET
+twin electrons take the source level up to the top of the channel barrier and the
+drain level beyond it, and holes follow the electrons.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+import scipy.constants as sc
+
+from physics.design import Design
+from physics.materials import get_dielectric, get_semiconductor
+from physics.mesh import Mesh, graded_axis, layered_y_axis
+from physics.poisson import BandParameters, PoissonOperator, PoissonProblem, neutral_potential
+
+BOX_PERMITTIVITY = 3.9  # buried oxide is SiO2 (Robertson 2004, Table 1)
+
+
+def gate_dielectric(design: Design):
+    """The gate dielectric record of a design (custom permittivity honoured)."""
+    from physics.materials import custom_dielectric
+
+    if design.oxide == "custom":
+        return custom_dielectric(design.oxide_permittivity)
+    return get_dielectric(design.oxide)
+
+
+def thermal_energy_eV(temperature_K: float) -> float:
+    """kT/q [eV] with exact SI constants (scipy.constants)."""
+    return sc.k * temperature_K / sc.e
+
+
+def build_mesh(design: Design, resolution: float = 1.0) -> Mesh:
+    """Tensor grid of a design.
+
+    x: 0.2 nm / resolution within +-5 nm of the source junction, 0.25 nm within +-4 nm
+    of the drain junction, growing by at most 15 % per cell to 2 nm / resolution.
+    y: oxide / body / oxide (double gate) or buried oxide / body / gate oxide (single
+    gate, bottom to top), nodes on each interface and on the body's mid-plane.
+    """
+    r = float(resolution)
+    xj1, xj2 = design.source_junction_nm, design.drain_junction_nm
+    refine = [(xj1, 0.2 / r, 5.0), (xj2, 0.25 / r, 4.0)]
+    if abs(design.gate_start_nm - xj1) > 1e-9:
+        refine.append((design.gate_start_nm, 0.3 / r, 1.0))
+    x = graded_axis(design.total_length_nm, [xj1, xj2, design.gate_start_nm], refine,
+                    h_max_nm=2.0 / r, growth=0.15)
+    sc_rec = get_semiconductor(design.material)
+    eps_ox = gate_dielectric(design).permittivity
+    tox, ts = design.oxide_thickness_nm, design.body_thickness_nm
+    h_ox = min(0.4, tox / 3)
+    h_body = min(0.5, ts / 10)
+    bottom = ((tox, eps_ox, False) if design.gate_layout == "double"
+              else (design.buried_oxide_thickness_nm, BOX_PERMITTIVITY, False))
+    layers = [bottom, (ts, sc_rec.permittivity, True), (tox, eps_ox, False)]
+    h_bottom = h_ox if design.gate_layout == "double" else min(0.5, h_body * 1.5)
+    y, eps, semi, _ = layered_y_axis(layers, [h_bottom, h_body, h_ox], resolution=r)
+    return Mesh(x_nm=x, y_nm=y, cell_permittivity=eps, cell_semiconductor=semi)
+
+
+def doping_profile(design: Design, x_nm: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Donor and acceptor concentrations along x [cm^-3] (see module docstring)."""
+    xj1, xj2, g = design.source_junction_nm, design.drain_junction_nm, design.doping_gradient_nm_per_dec
+    if g > 0:
+        src = np.where(x_nm <= xj1, 1.0, 10.0 ** (-np.clip(x_nm - xj1, 0, None) / g))
+        drn = np.where(x_nm >= xj2, 1.0, 10.0 ** (-np.clip(xj2 - x_nm, 0, None) / g))
+    else:
+        src = (x_nm <= xj1).astype(float)
+        drn = (x_nm >= xj2).astype(float)
+    channel = ((x_nm > xj1) & (x_nm < xj2)).astype(float) * abs(design.channel_doping_cm3)
+    donors = design.drain_doping_cm3 * drn
+    acceptors = np.zeros_like(x_nm)
+    if design.source_type == "p":
+        acceptors = acceptors + design.source_doping_cm3 * src
+    else:
+        donors = donors + design.source_doping_cm3 * src
+    if design.channel_doping_cm3 >= 0:
+        donors = donors + channel
+    else:
+        acceptors = acceptors + channel
+    return donors, acceptors
+
+
+def band_parameters(design: Design, dec_eV: float = 0.0, dev_eV: float = 0.0) -> BandParameters:
+    """Charge-model parameters of the body material at the design temperature."""
+    rec = get_semiconductor(design.material)
+    nc, nv = rec.effective_dos_cm3(design.temperature_K)
+    return BandParameters(chi_eV=rec.electron_affinity_eV, eg_eV=rec.bandgap_eV(design.temperature_K),
+                          nc_cm3=nc, nv_cm3=nv, kT_eV=thermal_energy_eV(design.temperature_K),
+                          dec_eV=dec_eV, dev_eV=dev_eV)
+
+
+@dataclass(frozen=True)
+class DeviceFrame:
+    """Bias-independent part of a design's electrostatics (built once, cached)."""
+
+    design: Design
+    mesh: Mesh
+    donors_cm3: np.ndarray
+    acceptors_cm3: np.ndarray
+    bands: BandParameters
+    gate_nodes: np.ndarray  # (nx, ny) bool
+    back_nodes: np.ndarray  # (nx, ny) bool
+    contact_nodes: np.ndarray  # (nx, ny) bool, source end then drain end
+    operator: PoissonOperator
+    body_j: int  # index of the body mid-plane row
+
+    @property
+    def dirichlet(self) -> np.ndarray:
+        return self.gate_nodes | self.back_nodes | self.contact_nodes
+
+
+def build_frame(design: Design, resolution: float = 1.0, quantum_correction: bool = True) -> DeviceFrame:
+    """Mesh, doping, charge model and boundary masks of a design (cached)."""
+    return _frame(design, float(resolution), bool(quantum_correction))
+
+
+@lru_cache(maxsize=32)
+def _frame(design: Design, resolution: float, quantum_correction: bool) -> DeviceFrame:
+    mesh = build_mesh(design, resolution)
+    donors, acceptors = doping_profile(design, mesh.x_nm)
+    if quantum_correction:
+        from physics.subbands import device_subbands
+
+        sb = device_subbands(design)
+        bands = band_parameters(design, sb.conduction_shift_eV, sb.valence_shift_eV)
+    else:
+        bands = band_parameters(design)
+    nx, ny = mesh.nx, mesh.ny
+    tol = 1e-9
+    gated_x = (mesh.x_nm >= design.gate_start_nm - tol) & (mesh.x_nm <= design.gate_end_nm + tol)
+    gate = np.zeros((nx, ny), bool)
+    back = np.zeros((nx, ny), bool)
+    gate[:, -1] = gated_x
+    if design.gate_layout == "double":
+        gate[:, 0] = gated_x
+    else:
+        back[:, 0] = True
+    contact = np.zeros((nx, ny), bool)
+    contact[0, :] = mesh.node_semiconductor
+    contact[-1, :] = mesh.node_semiconductor
+    contact &= ~(gate | back)
+    y_lo, y_hi = mesh.body_bounds_nm()
+    body_j = int(np.argmin(np.abs(mesh.y_nm - 0.5 * (y_lo + y_hi))))
+    op = PoissonOperator(mesh, gate | back | contact)
+    return DeviceFrame(design, mesh, donors, acceptors, bands, gate, back, contact, op, body_j)
+
+
+def quasi_fermi_levels(design: Design, x_nm: np.ndarray, vd_V: float) -> tuple[np.ndarray, np.ndarray]:
+    """Electron and hole quasi-Fermi levels along x for the tunnel FET [eV].
+
+    Holes: source level 0; electrons: drain level -q V_d (the MOSFET twin's split is
+    applied inside the Newton loop, see `problem_at_bias`).
+    """
+    efn = np.full(x_nm.shape, -vd_V)
+    efp = np.zeros(x_nm.shape)
+    return efn, efp
+
+
+def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProblem:
+    """Poisson problem of a design at one bias point."""
+    d, mesh = frame.design, frame.mesh
+    x = mesh.x_nm
+    efs, efd = 0.0, -vd_V
+    split = None
+    if d.source_type == "p":
+        efn, efp = quasi_fermi_levels(d, x, vd_V)
+    else:
+        # electrons from the source up to the barrier top in the gated channel
+        efn = np.where(x <= d.source_junction_nm, efs, efd)
+        efp = efn.copy()
+        split = (efs, efd, d.source_junction_nm - 2.0, d.drain_junction_nm + 2.0)
+    values = np.zeros((mesh.nx, mesh.ny))
+    values[frame.gate_nodes] = vg_V - d.gate_workfunction_eV
+    values[frame.back_nodes] = -d.gate_workfunction_eV
+    net = frame.donors_cm3 - frame.acceptors_cm3
+    ends = np.array([0, mesh.nx - 1])
+    if d.source_type == "p":
+        efn_end, efp_end = np.array([efd, efd]), np.array([efs, efs])
+    else:
+        efn_end = efp_end = np.array([efs, efd])
+    psi_end = neutral_potential(frame.bands, net[ends], efn_end, efp_end)
+    values[0, :] = np.where(frame.contact_nodes[0], psi_end[0], values[0, :])
+    values[-1, :] = np.where(frame.contact_nodes[-1], psi_end[1], values[-1, :])
+    return PoissonProblem(mesh=mesh, donors_cm3=frame.donors_cm3, acceptors_cm3=frame.acceptors_cm3,
+                          bands=frame.bands, dirichlet=frame.dirichlet, dirichlet_psi_V=values,
+                          efn_eV=efn, efp_eV=efp, split_efn=split)
+
+
+def initial_guess(frame: DeviceFrame, problem: PoissonProblem) -> np.ndarray:
+    """Charge-neutral potential in the semiconductor, extended across the oxides [V]."""
+    mesh = frame.mesh
+    net = frame.donors_cm3 - frame.acceptors_cm3
+    psi_x = neutral_potential(frame.bands, net, problem.efn_eV, problem.efp_eV)
+    psi = np.repeat(psi_x[:, None], mesh.ny, axis=1)
+    return np.where(problem.dirichlet, problem.dirichlet_psi_V, psi)

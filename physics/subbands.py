@@ -1,0 +1,161 @@
+"""Confinement subbands of a design's body and their edge profiles along x.
+
+The body between its two dielectrics is a finite quantum well in y. For each carrier
+kind the lowest states of the flat well are found with `physics.confinement`
+(BenDaniel–Duke, non-parabolic conduction band); along x each subband edge follows the
+2D potential weighted by the state's |phi(y)|^2 (first-order perturbation theory,
+e.g. Davies, The Physics of Low-dimensional Semiconductors, 1998, ch. 6 — from memory):
+
+    E_c,n(x) = E_c,n^0 + int |phi_n(y)|^2 E_c(x, y) dy                      (1)
+    E_v,m(x) = -E_v,m^0 + int |phi_m(y)|^2 E_v(x, y) dy
+
+with E_c,n^0 (E_v,m^0) the confinement energy above (below) the bulk edge.
+Conduction: electron mass of the Gamma valley, same in-plane (isotropic). Holes:
+heavy and light holes with the Luttinger masses along [001] for confinement and in
+the (001) plane for transport and transverse motion (Luttinger 1956; Davies 1998 —
+from memory); the two kinds are treated as uncoupled.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+
+from physics.confinement import solve_subbands, subband_weights
+from physics.design import Design
+from physics.materials import get_dielectric, get_semiconductor
+
+N_CONDUCTION = 2
+N_HEAVY = 2
+N_LIGHT = 1
+BARRIER_NM = 2.5  # barrier thickness kept in the well problem; |phi|^2 there is < 1e-9
+SPACING_NM = 0.05
+
+
+@dataclass(frozen=True, eq=False)
+class Subband:
+    """One confinement subband.
+
+    label : e.g. "C1", "HH1", "LH1"; kind : "conduction" or "valence";
+    energy_eV : confinement energy, above E_c (conduction) or below E_v (valence) [eV];
+    inplane_mass : mass for motion along x and across the width [m0];
+    y_nm, density : |phi(y)|^2 on the fine well grid [nm, 1/nm], y in mesh coordinates.
+    """
+
+    label: str
+    kind: str
+    energy_eV: float
+    inplane_mass: float
+    y_nm: np.ndarray
+    density: np.ndarray
+
+
+@dataclass(frozen=True, eq=False)
+class DeviceSubbands:
+    """The subbands of a design's body (bias independent)."""
+
+    conduction: tuple[Subband, ...]
+    valence: tuple[Subband, ...]
+
+    @property
+    def conduction_shift_eV(self) -> float:
+        """Lowest conduction subband above the bulk edge [eV] (feeds the charge)."""
+        return self.conduction[0].energy_eV
+
+    @property
+    def valence_shift_eV(self) -> float:
+        """Highest valence subband below the bulk edge [eV] (feeds the charge)."""
+        return min(s.energy_eV for s in self.valence)
+
+    def profiles(self, y_nodes_nm: np.ndarray, ec_map_eV: np.ndarray, eg_eV: float):
+        """Subband edge profiles along x, eq. (1).
+
+        Parameters
+        ----------
+        y_nodes_nm : (ny,) mesh rows [nm]; ec_map_eV : (nx, ny) bulk conduction edge [eV];
+        eg_eV : bulk gap [eV].
+
+        Returns
+        -------
+        conduction : (n_c, nx) [eV]; valence : (n_v, nx) [eV]
+        """
+        wc = self._weights(y_nodes_nm, "conduction")
+        wv = self._weights(y_nodes_nm, "valence")
+        ec = wc @ ec_map_eV.T + np.array([s.energy_eV for s in self.conduction])[:, None]
+        ev = wv @ (ec_map_eV.T - eg_eV) - np.array([s.energy_eV for s in self.valence])[:, None]
+        return ec, ev
+
+    def _weights(self, y_nodes_nm: np.ndarray, kind: str) -> np.ndarray:
+        return _weights_cached(self, tuple(np.round(y_nodes_nm, 12)), kind)
+
+
+@lru_cache(maxsize=64)
+def _weights_cached(sb: DeviceSubbands, y_nodes: tuple[float, ...], kind: str) -> np.ndarray:
+    y = np.array(y_nodes)
+    bands = sb.conduction if kind == "conduction" else sb.valence
+    rows = []
+    for s in bands:
+        from physics.confinement import Subbands
+
+        tmp = Subbands(energies_eV=np.array([s.energy_eV]),
+                       wavefunctions=np.sqrt(s.density)[None, :], y_nm=s.y_nm)
+        rows.append(subband_weights(tmp, y)[0])
+    return np.array(rows)
+
+
+def _stack(design: Design):
+    """Bottom dielectric, body, top dielectric and the body's y position in the mesh."""
+    top = (get_dielectric(design.oxide) if design.oxide != "custom" else None)
+    if top is None:
+        from physics.materials import custom_dielectric
+
+        top = custom_dielectric(design.oxide_permittivity)
+    bottom = top if design.gate_layout == "double" else get_dielectric("SiO2")
+    y0 = design.oxide_thickness_nm if design.gate_layout == "double" \
+        else design.buried_oxide_thickness_nm
+    return bottom, top, y0
+
+
+@lru_cache(maxsize=64)
+def device_subbands(design: Design) -> DeviceSubbands:
+    """Flat-well subbands of the design's body (cached per design)."""
+    sc_rec = get_semiconductor(design.material)
+    bottom, top, y0 = _stack(design)
+    t = design.body_thickness_nm
+    h = SPACING_NM
+    n_body = max(20, int(np.ceil(t / h)))
+    n_bar = int(np.ceil(BARRIER_NM / h))
+    y = np.concatenate([np.linspace(-BARRIER_NM, 0.0, n_bar + 1)[:-1], np.linspace(0.0, t, n_body + 1),
+                        np.linspace(t, t + BARRIER_NM, n_bar + 1)[1:]])
+    # per-cell materials (BenDaniel-Duke matching exact at the interface nodes)
+    body = np.r_[np.zeros(n_bar, bool), np.ones(n_body, bool), np.zeros(n_bar, bool)]
+    below = np.r_[np.ones(n_bar, bool), np.zeros(n_body + n_bar, bool)]
+    eg = sc_rec.bandgap_eV(design.temperature_K)
+
+    def barrier(value_bottom: float, value_top: float) -> np.ndarray:
+        return np.where(body, 0.0, np.where(below, value_bottom, value_top))
+
+    # electron barrier: affinity difference; hole barrier: valence-band offset
+    ve = barrier(sc_rec.electron_affinity_eV - bottom.electron_affinity_eV,
+                 sc_rec.electron_affinity_eV - top.electron_affinity_eV)
+    vh = barrier(bottom.electron_affinity_eV + bottom.bandgap_eV - sc_rec.electron_affinity_eV - eg,
+                 top.electron_affinity_eV + top.bandgap_eV - sc_rec.electron_affinity_eV - eg)
+    m_bar = barrier(bottom.tunnelling_mass, top.tunnelling_mass)
+    alpha = np.where(body, sc_rec.nonparabolicity_per_eV, 0.0)
+
+    def states(v, m_well, n, labels, kind, inplane, a=0.0):
+        mass = np.where(body, m_well, m_bar)
+        sb = solve_subbands(y, v, mass, n_states=n, nonparabolicity_per_eV=a)
+        return [Subband(f"{labels}{i + 1}", kind, float(sb.energies_eV[i]), inplane,
+                        y + y0, sb.wavefunctions[i] ** 2) for i in range(n)]
+
+    cond = states(ve, sc_rec.electron_mass, N_CONDUCTION, "C", "conduction",
+                  sc_rec.electron_mass, alpha)
+    hh = states(vh, sc_rec.heavy_hole_mass_confined, N_HEAVY, "HH", "valence",
+                sc_rec.heavy_hole_mass_inplane)
+    lh = states(vh, sc_rec.light_hole_mass_confined, N_LIGHT, "LH", "valence",
+                sc_rec.light_hole_mass_inplane)
+    val = sorted(hh + lh, key=lambda s: s.energy_eV)
+    return DeviceSubbands(conduction=tuple(cond), valence=tuple(val))

@@ -1,0 +1,167 @@
+"""Ballistic Landauer current: band-to-band tunnelling plus thermionic emission.
+
+Per unit width (transverse wave-vector k conserved, spin in the factor 2; Datta,
+Electronic Transport in Mesoscopic Systems, 1995, ch. 2 — from memory):
+
+    I/W = (2q/h) sum_pairs int dk/2pi int dE T(E, k) [f_s(E) - f_d(E)]            (1)
+
+Band-to-band part: for each (valence subband m, conduction subband n) pair, the
+transverse kinetic energy raises the conduction edge by hbar^2 k^2 / 2 m_n and lowers
+the valence edge by hbar^2 k^2 / 2 m_m, widening the gap the electron sees; an energy
+carries current when it lies below the valence edge at the source end and above the
+conduction edge at the drain end, with T = exp(-2 int kappa dx) through every in-gap
+stretch between (`physics.tunneling`).
+
+Thermionic part (T = 1 above the barrier): electrons over the highest point of each
+conduction subband, holes under the lowest point of each valence subband. With the
+transverse integral done analytically (int du F_0(eta - u^2) = sqrt(pi) F_1/2(eta)):
+
+    I_n/W = (2q/h) kT sqrt(2 m kT)/(2 sqrt(pi) hbar) [F_1/2(eta_s) - F_1/2(eta_d)]    (2)
+
+with eta = (E_F - E_top)/kT for electrons and (E_bottom - E_F)/kT with the roles of
+source and drain exchanged for holes. Currents are in uA/um (= A/m), positive when
+electrons flow from source to drain (V_d > 0), and exactly zero when f_s = f_d.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.constants as sc
+
+from physics.statistics import fermi_half
+from physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent
+
+G0_S = 2 * sc.e**2 / sc.h  # conductance quantum 2e^2/h [S]
+N_K = 10  # Gauss-Legendre nodes of the transverse-k integral
+N_E = 90  # energies of the spectral current
+
+
+def fermi(energy_eV: np.ndarray, fermi_level_eV: float, kT_eV: float) -> np.ndarray:
+    """Fermi–Dirac occupation [-]."""
+    return 0.5 * (1.0 - np.tanh(0.5 * (np.asarray(energy_eV) - fermi_level_eV) / kT_eV))
+
+
+@dataclass(frozen=True)
+class BandProfile:
+    """One subband edge along x. edge_eV : (nx,) [eV]; mass : in-plane mass [m0]."""
+
+    label: str
+    edge_eV: np.ndarray
+    mass: float
+
+
+@dataclass(frozen=True)
+class Spectrum:
+    """Band-to-band spectral current.
+
+    energy_eV : (nE,) [eV]; current_density : (nE,) J(E) [uA/um per eV];
+    transmission : (nE,) T(E, k=0) of the dominant pair [-]; current_uA_per_um : total.
+    """
+
+    energy_eV: np.ndarray
+    current_density: np.ndarray
+    transmission: np.ndarray
+    current_uA_per_um: float
+
+
+def thermionic_current(
+    profiles: list[BandProfile], kind: str, efs_eV: float, efd_eV: float, kT_eV: float
+) -> float:
+    """Over-the-barrier current of a set of subbands, eq. (2) [uA/um]."""
+    total = 0.0
+    for prof in profiles:
+        m = prof.mass * sc.m_e
+        kT = kT_eV * sc.e
+        pref = 2 * sc.e / sc.h * kT * np.sqrt(2 * m * kT) / (2 * np.sqrt(np.pi) * sc.hbar)
+        if kind == "conduction":
+            top = float(np.max(prof.edge_eV))
+            total += pref * (fermi_half((efs_eV - top) / kT_eV) - fermi_half((efd_eV - top) / kT_eV))
+        else:
+            bottom = float(np.min(prof.edge_eV))
+            total += pref * (fermi_half((bottom - efd_eV) / kT_eV)
+                             - fermi_half((bottom - efs_eV) / kT_eV))
+    return float(total)
+
+
+def energy_grid(
+    conduction: list[BandProfile], valence: list[BandProfile], efs_eV: float, efd_eV: float,
+    kT_eV: float, n: int = N_E,
+) -> np.ndarray | None:
+    """Energies where band-to-band current can flow: below the source valence edge,
+    above the drain conduction edge, inside the Fermi window widened by 12 kT [eV].
+    None when that range is empty."""
+    e_hi = min(max(p.edge_eV[0] for p in valence), max(efs_eV, efd_eV) + 12 * kT_eV)
+    e_lo = max(min(p.edge_eV[-1] for p in conduction), min(efs_eV, efd_eV) - 12 * kT_eV)
+    if e_hi <= e_lo:
+        return None
+    return np.linspace(e_lo, e_hi, n)
+
+
+def band_to_band(
+    x_nm: np.ndarray, conduction: list[BandProfile], valence: list[BandProfile],
+    efs_eV: float, efd_eV: float, kT_eV: float, model: str = "two-band",
+    energies_eV: np.ndarray | None = None,
+) -> Spectrum:
+    """Band-to-band spectral current and total, eq. (1) [uA/um].
+
+    Parameters
+    ----------
+    x_nm : (nx,) path along transport [nm]; conduction, valence : subband profiles;
+    efs_eV, efd_eV : source and drain Fermi levels [eV]; kT_eV : thermal energy [eV];
+    model : imaginary wave-vector model ("two-band" or "one-band");
+    energies_eV : energy grid (default: `energy_grid`).
+    """
+    e = energy_grid(conduction, valence, efs_eV, efd_eV, kT_eV) if energies_eV is None \
+        else np.asarray(energies_eV, float)
+    if e is None:
+        e0 = np.linspace(min(efs_eV, efd_eV) - 0.05, max(efs_eV, efd_eV) + 0.05, 3)
+        return Spectrum(e0, np.zeros(3), np.zeros(3), 0.0)
+    occupancy = fermi(e, efs_eV, kT_eV) - fermi(e, efd_eV, kT_eV)
+    if efs_eV == efd_eV:
+        occupancy = np.zeros_like(e)
+    density = np.zeros_like(e)
+    t_best = np.zeros_like(e)
+    for vb in valence:
+        for cb in conduction:
+            m_r = cb.mass * vb.mass / (cb.mass + vb.mass)
+            m_t = 2 * m_r if model == "two-band" else cb.mass
+            overlap = vb.edge_eV[0] - cb.edge_eV[-1]
+            if overlap <= 0:
+                continue
+            # transverse kinetic energy closes the source-valence/drain-conduction overlap
+            a, b = HBAR2_2M0_EV_NM2 / cb.mass, HBAR2_2M0_EV_NM2 / vb.mass
+            k_max = np.sqrt(overlap / (a + b))
+            xg, wg = np.polynomial.legendre.leggauss(N_K)
+            k = 0.5 * k_max * (xg + 1)
+            wk = 0.5 * k_max * wg
+            ec_k = cb.edge_eV[None, :] + a * k[:, None] ** 2
+            ev_k = vb.edge_eV[None, :] - b * k[:, None] ** 2
+            expo = wkb_exponent(x_nm, ec_k, ev_k, e, m_t, model)  # (nk, nE)
+            connected = (e[None, :] < ev_k[:, :1]) & (e[None, :] > ec_k[:, -1:])
+            trans = np.where(connected, np.exp(-expo), 0.0)
+            # int dk/2pi over all k = (1/pi) int_0^inf dk ; k in 1/nm -> 1/m
+            density += (wk[:, None] * trans).sum(axis=0) / np.pi * 1e9
+            t_best = np.maximum(t_best, trans[0])
+    # (2q/h) * (q * 1 eV) per eV of energy -> A/m per eV = uA/um per eV
+    density = G0_S * density * occupancy
+    current = float(np.trapezoid(density, e)) if efs_eV != efd_eV else 0.0
+    return Spectrum(e, density, t_best, current)
+
+
+def tunnel_window(
+    x_nm: np.ndarray, conduction_eV: np.ndarray, valence_eV: np.ndarray,
+    channel: tuple[float, float], source_end_nm: float, efs_eV: float, efd_eV: float,
+) -> tuple[float, float] | None:
+    """Energy range where filled source valence states face empty channel conduction
+    states, inside the Fermi window [eV]; None when closed.
+
+    e_max = min(highest valence edge in the source, the upper Fermi level);
+    e_min = max(lowest conduction edge in the channel, the lower Fermi level).
+    """
+    src = x_nm <= source_end_nm
+    ch = (x_nm >= channel[0]) & (x_nm <= channel[1])
+    e_max = min(float(np.max(valence_eV[src])), max(efs_eV, efd_eV))
+    e_min = max(float(np.min(conduction_eV[ch])), min(efs_eV, efd_eV))
+    return (e_min, e_max) if e_max > e_min else None
