@@ -1,2 +1,14 @@
 """sub60 physics: electrostatics, confinement, band-to-band tunnelling and current of
-thin-body tunnel FETs and their MOSFET twins. Pure numpy/scipy; no UI imports."""
+thin-body tunnel FETs and their MOSFET twins. Pure numpy/scipy; no UI imports.
+
+The banded LAPACK solvers used by the Poisson Newton loop are small (bandwidth ~25)
+and run slower and erratically with several BLAS threads on two cores, so the BLAS
+thread pool is limited to one thread when this package is imported.
+"""
+
+try:
+    from threadpoolctl import threadpool_limits
+
+    threadpool_limits(limits=1, user_api="blas")
+except ImportError:  # pragma: no cover - threadpoolctl is a declared dependency
+    pass

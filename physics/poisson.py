@@ -37,9 +37,9 @@ import scipy.sparse as sp
 from physics.mesh import Mesh
 from physics.statistics import fermi_half, fermi_minus_half
 
-# q / eps0 with lengths in nm and densities in cm^-3: [V nm^2 per (cm^-3 nm^-3 ...)]
-# charge term of the residual = QE * (control area [nm^2]) * density [cm^-3]  -> [V]
-QE_V_NM2_CM3 = sc.e / sc.epsilon_0 * 1e9 * 1e-21 * 1e-9  # e/eps0 [V m] -> [V nm], cm^-3 -> nm^-3
+# charge term of the residual = QE * (control area [nm^2]) * density [cm^-3] -> [V]:
+# q/eps0 [V m] -> [V nm] (x 1e9), and cm^-3 -> nm^-3 (x 1e-21)
+QE_V_NM2_CM3 = sc.e / sc.epsilon_0 * 1e9 * 1e-21
 
 
 class SolverError(RuntimeError):

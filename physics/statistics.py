@@ -106,7 +106,7 @@ class _FermiIntegral:
         self.sommerfeld_prefactor = 1.0 / gamma(order + 2.0)
 
     def _sommerfeld(self, eta: np.ndarray) -> np.ndarray:
-        w = 1.0 / (eta * eta)
+        w = (1.0 / eta) ** 2
         total = np.full_like(eta, self.sommerfeld[-1])
         for coefficient in self.sommerfeld[-2::-1]:
             total = coefficient + w * total
@@ -135,13 +135,13 @@ class _TablePosition:
     def __init__(self, eta: np.ndarray) -> None:
         self.eta = eta
         # fmax/fmin drop NaN, so the index is always valid; NaN survives in `below`.
-        at_least_low = np.fmax(eta, _ETA_LOW)
-        position = np.fmin(at_least_low, _ETA_HIGH)
+        position = np.fmin(np.fmax(eta, _ETA_LOW), _ETA_HIGH)
         position -= _ETA_LOW
         position *= _STEPS_PER_UNIT
         self.index = position.astype(np.intp)
         self.local = position - self.index
-        self.below = eta - at_least_low  # eta - _ETA_LOW below the table, 0 above, NaN
+        # eta - _ETA_LOW below the table, 0 inside and above it, NaN for NaN:
+        self.below = np.minimum(eta - _ETA_LOW, 0.0)
         self.high = eta > _ETA_HIGH
 
 
@@ -248,7 +248,8 @@ def fermi_zero(eta: ArrayLike) -> FloatOrArray:
         F_0(eta) [-]; float64 array of the shape of `eta`, a float for a scalar.
     """
     x = np.asarray(eta, dtype=float)
-    out = np.logaddexp(0.0, x)
+    with np.errstate(invalid="ignore"):  # NaN in, NaN out, without a warning
+        out = np.logaddexp(0.0, x)
     return float(out) if x.ndim == 0 else out
 
 
@@ -287,11 +288,12 @@ def inverse_fermi_half(u: ArrayLike) -> FloatOrArray:
         if any element of `u` is <= 0, NaN or infinite.
     """
     x = np.asarray(u, dtype=float)
-    if not np.all(np.isfinite(x) & (x > 0.0)):
+    bad = ~(np.isfinite(x) & (x > 0.0))
+    if bad.any():
+        first_bad = float(x[bad].flat[0]) if x.ndim else float(x)
         raise ValueError(
-            "inverse_fermi_half: u must be finite and > 0 (it is n/Nc); "
-            f"got minimum {np.nanmin(x) if x.size else x!r}"
-            + (" and NaN" if np.isnan(x).any() else "")
+            "inverse_fermi_half: u = F_1/2(eta) (e.g. n/Nc) must be finite and > 0; "
+            f"got {first_bad!r} ({int(bad.sum())} bad value(s))"
         )
     x, scalar = _as_array(x)
     small = x < _JOYCE_DIXON_MAX
@@ -299,7 +301,7 @@ def inverse_fermi_half(u: ArrayLike) -> FloatOrArray:
     a1, a2, a3, a4 = _JOYCE_DIXON
     joyce_dixon = np.log(np.where(small, x, 1.0)) + xs * (a1 + xs * (a2 + xs * (a3 + xs * a4)))
     y = (0.75 * math.sqrt(math.pi) * np.where(small, _JOYCE_DIXON_MAX, x)) ** (2.0 / 3.0)
-    sommerfeld = np.sqrt(y * y - math.pi**2 / 6.0)
+    sommerfeld = y * np.sqrt(1.0 - (math.pi**2 / 6.0) * (1.0 / y) ** 2)
     eta = np.where(small, joyce_dixon, sommerfeld)
 
     refine = x >= _NEWTON_MIN

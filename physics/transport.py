@@ -31,7 +31,7 @@ import numpy as np
 import scipy.constants as sc
 
 from physics.statistics import fermi_half
-from physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent
+from physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent_fast
 
 G0_S = 2 * sc.e**2 / sc.h  # conductance quantum 2e^2/h [S]
 N_K = 10  # Gauss-Legendre nodes of the transverse-k integral
@@ -138,7 +138,7 @@ def band_to_band(
             wk = 0.5 * k_max * wg
             ec_k = cb.edge_eV[None, :] + a * k[:, None] ** 2
             ev_k = vb.edge_eV[None, :] - b * k[:, None] ** 2
-            expo = wkb_exponent(x_nm, ec_k, ev_k, e, m_t, model)  # (nk, nE)
+            expo = wkb_exponent_fast(x_nm, ec_k, ev_k, e, m_t, model)  # (nk, nE)
             connected = (e[None, :] < ev_k[:, :1]) & (e[None, :] > ec_k[:, -1:])
             trans = np.where(connected, np.exp(-expo), 0.0)
             # int dk/2pi over all k = (1/pi) int_0^inf dk ; k in 1/nm -> 1/m
