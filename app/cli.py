@@ -235,7 +235,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     common(sub.add_parser("bands", help="band diagram at one bias"), "0.3", "0.3")
     t = sub.add_parser("transfer", help="transfer curve Id-Vg with figures of merit")
-    common(t, "-0.2:0.6:41", "0.3")
+    common(t, "-0.3:0.6:46", "0.3")
     t.add_argument("--twin", action="store_true", help="also the n+ source MOSFET twin")
     t.add_argument("--ioff", type=float, default=1e-3, help="Ioff target [uA/um]")
     t.add_argument("--vdd", type=float, default=0.3, help="supply for Ion = Id(Voff + Vdd) [V]")

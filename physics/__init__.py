@@ -6,6 +6,8 @@ and run slower and erratically with several BLAS threads on two cores, so the BL
 thread pool is limited to one thread when this package is imported.
 """
 
+import scipy.linalg  # noqa: F401  (load every BLAS library before limiting them)
+
 try:
     from threadpoolctl import threadpool_limits
 

@@ -132,7 +132,7 @@ class Design:
     source_type: str = "p"
     source_doping_cm3: float = 4e19
     channel_doping_cm3: float = 1e15
-    drain_doping_cm3: float = 2e18
+    drain_doping_cm3: float = 5e17
     doping_gradient_nm_per_dec: float = 1.0
     body_thickness_nm: float = 7.0
     gate_length_nm: float = 30.0
@@ -141,7 +141,7 @@ class Design:
     oxide_thickness_nm: float = 2.0
     oxide: str = "HfO2"
     oxide_permittivity: float | None = None
-    gate_workfunction_eV: float = 4.8
+    gate_workfunction_eV: float = 4.9
     gate_layout: str = "double"
     buried_oxide_thickness_nm: float = 10.0
     gate_source_offset_nm: float = 0.0

@@ -8,6 +8,7 @@ functions use a shared default one. Separate sessions should own separate simula
 
 from __future__ import annotations
 
+import dataclasses
 import threading
 import time
 from collections import OrderedDict
@@ -203,13 +204,11 @@ class Simulator:
     ) -> TransferCurve:
         """Id-Vg at fixed V_d with continuation along V_g, and its figures of merit."""
         vg = np.asarray(vg_V, float)
-        points = []
-        prev = None
+        points: list[BiasPoint] = []
         for i, v in enumerate(vg):
             if cancelled is not None and cancelled():
                 raise InterruptedError("transfer curve superseded")
-            bp = self.solve_bias(design, float(v), vd_V, initial=prev)
-            prev = bp.electrostatics
+            bp = self.solve_bias(design, float(v), vd_V, initial=_predict(points, float(v), "vg_V"))
             points.append(bp)
             if progress is not None:
                 progress(i + 1, vg.size)
@@ -223,13 +222,30 @@ class Simulator:
     def output_curve(self, design: Design, vg_V: float, vd_V: np.ndarray) -> OutputCurve:
         """Id-Vd at fixed V_g with continuation along V_d."""
         vd = np.asarray(vd_V, float)
-        prev = None
-        out = []
+        points: list[BiasPoint] = []
         for v in vd:
-            bp = self.solve_bias(design, vg_V, float(v), initial=prev)
-            prev = bp.electrostatics
-            out.append(bp.current_uA_per_um)
+            points.append(self.solve_bias(design, vg_V, float(v),
+                                          initial=_predict(points, float(v), "vd_V")))
+        out = [p.current_uA_per_um for p in points]
         return OutputCurve(design, float(vg_V), vd, np.array(out))
+
+
+def _predict(points: list[BiasPoint], v: float, terminal: str) -> Electrostatics | None:
+    """Warm start for the next point of a sweep: the last solution, or a linear
+    (secant) extrapolation of the last two potentials along the swept terminal."""
+    if not points:
+        return None
+    last = points[-1].electrostatics
+    if len(points) < 2:
+        return last
+    prev = points[-2].electrostatics
+    dv = getattr(last, terminal) - getattr(prev, terminal)
+    if dv == 0:
+        return last
+    f = (v - getattr(last, terminal)) / dv
+    if not 0 < f <= 2:
+        return last
+    return dataclasses.replace(last, psi_V=last.psi_V + f * (last.psi_V - prev.psi_V))
 
 
 _default = Simulator()

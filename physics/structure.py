@@ -15,12 +15,13 @@ outer surface has zero normal field.
 Quasi-Fermi levels (reverse-biased p-i-n convention): in the tunnel FET holes carry
 the source Fermi level (0) and electrons the drain's (-q V_d) everywhere; in the MOSFET
 twin electrons take the source level up to the top of the channel barrier and the
-drain level beyond it, and holes follow the electrons.
+drain level beyond it; holes keep the source level in both (a body held at the
+source potential: a floating-body hole build-up is not modelled).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import lru_cache
 
 import numpy as np
@@ -122,6 +123,7 @@ class DeviceFrame:
     contact_nodes: np.ndarray  # (nx, ny) bool, source end then drain end
     operator: PoissonOperator
     body_j: int  # index of the body mid-plane row
+    contact_cache: dict = field(default_factory=dict, compare=False)  # V_d -> end potentials
 
     @property
     def dirichlet(self) -> np.ndarray:
@@ -186,7 +188,7 @@ def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProb
     else:
         # electrons from the source up to the barrier top in the gated channel
         efn = np.where(x <= d.source_junction_nm, efs, efd)
-        efp = efn.copy()
+        efp = np.full(x.shape, efs)
         split = (efs, efd, d.source_junction_nm - 2.0, d.drain_junction_nm + 2.0)
     values = np.zeros((mesh.nx, mesh.ny))
     values[frame.gate_nodes] = vg_V - d.gate_workfunction_eV
@@ -196,13 +198,22 @@ def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProb
     if d.source_type == "p":
         efn_end, efp_end = np.array([efd, efd]), np.array([efs, efs])
     else:
-        efn_end = efp_end = np.array([efs, efd])
-    psi_end = neutral_potential(frame.bands, net[ends], efn_end, efp_end)
+        efn_end, efp_end = np.array([efs, efd]), np.array([efs, efs])
+    psi_end = _contact_potentials(frame, round(vd_V, 12), net[ends], efn_end, efp_end)
     values[0, :] = np.where(frame.contact_nodes[0], psi_end[0], values[0, :])
     values[-1, :] = np.where(frame.contact_nodes[-1], psi_end[1], values[-1, :])
     return PoissonProblem(mesh=mesh, donors_cm3=frame.donors_cm3, acceptors_cm3=frame.acceptors_cm3,
                           bands=frame.bands, dirichlet=frame.dirichlet, dirichlet_psi_V=values,
                           efn_eV=efn, efp_eV=efp, split_efn=split)
+
+
+def _contact_potentials(frame: DeviceFrame, vd_key: float, net, efn, efp) -> np.ndarray:
+    cache = frame.contact_cache
+    if vd_key not in cache:
+        if len(cache) > 256:
+            cache.clear()
+        cache[vd_key] = neutral_potential(frame.bands, net, efn, efp)
+    return cache[vd_key]
 
 
 def initial_guess(frame: DeviceFrame, problem: PoissonProblem) -> np.ndarray:

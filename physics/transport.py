@@ -36,6 +36,7 @@ from physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent_fast
 G0_S = 2 * sc.e**2 / sc.h  # conductance quantum 2e^2/h [S]
 N_K = 10  # Gauss-Legendre nodes of the transverse-k integral
 N_E = 90  # energies of the spectral current
+_GL_K = np.polynomial.legendre.leggauss(N_K)
 
 
 def fermi(energy_eV: np.ndarray, fermi_level_eV: float, kT_eV: float) -> np.ndarray:
@@ -133,14 +134,14 @@ def band_to_band(
             # transverse kinetic energy closes the source-valence/drain-conduction overlap
             a, b = HBAR2_2M0_EV_NM2 / cb.mass, HBAR2_2M0_EV_NM2 / vb.mass
             k_max = np.sqrt(overlap / (a + b))
-            xg, wg = np.polynomial.legendre.leggauss(N_K)
+            xg, wg = _GL_K
             k = 0.5 * k_max * (xg + 1)
             wk = 0.5 * k_max * wg
             ec_k = cb.edge_eV[None, :] + a * k[:, None] ** 2
             ev_k = vb.edge_eV[None, :] - b * k[:, None] ** 2
-            expo = wkb_exponent_fast(x_nm, ec_k, ev_k, e, m_t, model)  # (nk, nE)
-            connected = (e[None, :] < ev_k[:, :1]) & (e[None, :] > ec_k[:, -1:])
-            trans = np.where(connected, np.exp(-expo), 0.0)
+            # (nk, nE); +inf where no source-valence -> drain-conduction path exists
+            expo = wkb_exponent_fast(x_nm, ec_k, ev_k, e, m_t, model, connected_only=True)
+            trans = np.exp(-expo)
             # int dk/2pi over all k = (1/pi) int_0^inf dk ; k in 1/nm -> 1/m
             density += (wk[:, None] * trans).sum(axis=0) / np.pi * 1e9
             t_best = np.maximum(t_best, trans[0])

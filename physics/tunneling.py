@@ -112,7 +112,7 @@ except ImportError:  # pragma: no cover - numba is a declared dependency
 if _nb is not None:
 
     @_nb.njit(cache=True, fastmath=False)
-    def _wkb_kernel(x, ec, ev, energies, mass_rel, two_band, gl_x, gl_w):  # pragma: no cover
+    def _wkb_kernel(x, ec, ev, energies, mass_rel, two_band, gl_x, gl_w, connected_only):  # pragma: no cover
         nk, nx = ec.shape
         ne = energies.size
         out = np.zeros((nk, ne))
@@ -120,6 +120,9 @@ if _nb is not None:
         for kk in range(nk):
             for ie in range(ne):
                 e = energies[ie]
+                if connected_only and (e >= ev[kk, 0] or e <= ec[kk, nx - 1]):
+                    out[kk, ie] = np.inf  # no path from source valence to drain conduction
+                    continue
                 acc = 0.0
                 for i in range(nx - 1):
                     c0, c1 = ec[kk, i] - e, ec[kk, i + 1] - e
@@ -158,15 +161,23 @@ if _nb is not None:
 
 def wkb_exponent_fast(
     x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray, energy_eV: np.ndarray,
-    mass_rel: float, model: str = "two-band",
+    mass_rel: float, model: str = "two-band", connected_only: bool = False,
 ) -> np.ndarray:
-    """Same as `wkb_exponent` for (nk, nx) edge arrays, compiled (numba) when available."""
+    """Same as `wkb_exponent` for (nk, nx) edge arrays, compiled (numba) when available.
+
+    With ``connected_only`` the exponent is +inf (T = 0) for energies that do not lie
+    below the valence edge at the path's start and above the conduction edge at its end.
+    """
     if model not in MODELS:
         raise ValueError(f"tunnelling model: {model!r} unknown; allowed {MODELS}")
     ec = np.atleast_2d(np.asarray(ec_eV, float))
     ev = np.atleast_2d(np.asarray(ev_eV, float))
     if _nb is None:
-        return wkb_exponent(x_nm, ec, ev, energy_eV, mass_rel, model)
+        out = wkb_exponent(x_nm, ec, ev, energy_eV, mass_rel, model)
+        if connected_only:
+            e = np.asarray(energy_eV, float)[None, :]
+            out = np.where((e < ev[:, :1]) & (e > ec[:, -1:]), out, np.inf)
+        return out
     return _wkb_kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
                        np.ascontiguousarray(ev), np.ascontiguousarray(energy_eV, float),
-                       float(mass_rel), model == "two-band", _GL_X, _GL_W)
+                       float(mass_rel), model == "two-band", _GL_X, _GL_W, bool(connected_only))

@@ -1,0 +1,274 @@
+"""The settings of one explorer session: typed, bounded, documented parameters.
+
+`ExplorerState` holds every knob of the page. Its design parameters mirror the fields of
+`physics.design.Design` with the same bounds (`FIELD_RANGES`); dopings are held as
+log10 of their magnitude so that their sliders move in decades. `design()` turns the
+settings into a validated `Design` (or raises the design's own `ValueError`), and the
+sweep helpers give the voltages of the transfer and output curves.
+
+The widgets of the page are made from these parameters (`app.layout`), so the two stay
+linked both ways; nothing here imports Panel or Bokeh.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+import numpy as np
+import param
+
+from physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design
+from physics.materials import DIELECTRICS, SEMICONDUCTORS
+
+_DEFAULT = Design()
+
+#: Lowest channel-doping magnitude offered [cm^-3]; below it the channel is intrinsic
+#: for every material here (engineering choice, no source).
+CHANNEL_DOPING_FLOOR_CM3 = 1e10
+
+
+def _bounds(field: str) -> tuple[float, float]:
+    spec = FIELD_RANGES[field]
+    return float(spec.low), float(spec.high)
+
+
+def _log_bounds(field: str, low: float | None = None) -> tuple[float, float]:
+    lo, hi = _bounds(field)
+    return math.log10(low if low is not None else lo), math.log10(hi)
+
+
+def _sig(value: float, digits: int = 4) -> float:
+    """Round to significant digits, so 10**log10(4e19) gives back exactly 4e19."""
+    return float(f"{value:.{digits - 1}e}")
+
+
+#: Settings whose change alters the device (and so every curve).
+DESIGN_PARAMETERS: tuple[str, ...] = (
+    "material", "temperature_K",
+    "body_thickness_nm", "gate_length_nm", "source_length_nm", "drain_length_nm",
+    "gate_layout", "gate_source_offset_nm", "buried_oxide_thickness_nm",
+    "source_type", "source_doping_log10_cm3", "channel_dopant", "channel_doping_log10_cm3",
+    "drain_doping_log10_cm3", "doping_gradient_nm_per_dec",
+    "oxide", "oxide_thickness_nm", "oxide_permittivity", "gate_workfunction_eV",
+)
+#: Settings of the single bias point (band diagram).
+BIAS_PARAMETERS: tuple[str, ...] = ("vg_V", "vd_V")
+#: Settings of the transfer-curve sweep and of its figures of merit.
+SWEEP_PARAMETERS: tuple[str, ...] = ("vg_sweep_V", "vg_points", "vdd_V", "ioff_log10_uA_per_um")
+#: Every setting that changes a result.
+COMPUTED_PARAMETERS: tuple[str, ...] = DESIGN_PARAMETERS + BIAS_PARAMETERS + SWEEP_PARAMETERS
+
+#: Output curves: gate voltages below the present one and their spacing [V].
+OUTPUT_CURVES = 4
+OUTPUT_VG_STEP_V = 0.1
+OUTPUT_VD_POINTS = 13
+
+
+class ExplorerState(param.Parameterized):
+    """All settings of one explorer session (units in the names and labels)."""
+
+    # ---------------------------------------------------------------- material, temperature
+    material = param.Selector(
+        default=_DEFAULT.material, objects=list(SEMICONDUCTORS), label="Semiconductor",
+        doc="Body semiconductor (a record of physics.materials).")
+    temperature_K = param.Number(
+        default=_DEFAULT.temperature_K, bounds=_bounds("temperature_K"), step=1.0,
+        label="Temperature (K)", doc="Lattice temperature [K].")
+
+    # ---------------------------------------------------------------- structure
+    body_thickness_nm = param.Number(
+        default=_DEFAULT.body_thickness_nm, bounds=_bounds("body_thickness_nm"), step=0.1,
+        label="Body thickness (nm)", doc="Semiconductor body thickness [nm].")
+    gate_length_nm = param.Number(
+        default=_DEFAULT.gate_length_nm, bounds=_bounds("gate_length_nm"), step=1.0,
+        label="Gate length (nm)", doc="Channel length between the junctions [nm].")
+    source_length_nm = param.Number(
+        default=_DEFAULT.source_length_nm, bounds=_bounds("source_length_nm"), step=1.0,
+        label="Source length (nm)", doc="Length of the source region [nm].")
+    drain_length_nm = param.Number(
+        default=_DEFAULT.drain_length_nm, bounds=_bounds("drain_length_nm"), step=1.0,
+        label="Drain length (nm)", doc="Length of the drain region [nm].")
+    gate_layout = param.Selector(
+        default=_DEFAULT.gate_layout,
+        objects={"Double gate": "double", "Single gate on buried oxide": "single"},
+        label="Gate layout", doc="Double gate, or a single gate over a buried oxide.")
+    gate_source_offset_nm = param.Number(
+        default=_DEFAULT.gate_source_offset_nm, bounds=_bounds("gate_source_offset_nm"),
+        step=0.5, label="Gate–source overlap, + over source (nm)",
+        doc="Gate extension over the source (+) or ungated underlap (-) [nm].")
+    buried_oxide_thickness_nm = param.Number(
+        default=_DEFAULT.buried_oxide_thickness_nm, bounds=_bounds("buried_oxide_thickness_nm"),
+        step=0.5, label="Buried oxide thickness (nm)",
+        doc="Buried oxide under a single-gate body [nm]; unused with a double gate.")
+
+    # ---------------------------------------------------------------- doping
+    source_type = param.Selector(
+        default=_DEFAULT.source_type,
+        objects={"p+ source: tunnel FET": "p", "n+ source: MOSFET": "n"},
+        label="Source type", doc="p+ source (tunnel FET) or n+ source (MOSFET).")
+    source_doping_log10_cm3 = param.Number(
+        default=math.log10(_DEFAULT.source_doping_cm3),
+        bounds=_log_bounds("source_doping_cm3"), step=0.05, label="Source doping (cm⁻³)",
+        doc="log10 of the source doping magnitude [log10 cm^-3].")
+    channel_dopant = param.Selector(
+        default="n" if _DEFAULT.channel_doping_cm3 >= 0 else "p",
+        objects={"donors (n)": "n", "acceptors (p)": "p"}, label="Channel dopant",
+        doc="Kind of dopant in the channel.")
+    channel_doping_log10_cm3 = param.Number(
+        default=math.log10(max(abs(_DEFAULT.channel_doping_cm3), CHANNEL_DOPING_FLOOR_CM3)),
+        bounds=(math.log10(CHANNEL_DOPING_FLOOR_CM3), math.log10(FIELD_RANGES[
+            "channel_doping_cm3"].high)), step=0.05, label="Channel doping (cm⁻³)",
+        doc="log10 of the channel doping magnitude [log10 cm^-3].")
+    drain_doping_log10_cm3 = param.Number(
+        default=math.log10(_DEFAULT.drain_doping_cm3), bounds=_log_bounds("drain_doping_cm3"),
+        step=0.05, label="Drain doping (cm⁻³)",
+        doc="log10 of the drain donor doping [log10 cm^-3].")
+    doping_gradient_nm_per_dec = param.Number(
+        default=_DEFAULT.doping_gradient_nm_per_dec,
+        bounds=_bounds("doping_gradient_nm_per_dec"), step=0.1,
+        label="Junction abruptness (nm/decade)",
+        doc="Decay of the source and drain dopants into the channel, 0 = abrupt [nm/decade].")
+
+    # ---------------------------------------------------------------- gate stack
+    oxide = param.Selector(
+        default=_DEFAULT.oxide, objects=[*DIELECTRICS, "custom"], label="Gate dielectric",
+        doc="Gate dielectric, or 'custom' with its own permittivity.")
+    oxide_thickness_nm = param.Number(
+        default=_DEFAULT.oxide_thickness_nm, bounds=_bounds("oxide_thickness_nm"), step=0.05,
+        label="Dielectric thickness (nm)", doc="Physical gate-dielectric thickness [nm].")
+    oxide_permittivity = param.Number(
+        default=20.0, bounds=_bounds("oxide_permittivity"), step=0.5,
+        label="Custom relative permittivity (–)",
+        doc="Relative permittivity of a custom dielectric [-]; used only when oxide='custom'.")
+    gate_workfunction_eV = param.Number(
+        default=_DEFAULT.gate_workfunction_eV, bounds=_bounds("gate_workfunction_eV"),
+        step=0.01, label="Gate work function (eV)", doc="Gate metal work function [eV].")
+
+    # ---------------------------------------------------------------- bias and sweeps
+    vg_V = param.Number(default=0.3, bounds=VG_RANGE_V, step=0.01, label="Gate voltage (V)",
+                        doc="Gate voltage of the band diagram [V].")
+    vd_V = param.Number(default=0.3, bounds=VD_RANGE_V, step=0.01, label="Drain voltage (V)",
+                        doc="Drain voltage of the band diagram and of the transfer curves [V].")
+    vg_sweep_V = param.Range(default=(-0.2, 0.6), bounds=VG_RANGE_V,
+                             label="Gate sweep of the transfer curve (V)",
+                             doc="First and last gate voltage of the transfer curves [V].")
+    vg_points = param.Integer(default=41, bounds=(11, 81), label="Points per transfer curve",
+                              doc="Gate voltages of each transfer curve [-].")
+    vdd_V = param.Number(default=0.3, bounds=(0.05, 1.0), step=0.01,
+                         label="Supply Vdd for Ion (V)",
+                         doc="Supply: Ion is Id at Vg = Voff + Vdd [V].")
+    ioff_log10_uA_per_um = param.Number(
+        default=-3.0, bounds=(-8.0, 0.0), step=0.25, label="Ioff target (per µm of width)",
+        doc="log10 of the off-current target that defines Voff [log10 µA/µm].")
+
+    # ---------------------------------------------------------------- display
+    presentation = param.Boolean(default=False, label="Presentation mode",
+                                 doc="Hide the controls and enlarge text and lines.")
+
+    # ------------------------------------------------------------------ conversions
+    def design(self) -> Design:
+        """The validated design of the present settings (ValueError names the field)."""
+        channel = _sig(10.0 ** self.channel_doping_log10_cm3)
+        return Design(
+            material=self.material,
+            source_type=self.source_type,
+            source_doping_cm3=_sig(10.0 ** self.source_doping_log10_cm3),
+            channel_doping_cm3=channel if self.channel_dopant == "n" else -channel,
+            drain_doping_cm3=_sig(10.0 ** self.drain_doping_log10_cm3),
+            doping_gradient_nm_per_dec=self.doping_gradient_nm_per_dec,
+            body_thickness_nm=self.body_thickness_nm,
+            gate_length_nm=self.gate_length_nm,
+            source_length_nm=self.source_length_nm,
+            drain_length_nm=self.drain_length_nm,
+            oxide_thickness_nm=self.oxide_thickness_nm,
+            oxide=self.oxide,
+            oxide_permittivity=self.oxide_permittivity if self.oxide == "custom" else None,
+            gate_workfunction_eV=self.gate_workfunction_eV,
+            gate_layout=self.gate_layout,
+            buried_oxide_thickness_nm=self.buried_oxide_thickness_nm,
+            gate_source_offset_nm=self.gate_source_offset_nm,
+            temperature_K=self.temperature_K,
+        )
+
+    def design_settings(self, design: Design) -> dict[str, Any]:
+        """Parameter values that reproduce a design (inverse of `design`)."""
+        channel = abs(design.channel_doping_cm3)
+        out: dict[str, Any] = {
+            "material": design.material, "source_type": design.source_type,
+            "source_doping_log10_cm3": math.log10(design.source_doping_cm3),
+            "channel_dopant": "p" if design.channel_doping_cm3 < 0 else "n",
+            "channel_doping_log10_cm3": math.log10(max(channel, CHANNEL_DOPING_FLOOR_CM3)),
+            "drain_doping_log10_cm3": math.log10(design.drain_doping_cm3),
+        }
+        for name in ("doping_gradient_nm_per_dec", "body_thickness_nm", "gate_length_nm",
+                     "source_length_nm", "drain_length_nm", "oxide_thickness_nm", "oxide",
+                     "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
+                     "gate_source_offset_nm", "temperature_K"):
+            out[name] = getattr(design, name)
+        if design.oxide_permittivity is not None:
+            out["oxide_permittivity"] = design.oxide_permittivity
+        return out
+
+    def set_design(self, design: Design) -> None:
+        """Take over every field of a design in one update."""
+        self.param.update(**self.design_settings(design))
+
+    def reset(self) -> None:
+        """Every setting back to its default, in one update."""
+        defaults = {name: p.default for name, p in self.param.objects("existing").items()
+                    if name != "name" and name != "presentation"}
+        self.param.update(**defaults)
+
+    @property
+    def ioff_target_uA_per_um(self) -> float:
+        """Off-current target [uA/um]."""
+        return _sig(10.0 ** self.ioff_log10_uA_per_um)
+
+    def sweep_gate_voltages(self) -> np.ndarray:
+        """Gate voltages of the transfer curves [V]."""
+        lo, hi = self.vg_sweep_V
+        return np.linspace(lo, hi, int(self.vg_points))
+
+    def output_gate_voltages(self) -> np.ndarray:
+        """Gate voltages of the output curves: up to four, ending at the present Vg [V]."""
+        vg = float(self.vg_V)
+        values = [round(vg - k * OUTPUT_VG_STEP_V, 6) for k in range(OUTPUT_CURVES - 1, -1, -1)]
+        return np.array([v for v in values if v >= VG_RANGE_V[0]])
+
+    def output_drain_voltages(self) -> np.ndarray:
+        """Drain voltages of the output curves: 0 to at least 0.6 V, covering Vd [V]."""
+        top = min(VD_RANGE_V[1], max(0.6, math.ceil(float(self.vd_V) * 10 - 1e-9) / 10))
+        return np.linspace(0.0, top, OUTPUT_VD_POINTS)
+
+    def transfer_key(self) -> tuple:
+        """Everything a transfer curve and its metrics depend on (hashable)."""
+        lo, hi = self.vg_sweep_V
+        return (self.design(), float(self.vd_V), float(lo), float(hi), int(self.vg_points),
+                self.ioff_target_uA_per_um, float(self.vdd_V))
+
+    def output_key(self) -> tuple:
+        """Everything the output curves depend on (hashable)."""
+        return (self.design(), tuple(self.output_gate_voltages()),
+                tuple(self.output_drain_voltages()))
+
+
+#: Widget label of each Design field, for messages that name the setting to change.
+FIELD_LABELS: dict[str, str] = {
+    **{name: ExplorerState.param[name].label for name in DESIGN_PARAMETERS
+       if name in FIELD_RANGES},
+    "source_doping_cm3": ExplorerState.param["source_doping_log10_cm3"].label,
+    "channel_doping_cm3": ExplorerState.param["channel_doping_log10_cm3"].label,
+    "drain_doping_cm3": ExplorerState.param["drain_doping_log10_cm3"].label,
+    "vg_V": ExplorerState.param["vg_V"].label,
+    "vd_V": ExplorerState.param["vd_V"].label,
+}
+
+
+def label_of(name: str) -> str:
+    """Widget label of a state parameter or Design field (the name itself if unknown)."""
+    if name in FIELD_LABELS:
+        return FIELD_LABELS[name]
+    if name in ExplorerState.param:
+        return ExplorerState.param[name].label
+    return name
