@@ -290,7 +290,8 @@ def solve_poisson(
         step = float(np.max(np.abs(delta)))
         if not np.isfinite(step):
             raise SolverError("non-finite Newton update", history)
-        t = min(1.0, max_step_V / step) if step > 0 else 1.0
+        # damping cap for the nonlinear problem; the linear (fixed-charge) one is exact in one step
+        t = min(1.0, max_step_V / step) if (step > 0 and problem.carriers) else 1.0
         norm0 = np.linalg.norm(f / diag)
         accepted = False
         for _ in range(12):  # backtracking on the scaled residual norm
