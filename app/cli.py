@@ -60,6 +60,15 @@ def parse_value(text: str) -> Any:
         return text
 
 
+def _warn(design) -> list[str]:
+    from physics.simulate import design_warnings
+
+    notes = list(design_warnings(design))
+    for n in notes:
+        print(f"sub60: warning: {n}", file=sys.stderr)
+    return notes
+
+
 def load_design(path: str | None, overrides: list[str]):
     """Design from a JSON file (or the default) with name=value overrides."""
     from physics.design import Design
@@ -157,7 +166,7 @@ def cmd_bands(a) -> str:
     d = load_design(a.design, a.set)
     bp = _solve(solve_bias, d, _single(parse_sweep(a.vg, "vg"), "vg"),
                 _single(parse_sweep(a.vd, "vd"), "vd"))
-    rec = {"design": d.to_dict(), **bands_record(bp)}
+    rec = {"design": d.to_dict(), **bands_record(bp), "warnings": _warn(d)}
     if a.format == "csv":
         w = rec["window"]
         return _csv(["x_nm", "ec_eV", "ev_eV"], [bp.x_nm, bp.ec_eV, bp.ev_eV],
@@ -176,7 +185,7 @@ def cmd_transfer(a) -> str:
     vd = _single(parse_sweep(a.vd, "vd"), "vd")
     kw = {"ioff_target_uA_per_um": a.ioff, "vdd_V": a.vdd}
     tc = _solve(lambda: transfer_curve(d, vg, vd, **kw))
-    rec = {"design": d.to_dict(), **transfer_record(tc)}
+    rec = {"design": d.to_dict(), **transfer_record(tc), "warnings": _warn(d)}
     twin = None
     if a.twin:
         twin = _solve(lambda: transfer_curve(d.twin(), vg, vd, **kw))

@@ -32,6 +32,7 @@ from bokeh.models import (
     Range1d,
     Span,
 )
+from bokeh.core.properties import value
 from bokeh.plotting import figure
 
 from physics.metrics import thermionic_limit_mV_per_dec
@@ -308,8 +309,9 @@ class ExplorerFigures:
         f.add_layout(self.gate_box)
         self.region_labels = {}
         for key in ("source", "gate", "drain"):
-            lab = Label(x=0, y=6, y_units="screen", text=key, text_font_size="11px",
-                        text_color="#6c757d", text_align="center", name=f"{key}_label")
+            lab = Label(x=0, y=0, text=key, text_font_size="11px", text_baseline="top",
+                        text_color="#5c6670", text_align="center", y_offset=-4,
+                        name=f"{key}_label")
             f.add_layout(lab)
             self.region_labels[key] = lab
         self.window_source = ColumnDataSource(
@@ -337,6 +339,12 @@ class ExplorerFigures:
                              for k, t in (("efs", "E_F source"), ("efd", "E_F drain"))}
         for lab in self.fermi_labels.values():
             f.add_layout(lab)
+        # one legend entry per band family; subband names are in the hover
+        self.band_items = {
+            "c": LegendItem(label=value("conduction subbands"), renderers=[], visible=False),
+            "v": LegendItem(label=value("valence subbands"), renderers=[], visible=False)}
+        leg = f.legend[0]
+        leg.items = [*leg.items, self.band_items["c"], self.band_items["v"]]
         self.band = f
 
     def _band_line(self, label: str, kind: str, rank: int):
@@ -351,9 +359,10 @@ class ExplorerFigures:
                            line_width=width, line_dash=dash, name=f"band_{label}")
         self.band.add_tools(HoverTool(renderers=[r], tooltips=[
             ("subband", label), ("x", "@x_nm{0.0} nm"), ("E", f"@{{{label}}}{{0.000}} eV")]))
-        legend = self.band.legend[0] if self.band.legend else None
-        if legend is not None:
-            legend.items = [*legend.items, LegendItem(label=label, renderers=[r])]
+        item = self.band_items["c" if kind == "c" else "v"]
+        item.renderers = [*item.renderers, r]
+        if not item.visible:
+            item.visible = True
         self._base_widths[r.glyph] = width
         self._band_renderers[label] = r
         if self._presenting:
@@ -372,9 +381,10 @@ class ExplorerFigures:
                     line_width=2)
         s.add_tools(HoverTool(renderers=[jr], tooltips=[
             ("E", "@energy_eV{0.000} eV"), ("J", "@j{0.000e+0} µA/µm/eV")], mode="hline"))
-        self.spectrum_total = Label(x=6, y=6, x_units="screen", y_units="screen", text="",
+        self.spectrum_total = Label(x=4, y=4, x_units="screen", y_units="screen", text="",
                                     text_font_size="11px", text_color=COLOURS["text"],
-                                    name="btbt_total_label")
+                                    name="btbt_total_label", background_fill_color="white",
+                                    background_fill_alpha=0.8)
         s.add_layout(self.spectrum_total)
         t = figure(name="transmission_plot", title="Transmission", y_range=self.energy_range,
                    x_axis_type="log", x_range=Range1d(1e-12, 1.5),
@@ -386,6 +396,8 @@ class ExplorerFigures:
         self.fermi_spans = []
         for fig in (s, t):
             fig.yaxis.major_label_text_font_size = "0px"
+            fig.yaxis.major_tick_line_color = None
+            fig.xaxis.ticker.desired_num_ticks = 3
             fig.min_border_left = 8
             for _ in range(2):
                 span = Span(location=0, dimension="width", line_color=COLOURS["fermi"],
@@ -416,7 +428,7 @@ class ExplorerFigures:
         lim = f.line("vg", "id", source=self.limit_source, line_color=COLOURS["limit"],
                      line_dash="dotted", line_width=2, name="limit_line")
         f.add_tools(HoverTool(renderers=[lim], tooltips=[("", "thermionic limit slope")]))
-        self.limit_item = LegendItem(label="thermionic limit", renderers=[lim])
+        self.limit_item = LegendItem(label=value("thermionic limit"), renderers=[lim])
         self.ioff_span = Span(location=1e-3, dimension="width", line_color="#868e96",
                               line_dash="dashdot", line_width=1)
         f.add_layout(self.ioff_span)
@@ -502,7 +514,7 @@ class ExplorerFigures:
             f.add_tools(HoverTool(renderers=[r], tooltips=[
                 ("Vg", "@vg{0.00} V"), ("Vd", "@vd{0.000} V"), ("Id", "@id{0.000e+0} µA/µm")]))
             self.output_sources.append(src)
-            self.output_items.append(LegendItem(label=" ", renderers=[r], visible=False))
+            self.output_items.append(LegendItem(label=value(" "), renderers=[r], visible=False))
         f.add_layout(Legend(items=self.output_items))
         self.vd_span = Span(location=0.3, dimension="height", line_color=COLOURS["marker"],
                             line_alpha=0.35, line_width=1)
@@ -562,8 +574,10 @@ class ExplorerFigures:
             self.window_closed.text = "tunnel window closed"
         lo = min(float(np.nanmin(data["ev_eV"])), bp.efs_eV, bp.efd_eV)
         hi = max(float(np.nanmax(data["ec_eV"])), bp.efs_eV, bp.efd_eV)
-        pad = 0.08 * (hi - lo) + 0.02
-        self.energy_range.start, self.energy_range.end = lo - pad, hi + pad
+        pad = 0.06 * (hi - lo) + 0.02
+        self.energy_range.start, self.energy_range.end = lo - pad, hi + 2.5 * pad
+        for lab in self.region_labels.values():
+            lab.y = hi + 2.5 * pad
 
         # spectrum
         sp = bp.spectrum
@@ -576,7 +590,7 @@ class ExplorerFigures:
         self.transmission.x_range.end = 1.5
         for span, level in zip(self.fermi_spans, (bp.efs_eV, bp.efd_eV) * 2, strict=True):
             span.location = level
-        self.spectrum_total.text = f"I_BTBT = {format_current(bp.btbt_uA_per_um)}"
+        self.spectrum_total.text = f"BTBT total\n{format_current(bp.btbt_uA_per_um)}"
 
         # 2D map of the conduction-band edge
         es = bp.electrostatics
@@ -625,7 +639,7 @@ class ExplorerFigures:
         the limit on the swing plot, and the Ioff target."""
         limit = thermionic_limit_mV_per_dec(temperature_K)
         text = f"thermionic limit {limit:.1f} mV/dec"
-        self.limit_item.label = text
+        self.limit_item.label = value(text)
         self.swing_limit.location = limit
         self.swing_limit_label.update(y=limit, text=text)
         self.swing.y_range.end = max(200.0, 2.5 * limit)
@@ -648,7 +662,7 @@ class ExplorerFigures:
                 vd = np.asarray(c.vd_V, float)
                 self.output_sources[k].data = {"vd": vd, "id": np.asarray(c.id_uA_per_um, float),
                                                "vg": np.full_like(vd, c.vg_V)}
-                self.output_items[k].label = f"Vg = {c.vg_V:.2f} V"
+                self.output_items[k].label = value(f"Vg = {c.vg_V:.2f} V")
                 self.output_items[k].visible = True
             else:
                 self.output_sources[k].data = {"vd": [], "id": [], "vg": []}

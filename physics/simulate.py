@@ -19,6 +19,7 @@ import numpy as np
 
 from physics.design import Design, check_bias
 from physics.electrostatics import Electrostatics, solve_electrostatics
+from physics.materials import check_tunnelling_material, get_semiconductor
 from physics.metrics import Metrics, figures_of_merit, point_swing_mV_per_dec
 from physics.poisson import SolverError
 from physics.subbands import device_subbands
@@ -49,6 +50,7 @@ class BiasPoint:
     btbt_uA_per_um, electron_thermionic_uA_per_um, hole_thermionic_uA_per_um : parts
     current_uA_per_um : total drain current per width [uA/um]
     timings_s : wall time of each stage [s]
+    warnings : model-validity warnings (e.g. an indirect-gap material)
     """
 
     design: Design
@@ -68,6 +70,7 @@ class BiasPoint:
     electron_thermionic_uA_per_um: float
     hole_thermionic_uA_per_um: float
     timings_s: dict[str, float] = field(default_factory=dict)
+    warnings: tuple[str, ...] = ()
 
     @property
     def ec_eV(self) -> np.ndarray:
@@ -135,7 +138,13 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         efs_eV=efs, efd_eV=efd, window_eV=window, spectrum=spectrum,
         btbt_uA_per_um=spectrum.current_uA_per_um,
         electron_thermionic_uA_per_um=i_n, hole_thermionic_uA_per_um=i_p,
-        timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1})
+        timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1}, warnings=design_warnings(d))
+
+
+def design_warnings(design: Design) -> tuple[str, ...]:
+    """Warnings about the model's validity for a design (empty when none)."""
+    text = check_tunnelling_material(get_semiconductor(design.material))
+    return (text,) if text else ()
 
 
 class Simulator:
