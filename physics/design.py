@@ -14,6 +14,9 @@ Geometry (x along transport, y across the body)::
 
 The gate spans from ``source_length_nm - gate_source_offset_nm`` to the drain junction:
 a positive offset overlaps the source, a negative one leaves an ungated gap (underlap).
+Combination rules: at least 2 nm of gate must remain (gate_length_nm +
+gate_source_offset_nm >= 2) and the gate must start at least 1 nm inside the source
+(source_length_nm - gate_source_offset_nm >= 1).
 """
 
 from __future__ import annotations
@@ -156,6 +159,17 @@ class Design:
                                      f"allowed {FIELD_RANGES['oxide_permittivity'].describe()}")
                 continue
             object.__setattr__(self, f.name, _check(f.name, value))
+        # combinations: the gate must exist and start inside the device
+        if self.gate_length_nm + self.gate_source_offset_nm < 2.0:
+            raise ValueError(
+                f"gate_source_offset_nm: an underlap of {-self.gate_source_offset_nm:g} nm leaves "
+                f"less than 2 nm of gate (gate_length_nm = {self.gate_length_nm:g} nm); "
+                "gate_length_nm + gate_source_offset_nm must be at least 2 nm")
+        if self.source_length_nm - self.gate_source_offset_nm < 1.0:
+            raise ValueError(
+                f"gate_source_offset_nm: an overlap of {self.gate_source_offset_nm:g} nm reaches past "
+                f"the source contact (source_length_nm = {self.source_length_nm:g} nm); "
+                "source_length_nm - gate_source_offset_nm must be at least 1 nm")
 
     # ------------------------------------------------------------------ geometry
     @property

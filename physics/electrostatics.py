@@ -61,6 +61,7 @@ def solve_electrostatics(
     resolution: float = 1.0,
     quantum_correction: bool = True,
     max_iter: int = 60,
+    max_step_V: float = 1.0,
 ) -> Electrostatics:
     """Solve the nonlinear 2D Poisson equation of a design at one bias point.
 
@@ -72,6 +73,7 @@ def solve_electrostatics(
     resolution : grid refinement factor (1 = default spacing) [-]
     quantum_correction : shift the charge's band edges by the lowest subband energies
     max_iter : Newton steps allowed
+    max_step_V : cap on one Newton update (damping) [V]
 
     Raises
     ------
@@ -88,7 +90,7 @@ def solve_electrostatics(
     else:
         start = initial_guess(frame, problem)
     try:
-        sol = solve_poisson(problem, start, frame.operator, max_iter=max_iter)
+        sol = solve_poisson(problem, start, frame.operator, max_iter=max_iter, max_step_V=max_step_V)
     except SolverError as exc:
         raise SolverError(f"electrostatics at Vg = {vg_V:g} V, Vd = {vd_V:g} V: {exc}",
                           exc.history) from None

@@ -51,6 +51,7 @@ class BiasPoint:
     current_uA_per_um : total drain current per width [uA/um]
     timings_s : wall time of each stage [s]
     warnings : model-validity warnings (e.g. an indirect-gap material)
+    solver_notes : fallbacks the solve needed (bias ramp, damping, finer grid); empty if none
     """
 
     design: Design
@@ -71,6 +72,7 @@ class BiasPoint:
     hole_thermionic_uA_per_um: float
     timings_s: dict[str, float] = field(default_factory=dict)
     warnings: tuple[str, ...] = ()
+    solver_notes: tuple[str, ...] = ()
 
     @property
     def ec_eV(self) -> np.ndarray:
@@ -176,10 +178,13 @@ class Simulator:
                 return hit
             start = initial or self._last.get(design)
         t0 = time.perf_counter()
-        es = self._electrostatics(design, vg_V, vd_V, start)
+        es, notes = self._electrostatics(design, vg_V, vd_V, start)
         t1 = time.perf_counter()
         bp = bias_point_from_electrostatics(es, self.model)
         bp.timings_s["poisson"] = t1 - t0
+        if notes:
+            bp = dataclasses.replace(bp, solver_notes=notes)
+        _check_finite(bp)
         with self._lock:
             self._last[design] = es
             if len(self._last) > 16:
@@ -189,21 +194,47 @@ class Simulator:
                 self._cache.popitem(last=False)
         return bp
 
-    def _electrostatics(self, design, vg_V, vd_V, start) -> Electrostatics:
+    def _electrostatics(self, design: Design, vg_V: float, vd_V: float,
+                        start: Electrostatics | None) -> tuple[Electrostatics, tuple[str, ...]]:
+        """Solve with fallbacks; returns the solution and notes on what was needed.
+
+        1. Newton from the warm start (or the charge-neutral guess);
+        2. a bias ramp in 8 steps from the warm start, or from equilibrium at the same
+           gate voltage (V_d = 0, then V_g) when there is none;
+        3. heavier damping (updates capped at 0.1 V, 200 steps) from the last good state;
+        4. a finer grid (1.5x) with heavier damping.
+        """
+        res = self.resolution
         try:
-            return solve_electrostatics(design, vg_V, vd_V, initial=start,
-                                        resolution=self.resolution)
+            return solve_electrostatics(design, vg_V, vd_V, initial=start, resolution=res), ()
+        except SolverError as exc:
+            first = exc
+        anchor = start
+        try:
+            if anchor is None:  # equilibrium at Vg = 0 is the easiest point of a design
+                anchor = solve_electrostatics(design, 0.0, 0.0, resolution=res, max_iter=200,
+                                              max_step_V=0.1)
+            es = anchor
+            for f in np.linspace(0, 1, 9)[1:]:
+                vg = anchor.vg_V + (vg_V - anchor.vg_V) * f
+                vd = anchor.vd_V + (vd_V - anchor.vd_V) * f
+                es = solve_electrostatics(design, vg, vd, initial=es, resolution=res, max_iter=100)
+            return es, (f"bias ramp in 8 steps from Vg = {anchor.vg_V:g} V, Vd = {anchor.vd_V:g} V",)
         except SolverError:
-            if start is None:
-                raise
-        # bias ramp from the warm start in smaller steps (fallback)
-        es = start
-        for f in np.linspace(0, 1, 9)[1:]:
-            vg = es.vg_V + (vg_V - es.vg_V) * f if f < 1 else vg_V
-            vd = es.vd_V + (vd_V - es.vd_V) * f if f < 1 else vd_V
-            es_new = solve_electrostatics(design, vg, vd, initial=es, resolution=self.resolution)
-            es = es_new if f == 1 else es
-        return es
+            pass
+        try:
+            es = solve_electrostatics(design, vg_V, vd_V, initial=anchor, resolution=res,
+                                      max_iter=200, max_step_V=0.1)
+            return es, ("heavier damping (updates capped at 0.1 V)",)
+        except SolverError:
+            pass
+        try:
+            es = solve_electrostatics(design, vg_V, vd_V, resolution=1.5 * res, max_iter=200,
+                                      max_step_V=0.1)
+            return es, (f"finer grid ({1.5 * res:g}x) with heavier damping",)
+        except SolverError as exc:
+            raise SolverError(f"{first}; bias ramp, heavier damping and a finer grid also failed",
+                              exc.history) from None
 
     def transfer_curve(
         self, design: Design, vg_V: np.ndarray, vd_V: float, temperature_K: float | None = None,
@@ -237,6 +268,19 @@ class Simulator:
                                           initial=_predict(points, float(v), "vd_V")))
         out = [p.current_uA_per_um for p in points]
         return OutputCurve(design, float(vg_V), vd, np.array(out))
+
+
+def _check_finite(bp: BiasPoint) -> None:
+    """A returned result holds no NaN or inf (raises SolverError otherwise)."""
+    es = bp.electrostatics
+    arrays = {"potential": es.psi_V, "electron density": es.n_cm3, "hole density": es.p_cm3,
+              "subband edges": np.concatenate([bp.conduction_eV, bp.valence_eV]),
+              "spectral current": bp.spectrum.current_density}
+    for name, arr in arrays.items():
+        if not np.all(np.isfinite(arr)):
+            raise SolverError(f"non-finite {name} at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V", [])
+    if not np.isfinite(bp.current_uA_per_um):
+        raise SolverError(f"non-finite current at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V", [])
 
 
 def _predict(points: list[BiasPoint], v: float, terminal: str) -> Electrostatics | None:
