@@ -82,6 +82,8 @@ def wkb_exponent(
     -------
     (..., nE) WKB exponent (T = exp(-exponent)).
     """
+    if model not in MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {MODELS}")
     x = np.asarray(x_nm, float)
     h = np.diff(x)
     e = np.asarray(energy_eV, float)[:, None]
