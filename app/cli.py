@@ -15,6 +15,7 @@ import csv
 import io
 import json
 import math
+import re
 import sys
 from typing import Any
 
@@ -26,6 +27,11 @@ class UsageError(Exception):
 
 
 class _Parser(argparse.ArgumentParser):
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        # let "--vg -0.2:0.6:41" read the sweep as a value, not as an option
+        self._negative_number_matcher = re.compile(r"^-(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?(:.*)?$")
+
     def error(self, message: str) -> None:  # one line, status 2, no usage dump
         raise UsageError(message)
 
@@ -80,6 +86,8 @@ def load_design(path: str | None, overrides: list[str]):
                 data = json.load(fh)
         except OSError as exc:
             raise UsageError(f"--design: cannot read {path!r} ({exc.strerror})") from None
+        except UnicodeDecodeError:
+            raise UsageError(f"--design: {path!r} is not UTF-8 text") from None
         except json.JSONDecodeError as exc:
             raise UsageError(f"--design: {path!r} is not valid JSON ({exc.msg}, line {exc.lineno})") \
                 from None
@@ -134,7 +142,7 @@ def bands_record(bp) -> dict:
 def _csv(header: list[str], columns: list, comments: dict | None = None) -> str:
     buf = io.StringIO()
     for k, v in (comments or {}).items():
-        buf.write(f"# {k} = {v}\n")
+        buf.write(f"# {k} = {'' if v is None else v}\n")
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(header)
     for row in zip(*columns, strict=True):

@@ -70,7 +70,13 @@ class Spectrum:
 def thermionic_current(
     profiles: list[BandProfile], kind: str, efs_eV: float, efd_eV: float, kT_eV: float
 ) -> float:
-    """Over-the-barrier current of a set of subbands, eq. (2) [uA/um]."""
+    """Over-the-barrier current of a set of subbands, eq. (2) [uA/um].
+
+    kind : "conduction" (electrons over the highest point) or "valence" (holes under the
+    lowest point).
+    """
+    if kind not in ("conduction", "valence"):
+        raise ValueError(f"kind: {kind!r} unknown; allowed 'conduction', 'valence'")
     total = 0.0
     for prof in profiles:
         m = prof.mass * sc.m_e
@@ -135,8 +141,9 @@ def band_to_band(
             a, b = HBAR2_2M0_EV_NM2 / cb.mass, HBAR2_2M0_EV_NM2 / vb.mass
             k_max = np.sqrt(overlap / (a + b))
             xg, wg = _GL_K
-            k = 0.5 * k_max * (xg + 1)
-            wk = 0.5 * k_max * wg
+            # k = 0 first (for the reported transmission), then the Gauss-Legendre nodes
+            k = np.concatenate([[0.0], 0.5 * k_max * (xg + 1)])
+            wk = np.concatenate([[0.0], 0.5 * k_max * wg])
             ec_k = cb.edge_eV[None, :] + a * k[:, None] ** 2
             ev_k = vb.edge_eV[None, :] - b * k[:, None] ** 2
             # (nk, nE); +inf where no source-valence -> drain-conduction path exists
