@@ -257,6 +257,9 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--ioff", type=float, default=1e-3, help="Ioff target [uA/um]")
     t.add_argument("--vdd", type=float, default=0.3, help="supply for Ion = Id(Voff + Vdd) [V]")
     common(sub.add_parser("output", help="output curves Id-Vd"), "0.3", "0:0.5:11")
+    from app.snapshot_cli import add_snapshot_parser
+
+    add_snapshot_parser(sub)
     return p
 
 
@@ -269,13 +272,19 @@ def main(argv: list[str] | None = None) -> int:
             return 0
         handlers = {"bands": cmd_bands, "transfer": cmd_transfer, "output": cmd_output,
                     "serve": cmd_serve}
-        out = handlers[a.command](a)
+        status = 0
+        if a.command == "snapshot":
+            from app.snapshot_cli import run_snapshot
+
+            out, status = run_snapshot(a)
+        else:
+            out = handlers[a.command](a)
     except UsageError as exc:
         print(f"sub60: error: {exc}", file=sys.stderr)
         return 2
     if out:
         sys.stdout.write(out if out.endswith("\n") else out + "\n")
-    return 0
+    return status
 
 
 if __name__ == "__main__":

@@ -183,3 +183,99 @@ def wkb_exponent_fast(
     return _wkb_kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
                        np.ascontiguousarray(ev), np.ascontiguousarray(energy_eV, float),
                        float(mass_rel), model == "two-band", _GL_X, _GL_W, bool(connected_only))
+
+
+if _nb is not None:
+
+    @_nb.njit(cache=True)
+    def _wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
+                               gl_x, gl_w):  # pragma: no cover
+        nk, ne = kvals.shape
+        nx = x.size
+        out = np.empty((nk, ne))
+        scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
+        for kk in range(nk):
+            for ie in range(ne):
+                e = energies[ie]
+                up = a * kvals[kk, ie] ** 2
+                down = b * kvals[kk, ie] ** 2
+                if e >= ev[0] - down or e <= ec[nx - 1] + up:
+                    out[kk, ie] = np.inf
+                    continue
+                acc = 0.0
+                for i in range(nx - 1):
+                    c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
+                    v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
+                    if (c0 <= 0 and c1 <= 0) or (v0 <= 0 and v1 <= 0):
+                        continue
+                    lo, hi = 0.0, 1.0
+                    if c0 <= 0:
+                        lo = max(lo, c0 / (c0 - c1))
+                    elif c1 <= 0:
+                        hi = min(hi, c0 / (c0 - c1))
+                    if v0 <= 0:
+                        lo = max(lo, v0 / (v0 - v1))
+                    elif v1 <= 0:
+                        hi = min(hi, v0 / (v0 - v1))
+                    length = hi - lo
+                    if length <= 0:
+                        continue
+                    s = 0.0
+                    for g in range(gl_x.size):
+                        t = lo + 0.5 * (1.0 + gl_x[g]) * length
+                        gc = c0 + (c1 - c0) * t
+                        gv = v0 + (v1 - v0) * t
+                        if gc <= 0 or gv <= 0:
+                            continue
+                        if two_band:
+                            s += gl_w[g] * np.sqrt(gc * gv / (gc + gv))
+                        else:
+                            s += gl_w[g] * np.sqrt(gc)
+                    acc += 0.5 * length * (x[i + 1] - x[i]) * s
+                out[kk, ie] = 2.0 * scale * acc
+        return out
+
+
+def wkb_exponent_transverse(
+    x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray, up_eV_nm2: float, down_eV_nm2: float,
+    k_per_nm: np.ndarray, energy_eV: np.ndarray, mass_rel: float, model: str = "two-band",
+) -> np.ndarray:
+    """WKB exponent with a transverse wave-vector that may differ for every energy.
+
+    The conduction edge is raised by ``up * k^2`` and the valence edge lowered by
+    ``down * k^2`` (hbar^2/2m of each band [eV nm^2]); +inf (T = 0) where the energy
+    does not lie below the source-end valence edge and above the drain-end conduction
+    edge.
+
+    Parameters
+    ----------
+    x_nm : (nx,) [nm]; ec_eV, ev_eV : (nx,) band edges at k = 0 [eV];
+    k_per_nm : (nk, nE) transverse wave-vector of each (node, energy) [1/nm];
+    energy_eV : (nE,) [eV]; mass_rel : tunnelling mass [m0]; model : kappa model.
+
+    Returns
+    -------
+    (nk, nE) exponent.
+    """
+    if model not in MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {MODELS}")
+    kv = np.atleast_2d(np.asarray(k_per_nm, float))
+    e = np.asarray(energy_eV, float)
+    ec = np.asarray(ec_eV, float)
+    ev = np.asarray(ev_eV, float)
+    if _nb is not None:
+        return _wkb_transverse_kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
+                                      np.ascontiguousarray(ev), float(up_eV_nm2),
+                                      float(down_eV_nm2), np.ascontiguousarray(kv),
+                                      np.ascontiguousarray(e), float(mass_rel),
+                                      model == "two-band", _GL_X, _GL_W)
+    out = np.empty(kv.shape)  # reference path: one energy at a time
+    for kk in range(kv.shape[0]):
+        for ie in range(e.size):
+            ec_k = ec + up_eV_nm2 * kv[kk, ie] ** 2
+            ev_k = ev - down_eV_nm2 * kv[kk, ie] ** 2
+            if e[ie] >= ev_k[0] or e[ie] <= ec_k[-1]:
+                out[kk, ie] = np.inf
+            else:
+                out[kk, ie] = wkb_exponent(x_nm, ec_k, ev_k, e[ie:ie + 1], mass_rel, model)[0]
+    return out

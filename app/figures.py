@@ -1,0 +1,422 @@
+"""Figures of a snapshot: static (matplotlib, Agg, no browser) and one offline page (Bokeh).
+
+Four figures, each with a caption stating the key settings (material, body thickness,
+gate length, EOT, source doping, drain voltage, temperature) and the model caution:
+
+- ``bands``    subband edges along x, the Fermi levels, the tunnel window shaded;
+- ``spectrum`` band-to-band spectral current J(E) and transmission T(E);
+- ``transfer`` Id-Vg on a log axis, the design and its MOSFET twin (and pinned designs),
+  with a reference slope of (ln 10)kT/q per decade;
+- ``output``   Id-Vd, one curve per gate voltage.
+
+Static figures are exactly `FIGURE_SIZE_PX` pixels (PNG) and scalable (SVG). The page is
+`bokeh.embed.file_html` with the Bokeh library inlined, so it opens without a network.
+This module never imports the explorer's UI modules.
+"""
+
+from __future__ import annotations
+
+import html
+import io
+from collections.abc import Sequence
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from physics.design import Design
+from physics.materials import DIELECTRICS, eot_nm
+from physics.metrics import thermionic_limit_mV_per_dec
+from physics.simulate import BiasPoint, OutputCurve, TransferCurve
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
+
+    from app.snapshot import SnapshotResults
+
+#: Static figure size: inches and dots per inch -> pixels (width, height).
+FIGURE_SIZE_IN = (8.0, 5.0)
+FIGURE_DPI = 120
+FIGURE_SIZE_PX = (round(FIGURE_SIZE_IN[0] * FIGURE_DPI), round(FIGURE_SIZE_IN[1] * FIGURE_DPI))
+FIGURE_NAMES = ("bands", "spectrum", "transfer", "output")
+FORMATS = ("png", "svg")
+
+# The explorer's own look: blue family for conduction, brick for valence, teal for the
+# tunnel FET, ochre for its MOSFET twin.
+COLOURS = {
+    "conduction": ("#1f4e8c", "#6f95c9", "#9fb9dd", "#c3d3ea"),
+    "valence": ("#a33a26", "#d98a72", "#c7643f", "#e6b3a3", "#b8553c", "#f0cfc4"),
+    "fermi": "#303030",
+    "window": "#f2b43c",
+    "gate": "#e3eaf1",
+    "design": "#0e7a70",
+    "twin": "#b07a10",
+    "pinned": ("#5a5f8c", "#8c5a7d", "#4f7f3a", "#7a6a55", "#3f6f8f", "#8f3f4f", "#6a6a6a",
+               "#2f5f4f"),
+    "limit": "#444444",
+    "marker": "#d1341b",
+}
+_T_FLOOR = 1e-30  # transmissions below this are left out of the log axis [-]
+
+
+# ---------------------------------------------------------------------- captions
+def gate_permittivity(design: Design) -> float:
+    """Relative permittivity of the design's gate dielectric [-]."""
+    if design.oxide == "custom":
+        return float(design.oxide_permittivity)
+    return DIELECTRICS[design.oxide].permittivity
+
+
+def caption_text(design: Design, vd_V: float, vg_V: float | Sequence[float] | None = None,
+                 version: str | None = None) -> str:
+    """Three caption lines: the device, the bias and temperature, the model caution.
+
+    Parameters
+    ----------
+    design : Design
+    vd_V : float
+        drain voltage of the figure [V].
+    vg_V : float, sequence of float or None
+        gate voltage(s) of the figure [V]; None for a gate sweep.
+    version : str or None
+        sub60 version that made the figure.
+    """
+    d = design
+    eot = float(eot_nm(d.oxide_thickness_nm, gate_permittivity(d)))
+    kind = "tunnel FET" if d.source_type == "p" else "MOSFET"
+    if vg_V is None:
+        gate = ""
+    elif isinstance(vg_V, (int, float)):
+        gate = f"Vg = {vg_V:g} V, "
+    else:
+        gate = "Vg = " + ", ".join(f"{v:g}" for v in vg_V) + " V, "
+    device = (f"{d.material} {d.gate_layout}-gate {kind}: body {d.body_thickness_nm:g} nm, "
+              f"gate length {d.gate_length_nm:g} nm, EOT {eot:.2f} nm ({d.oxide} "
+              f"{d.oxide_thickness_nm:g} nm), {d.source_type}+ source "
+              f"{d.source_doping_cm3:.3g} cm\u207b\u00b3")
+    bias = f"{gate}Vd = {vd_V:g} V, T = {d.temperature_K:g} K"
+    caution = ("sub60" + (f" {version}" if version else "")
+               + " \u2014 design-exploration model, not calibrated TCAD")
+    return "\n".join((device, bias, caution))
+
+
+def _safe(label: str) -> str:
+    """Legend text shown literally by matplotlib (no mathtext, not hidden by '_')."""
+    return label.replace("$", r"\$").lstrip("_") or "?"
+
+
+def _positive(values: np.ndarray) -> np.ndarray:
+    v = np.asarray(values, float).copy()
+    v[~(np.isfinite(v) & (v > 0))] = np.nan
+    return v
+
+
+# ---------------------------------------------------------------------- matplotlib
+def _figure(caption: str, width: float = 0.86) -> tuple[Figure, object]:
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=FIGURE_SIZE_IN, dpi=FIGURE_DPI)
+    FigureCanvasAgg(fig)
+    ax = fig.add_axes((0.1, 0.22, width, 0.70))
+    fig.text(0.01, 0.015, caption, fontsize=7.5, ha="left", va="bottom", color="#2b2f33")
+    ax.grid(True, color="#e9ecef", linewidth=0.8)
+    ax.set_axisbelow(True)
+    return fig, ax
+
+
+def band_figure(bp: BiasPoint, caption: str) -> Figure:
+    """Band diagram: subband edges along x, Fermi levels, tunnel window shaded."""
+    d = bp.design
+    fig, ax = _figure(caption)
+    x = np.asarray(bp.x_nm, float)
+    ax.axvspan(d.gate_start_nm, d.gate_end_nm, color=COLOURS["gate"], zorder=0, label="gate")
+    for xj in (d.source_junction_nm, d.drain_junction_nm):
+        ax.axvline(xj, color="#9aa0a6", linestyle=":", linewidth=0.8)
+    if bp.window_eV is not None:
+        lo, hi = bp.window_eV
+        ax.axhspan(lo, hi, color=COLOURS["window"], alpha=0.35, zorder=0.5,
+                   label=f"tunnel window {lo:.3f} to {hi:.3f} eV")
+    for i, (lab, edge) in enumerate(zip(bp.conduction_labels, bp.conduction_eV, strict=True)):
+        ax.plot(x, edge, color=COLOURS["conduction"][min(i, 3)], linewidth=2.0 if i == 0 else 1.0,
+                label=lab)
+    for i, (lab, edge) in enumerate(zip(bp.valence_labels, bp.valence_eV, strict=True)):
+        ax.plot(x, edge, color=COLOURS["valence"][min(i, 5)], linewidth=2.0 if i == 0 else 1.0,
+                label=lab)
+    ax.plot([x[0], d.source_junction_nm], [bp.efs_eV] * 2, color=COLOURS["fermi"],
+            linestyle="--", linewidth=1.2, label="source Fermi level")
+    ax.plot([d.drain_junction_nm, x[-1]], [bp.efd_eV] * 2, color=COLOURS["fermi"],
+            linestyle="-.", linewidth=1.2, label="drain Fermi level")
+    ax.set_xlim(x[0], x[-1])
+    ax.set_xlabel("position along the channel x (nm)")
+    ax.set_ylabel("energy (eV), source Fermi level at 0")
+    state = "closed" if bp.window_eV is None else "open"
+    ax.set_title(f"Band diagram at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V (tunnel window {state})",
+                 fontsize=10)
+    ax.legend(fontsize=7, loc="upper right", ncol=2, framealpha=0.9)
+    return fig
+
+
+def spectrum_figure(bp: BiasPoint, caption: str) -> Figure:
+    """Band-to-band spectral current J(E) (left axis) and transmission T(E) (right, log)."""
+    fig, ax = _figure(caption, width=0.78)
+    s = bp.spectrum
+    e = np.asarray(s.energy_eV, float)
+    if bp.window_eV is not None:
+        ax.axvspan(*bp.window_eV, color=COLOURS["window"], alpha=0.3, label="tunnel window")
+    if e.size:
+        ax.plot(e, np.asarray(s.current_density, float), color=COLOURS["design"], linewidth=1.8,
+                label="J(E)")
+        ax2 = ax.twinx()
+        t = _positive(s.transmission)
+        t[t < _T_FLOOR] = np.nan
+        if np.any(np.isfinite(t)):
+            ax2.semilogy(e, t, color=COLOURS["limit"], linestyle="--", linewidth=1.0,
+                         label="T(E), k\u22a5 = 0")
+            ax2.legend(fontsize=7, loc="upper left")
+        ax2.set_ylabel("transmission (\u2013)")
+    else:
+        ax.text(0.5, 0.5, "no band-to-band current at this bias", transform=ax.transAxes,
+                ha="center", va="center")
+    ax.set_xlabel("energy (eV), source Fermi level at 0")
+    ax.set_ylabel("J(E) (\u00b5A/\u00b5m per eV)")
+    ax.set_title(f"Tunnelling spectrum at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V: "
+                 f"I_BTBT = {bp.btbt_uA_per_um:.3g} \u00b5A/\u00b5m", fontsize=10)
+    ax.legend(fontsize=7, loc="upper right")
+    return fig
+
+
+def _anchor(curves: Sequence[tuple[str, TransferCurve]]) -> tuple[float, float] | None:
+    """Point the thermionic reference passes through: (Voff, Ioff) of the first curve
+    that has one, else the lowest current of the first curve [V, uA/um]."""
+    for _, c in curves:
+        m = c.metrics
+        if m.voff_V.value is not None:
+            return m.voff_V.value, m.ioff_target_uA_per_um
+    i = _positive(curves[0][1].id_uA_per_um)
+    if not np.any(np.isfinite(i)):
+        return None
+    k = int(np.nanargmin(i))
+    return float(curves[0][1].vg_V[k]), float(i[k])
+
+
+def _transfer_label(label: str, c: TransferCurve) -> str:
+    m = c.metrics
+    parts = [label]
+    if m.ss_min_mV_per_dec.value is not None:
+        parts.append(f"SSmin {m.ss_min_mV_per_dec.value:.3g} mV/dec")
+    if m.ion_uA_per_um.value is not None:
+        parts.append(f"Ion {m.ion_uA_per_um.value:.3g} \u00b5A/\u00b5m")
+    return ", ".join(parts)
+
+
+def transfer_figure(curves: Sequence[tuple[str, TransferCurve]], caption: str) -> Figure:
+    """Id-Vg on a log axis with the Ioff target, Ion point and (ln 10)kT/q reference.
+
+    Parameters
+    ----------
+    curves : sequence of (label, TransferCurve)
+        the design first, then its twin, then pinned designs.
+    caption : str
+    """
+    fig, ax = _figure(caption)
+    styles = [("-", COLOURS["design"], 2.0), ("--", COLOURS["twin"], 1.8)]
+    styles += [(":", c, 1.6) for c in COLOURS["pinned"]]
+    currents = []
+    for (label, c), (ls, colour, lw) in zip(curves, styles, strict=False):
+        i = _positive(c.id_uA_per_um)
+        currents.append(i)
+        ax.semilogy(c.vg_V, i, linestyle=ls, color=colour, linewidth=lw,
+                    label=_safe(_transfer_label(label, c)))
+    allc = np.concatenate(currents) if currents else np.array([np.nan])
+    main = curves[0][1]
+    m = main.metrics
+    temperature = main.design.temperature_K
+    limit = thermionic_limit_mV_per_dec(temperature)
+    if np.any(np.isfinite(allc)):
+        ylo, yhi = np.nanmin(allc) / 3, np.nanmax(allc) * 3
+        ax.set_ylim(ylo, yhi)
+        anchor = _anchor(curves)
+        if anchor is not None:
+            vg = np.array([main.vg_V[0], main.vg_V[-1]], float)
+            ref = anchor[1] * 10.0 ** ((vg - anchor[0]) * 1e3 / limit)
+            ax.semilogy(vg, ref, color=COLOURS["limit"], linestyle=(0, (1, 2)), linewidth=1.0,
+                        label=f"(ln 10)kT/q = {limit:.1f} mV/dec at {temperature:g} K")
+        ax.axhline(m.ioff_target_uA_per_um, color="#9aa0a6", linewidth=0.8,
+                   label=f"Ioff target {m.ioff_target_uA_per_um:.3g} \u00b5A/\u00b5m")
+        if m.voff_V.value is not None and m.ion_uA_per_um.value is not None:
+            ax.plot([m.voff_V.value + m.vdd_V], [m.ion_uA_per_um.value], "o",
+                    color=COLOURS["marker"], markersize=5,
+                    label=f"Ion at Voff + Vdd ({m.vdd_V:g} V)")
+        ax.set_ylim(ylo, yhi)
+    else:
+        ax.text(0.5, 0.5, "no positive current to draw", transform=ax.transAxes, ha="center")
+    ax.set_xlim(float(main.vg_V[0]), float(main.vg_V[-1]))
+    ax.set_xlabel("gate voltage Vg (V)")
+    ax.set_ylabel("drain current Id (\u00b5A/\u00b5m)")
+    ax.set_title(f"Transfer curves at Vd = {main.vd_V:g} V", fontsize=10)
+    ax.legend(fontsize=7, loc="lower right", framealpha=0.9)
+    return fig
+
+
+def _ramp(n: int) -> list[str]:
+    """n teal shades, light to dark (the explorer's output-curve ramp)."""
+    stops = np.array([[0x9c, 0xd3, 0xcb], [0x0b, 0x4f, 0x47]], float)
+    out = []
+    for f in np.linspace(0.0, 1.0, n) if n > 1 else [1.0]:
+        rgb = stops[0] + f * (stops[1] - stops[0])
+        out.append("#" + "".join(f"{round(c):02x}" for c in rgb))
+    return out
+
+
+def output_figure(curves: Sequence[OutputCurve], caption: str) -> Figure:
+    """Id-Vd, one curve per gate voltage."""
+    fig, ax = _figure(caption)
+    for c, colour in zip(curves, _ramp(len(curves)), strict=True):
+        ax.plot(c.vd_V, c.id_uA_per_um, color=colour, linewidth=1.8, marker=".", markersize=4,
+                label=f"Vg = {c.vg_V:g} V")
+    ax.set_xlabel("drain voltage Vd (V)")
+    ax.set_ylabel("drain current Id (\u00b5A/\u00b5m)")
+    ax.set_title("Output curves", fontsize=10)
+    if curves:
+        ax.legend(fontsize=7, loc="upper left")
+    return fig
+
+
+def _curves(results: SnapshotResults) -> list[tuple[str, TransferCurve]]:
+    s = results.settings
+    kind = "tunnel FET" if s.design.source_type == "p" else "MOSFET"
+    out = [(f"design ({s.design.source_type}+ source, {kind})", results.transfer),
+           ("MOSFET twin (n+ source)", results.twin)]
+    out += [(f"pinned: {p.name}", c) for p, c in zip(s.pinned, results.pinned, strict=True)]
+    return out
+
+
+def figures_of(results: SnapshotResults) -> dict[str, Figure]:
+    """The four matplotlib figures of a snapshot, by name (`FIGURE_NAMES`)."""
+    s = results.settings
+    bp = results.bias_point
+    v = s.sub60_version
+    out = {
+        "bands": band_figure(bp, caption_text(s.design, bp.vd_V, bp.vg_V, v)),
+        "spectrum": spectrum_figure(bp, caption_text(s.design, bp.vd_V, bp.vg_V, v)),
+        "transfer": transfer_figure(_curves(results),
+                                    caption_text(s.design, s.transfer_sweep.vd_V, None, v)),
+    }
+    if results.output:
+        out["output"] = output_figure(
+            results.output, caption_text(s.design, float(results.output[0].vd_V[-1]),
+                                         [c.vg_V for c in results.output], v)
+            .replace("Vd = ", "Vd up to ", 1))
+    return out
+
+
+def render(fig: Figure, fmt: str) -> bytes:
+    """PNG (exactly `FIGURE_SIZE_PX`) or SVG bytes of a figure; no file, no date stamp."""
+    import matplotlib
+
+    if fmt not in FORMATS:
+        raise ValueError(f"format: {fmt!r} not one of {FORMATS}")
+    buf = io.BytesIO()
+    meta = {"Date": None} if fmt == "svg" else {"Software": None}
+    with matplotlib.rc_context({"svg.hashsalt": "sub60", "svg.fonttype": "path"}):
+        fig.savefig(buf, format=fmt, dpi=FIGURE_DPI, metadata=meta)
+    return buf.getvalue()
+
+
+def static_figures(results: SnapshotResults) -> dict[str, bytes]:
+    """File name ("bands.png", "bands.svg", ...) -> content, for every figure."""
+    out: dict[str, bytes] = {}
+    for name, fig in figures_of(results).items():
+        for fmt in FORMATS:
+            out[f"{name}.{fmt}"] = render(fig, fmt)
+    return out
+
+
+# ---------------------------------------------------------------------- Bokeh page
+def interactive_page(results: SnapshotResults) -> str:
+    """One standalone HTML page of the four plots; Bokeh inlined, no network needed."""
+    from bokeh.embed import file_html
+    from bokeh.layouts import column, gridplot
+    from bokeh.models import BoxAnnotation, Div, HoverTool, Span
+    from bokeh.plotting import figure
+    from bokeh.resources import INLINE
+
+    s = results.settings
+    bp = results.bias_point
+    d = s.design
+    size = {"width": 560, "height": 360, "tools": "pan,box_zoom,wheel_zoom,reset,save"}
+
+    bands = figure(title=f"Band diagram at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V",
+                   x_axis_label="x (nm)", y_axis_label="energy (eV)", **size)
+    bands.add_layout(BoxAnnotation(left=d.gate_start_nm, right=d.gate_end_nm,
+                                   fill_color=COLOURS["gate"], fill_alpha=0.6, level="underlay"))
+    if bp.window_eV is not None:
+        bands.add_layout(BoxAnnotation(bottom=bp.window_eV[0], top=bp.window_eV[1],
+                                       fill_color=COLOURS["window"], fill_alpha=0.3))
+    x = np.asarray(bp.x_nm, float)
+    for i, (lab, edge) in enumerate(zip(bp.conduction_labels, bp.conduction_eV, strict=True)):
+        bands.line(x, np.asarray(edge, float), color=COLOURS["conduction"][min(i, 3)],
+                   line_width=2 if i == 0 else 1, legend_label=lab)
+    for i, (lab, edge) in enumerate(zip(bp.valence_labels, bp.valence_eV, strict=True)):
+        bands.line(x, np.asarray(edge, float), color=COLOURS["valence"][min(i, 5)],
+                   line_width=2 if i == 0 else 1, legend_label=lab)
+    bands.line([x[0], d.source_junction_nm], [bp.efs_eV] * 2, color=COLOURS["fermi"],
+               line_dash="dashed", legend_label="source Fermi level")
+    bands.line([d.drain_junction_nm, x[-1]], [bp.efd_eV] * 2, color=COLOURS["fermi"],
+               line_dash="dashdot", legend_label="drain Fermi level")
+
+    spec = figure(title="Tunnelling spectrum J(E)", x_axis_label="energy (eV)",
+                  y_axis_label="J(E) (µA/µm per eV)", **size)
+    e = np.asarray(bp.spectrum.energy_eV, float)
+    if e.size:
+        spec.line(e, np.asarray(bp.spectrum.current_density, float), color=COLOURS["design"],
+                  line_width=2, legend_label="J(E)")
+    if bp.window_eV is not None:
+        spec.add_layout(BoxAnnotation(left=bp.window_eV[0], right=bp.window_eV[1],
+                                      fill_color=COLOURS["window"], fill_alpha=0.3))
+
+    trans = figure(title=f"Transfer curves at Vd = {s.transfer_sweep.vd_V:g} V",
+                   x_axis_label="Vg (V)", y_axis_label="Id (µA/µm)", y_axis_type="log", **size)
+    colours = [COLOURS["design"], COLOURS["twin"], *COLOURS["pinned"]]
+    dashes = ["solid", "dashed"] + ["dotted"] * len(COLOURS["pinned"])
+    curves = _curves(results)
+    for (label, c), colour, dash in zip(curves, colours, dashes, strict=False):
+        i = _positive(c.id_uA_per_um)
+        keep = np.isfinite(i)
+        trans.line(np.asarray(c.vg_V, float)[keep], i[keep], color=colour, line_dash=dash,
+                   line_width=2, legend_label=label)
+    m = results.transfer.metrics
+    trans.add_layout(Span(location=m.ioff_target_uA_per_um, dimension="width",
+                          line_color="#9aa0a6", line_width=1))
+    anchor = _anchor(curves)
+    if anchor is not None:
+        limit = thermionic_limit_mV_per_dec(d.temperature_K)
+        vg = np.asarray(results.transfer.vg_V, float)
+        ref = anchor[1] * 10.0 ** ((vg - anchor[0]) * 1e3 / limit)
+        allc = np.concatenate([_positive(c.id_uA_per_um) for _, c in curves])
+        if np.any(np.isfinite(allc)):
+            keep = (ref >= np.nanmin(allc) / 3) & (ref <= np.nanmax(allc) * 3)
+            trans.line(vg[keep], ref[keep], color=COLOURS["limit"], line_dash="dotted",
+                       legend_label=f"(ln 10)kT/q = {limit:.1f} mV/dec")
+    trans.legend.location = "bottom_right"
+
+    out = figure(title="Output curves", x_axis_label="Vd (V)", y_axis_label="Id (µA/µm)", **size)
+    for c, colour in zip(results.output, _ramp(len(results.output)), strict=True):
+        out.line(np.asarray(c.vd_V, float), np.asarray(c.id_uA_per_um, float), color=colour,
+                 line_width=2, legend_label=f"Vg = {c.vg_V:g} V")
+    if results.output:
+        out.legend.location = "top_left"
+
+    for p in (bands, spec, trans, out):
+        p.add_tools(HoverTool(tooltips=[("x", "$x{0.000}"), ("y", "$y{0.000e}")]))
+        p.legend.label_text_font_size = "8pt"
+        p.legend.click_policy = "hide"
+
+    caption = caption_text(d, bp.vd_V, bp.vg_V, s.sub60_version).split("\n")
+    title = html.escape(s.title) if s.title else "sub60 snapshot"
+    header = Div(text=(f"<h2>{title}</h2><p>{html.escape(caption[0])}; band diagram at "
+                       f"{html.escape(caption[1])}</p>"
+                       f"<p><b>Caution:</b> {html.escape(caption[2])}. Created "
+                       f"{html.escape(str(s.created_utc))}.</p>"), width=1140)
+    page = column(header, gridplot([[bands, spec], [trans, out]], toolbar_location="right"))
+    return file_html(page, INLINE, title="sub60 snapshot")

@@ -1,0 +1,217 @@
+"""`sub60 snapshot ...`: write, re-render and check snapshot files without the browser.
+
+    sub60 snapshot export [--design FILE | --preset NAME] [--set name=value ...]
+                          [--vg V] [--vd V] [--sweep START:STOP:N] [--vdd V] [--ioff I]
+                          [--output-vg V1,V2,...] --out SNAP.zip [--force]
+    sub60 snapshot render SNAP.zip --out DIR [--force]
+    sub60 snapshot check  SNAP.zip
+
+Exit status: 0 fine; 1 the file's content is wrong or its figures of merit differ on
+recomputation (same sub60 version); 2 a bad option, a missing or unreadable file, or an
+output that exists already (without --force).
+"""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from app.cli import UsageError, load_design, parse_sweep
+
+
+def add_snapshot_parser(sub) -> None:
+    """Register `snapshot` and its sub-commands on the `sub60` sub-parsers."""
+    sp = sub.add_parser("snapshot", help="write, re-render or check a snapshot file")
+    ss = sp.add_subparsers(dest="snapshot_command", parser_class=type(sp))
+    e = ss.add_parser("export", help="compute a view and write its snapshot zip")
+    src = e.add_mutually_exclusive_group()
+    src.add_argument("--design", help="design JSON file (the Design record, or settings)")
+    src.add_argument("--preset", help="start from a demo preset (assets/presets/NAME.json)")
+    e.add_argument("--set", action="append", default=[], metavar="NAME=VALUE",
+                   help="override one design field (repeatable)")
+    e.add_argument("--vg", help="gate voltage of the band diagram [V]")
+    e.add_argument("--vd", help="drain voltage of the band diagram and transfer curves [V]")
+    e.add_argument("--sweep", help="gate sweep of the transfer curves START:STOP:N [V]")
+    e.add_argument("--vdd", type=float, help="supply for Ion = Id(Voff + Vdd) [V]")
+    e.add_argument("--ioff", type=float, help="Ioff target [uA/um]")
+    e.add_argument("--output-vg", help="gate voltages of the output curves, V1,V2,... [V]")
+    e.add_argument("--title", help="title stored in the snapshot")
+    e.add_argument("--out", required=True, help="snapshot zip to write")
+    e.add_argument("--force", action="store_true", help="overwrite an existing file")
+    r = ss.add_parser("render", help="re-render a snapshot's figures (PNG and SVG)")
+    r.add_argument("snapshot", help="snapshot zip or settings.json")
+    r.add_argument("--out", required=True, help="directory for the figures (created)")
+    r.add_argument("--force", action="store_true", help="overwrite existing figure files")
+    c = ss.add_parser("check", help="validate a snapshot and recompute its figures of merit")
+    c.add_argument("snapshot", help="snapshot zip or settings.json")
+
+
+def _read(path: str) -> bytes:
+    """A snapshot file's bytes; SnapshotError when it is larger than any snapshot."""
+    from app.snapshot import MAX_SNAPSHOT_BYTES, SnapshotError
+
+    try:
+        with open(path, "rb") as fh:
+            data = fh.read(MAX_SNAPSHOT_BYTES + 1)  # never more than the limit
+    except OSError as exc:
+        raise UsageError(f"{path}: cannot read ({exc.strerror})") from None
+    if len(data) > MAX_SNAPSHOT_BYTES:
+        raise SnapshotError(f"snapshot: larger than the limit {MAX_SNAPSHOT_BYTES // 2**20} MB")
+    return data
+
+
+def _float(text: str | None, name: str) -> float | None:
+    if text is None:
+        return None
+    values = parse_sweep(text, name)
+    if values.size != 1:
+        raise UsageError(f"--{name}: takes one voltage, got {text!r}")
+    return float(values[0])
+
+
+def _export_settings(a):
+    """Settings of `snapshot export` from the options (UsageError for bad ones)."""
+    from app.snapshot import (
+        MetricSettings,
+        OutputSweep,
+        SnapshotError,
+        SnapshotSettings,
+        TransferSweep,
+        load_preset,
+    )
+
+    try:
+        base = load_preset(a.preset) if a.preset else SnapshotSettings()
+    except SnapshotError as exc:
+        raise UsageError(f"--preset: {exc}") from None
+    if a.design or a.set:
+        design = load_design(a.design, a.set) if a.design else _override(base.design, a.set)
+    else:
+        design = base.design
+    vg = _float(a.vg, "vg")
+    vd = _float(a.vd, "vd")
+    bias = base.bias
+    sweep = base.transfer_sweep
+    if vg is not None or vd is not None:
+        bias = type(bias)(vg if vg is not None else bias.vg_V, vd if vd is not None else bias.vd_V)
+    if vd is not None:
+        sweep = TransferSweep(sweep.vg_start_V, sweep.vg_stop_V, sweep.vg_points, vd)
+    if a.sweep:
+        parts = a.sweep.split(":")
+        if len(parts) != 3:
+            raise UsageError(f"--sweep: expected START:STOP:N, got {a.sweep!r}")
+        values = parse_sweep(a.sweep, "sweep")
+        sweep = TransferSweep(float(values[0]), float(values[-1]), int(values.size), sweep.vd_V)
+    output = base.output_sweep
+    if a.output_vg:
+        try:
+            vgs = tuple(float(v) for v in a.output_vg.split(","))
+        except ValueError:
+            raise UsageError(f"--output-vg: expected V1,V2,..., got {a.output_vg!r}") from None
+        output = OutputSweep(vgs, output.vd_start_V, output.vd_stop_V, output.vd_points)
+    ms = base.metric_settings
+    ms = MetricSettings(a.vdd if a.vdd is not None else ms.vdd_V,
+                        a.ioff if a.ioff is not None else ms.ioff_target_uA_per_um)
+    try:
+        return base.replace(design=design, bias=bias, transfer_sweep=sweep, output_sweep=output,
+                            metric_settings=ms, title=a.title if a.title else base.title,
+                            sub60_version=None, created_utc=None, stored=None)
+    except SnapshotError as exc:
+        raise UsageError(str(exc)) from None
+
+
+def _override(design, overrides: list[str]):
+    """A design with `--set name=value` overrides, parsed as `sub60 bands` does."""
+    from app.cli import parse_value
+    from physics.design import Design
+
+    data = design.to_dict()
+    for item in overrides:
+        if "=" not in item:
+            raise UsageError(f"--set: expected name=value, got {item!r}")
+        key, value = item.split("=", 1)
+        data[key.strip()] = parse_value(value.strip())
+    try:
+        return Design.from_dict(data)
+    except ValueError as exc:
+        raise UsageError(str(exc)) from None
+
+
+def _exists_check(path: Path, force: bool, option: str) -> None:
+    if path.exists() and not force:
+        raise UsageError(f"{option}: {str(path)!r} exists; use --force to overwrite")
+
+
+def cmd_export(a) -> tuple[str, int]:
+    from app.snapshot import export_snapshot
+    from physics.poisson import SolverError
+
+    out = Path(a.out)
+    _exists_check(out, a.force, "--out")
+    settings = _export_settings(a)
+    try:
+        data = export_snapshot(settings)
+    except SolverError as exc:
+        raise UsageError(f"solver: {exc}") from None
+    try:
+        out.write_bytes(data)
+    except OSError as exc:
+        raise UsageError(f"--out: cannot write {str(out)!r} ({exc.strerror})") from None
+    return f"wrote {out} ({len(data)} bytes)", 0
+
+
+def _import(path: str):
+    from app.snapshot import SnapshotError, import_snapshot
+
+    try:
+        return import_snapshot(_read(path)), None
+    except SnapshotError as exc:
+        return None, f"{path}: {exc}"
+
+
+def cmd_render(a) -> tuple[str, int]:
+    from app import figures
+    from app.snapshot import compute_results
+
+    got, problem = _import(a.snapshot)
+    if problem:
+        return problem, 1
+    settings, _ = got
+    out = Path(a.out)
+    if out.exists() and not out.is_dir():
+        raise UsageError(f"--out: {str(out)!r} exists and is not a directory")
+    names = [f"{n}.{f}" for n in figures.FIGURE_NAMES for f in figures.FORMATS]
+    clash = [n for n in names if (out / n).exists()]
+    if clash and not a.force:
+        raise UsageError(f"--out: {str(out / clash[0])!r} exists; use --force to overwrite")
+    contents = figures.static_figures(compute_results(settings))
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+        for name, content in contents.items():
+            (out / name).write_bytes(content)
+    except OSError as exc:
+        raise UsageError(f"--out: cannot write into {str(out)!r} ({exc.strerror})") from None
+    return f"wrote {len(contents)} figures to {out}: " + ", ".join(contents), 0
+
+
+def cmd_check(a) -> tuple[str, int]:
+    from app.snapshot import verify_snapshot
+
+    got, problem = _import(a.snapshot)
+    if problem:
+        return problem, 1
+    settings, report = got
+    report.differences = verify_snapshot(settings)
+    report.verified = True
+    lines = [f"{a.snapshot}: " + report.lines()[0]] + report.lines()[1:]
+    bad = bool(report.differences) and report.version_matches
+    lines.append("NOT OK: figures of merit differ" if bad else "OK")
+    return "\n".join(lines), 1 if bad else 0
+
+
+def run_snapshot(a: argparse.Namespace) -> tuple[str, int]:
+    """Run `sub60 snapshot ...`; returns the text to print and the exit status."""
+    handlers = {"export": cmd_export, "render": cmd_render, "check": cmd_check}
+    if a.snapshot_command is None:
+        raise UsageError("snapshot: expected one of export, render, check")
+    return handlers[a.snapshot_command](a)
