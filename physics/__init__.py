@@ -14,3 +14,16 @@ try:
     threadpool_limits(limits=1, user_api="blas")
 except ImportError:  # pragma: no cover - threadpoolctl is a declared dependency
     pass
+
+from physics.design import Design  # noqa: E402
+from physics.electrostatics import Electrostatics, solve_electrostatics  # noqa: E402
+from physics.simulate import (  # noqa: E402
+    BiasPoint,
+    Simulator,
+    output_curve,
+    solve_bias,
+    transfer_curve,
+)
+
+__all__ = ["BiasPoint", "Design", "Electrostatics", "Simulator", "output_curve", "solve_bias",
+           "solve_electrostatics", "transfer_curve"]
