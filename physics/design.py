@@ -24,8 +24,11 @@ from __future__ import annotations
 import dataclasses
 import json
 import math
+import numbers
 from dataclasses import dataclass
 from typing import Any
+
+import numpy as np
 
 # Bias ranges accepted by the solvers [V]. Common practice for low-voltage logic, no source.
 VG_RANGE_V: tuple[float, float] = (-1.5, 2.0)
@@ -43,6 +46,9 @@ class FieldSpec:
     help: str = ""
 
     def describe(self) -> str:
+        if self.kind is str and self.choices is None:
+            known = _materials() if self.help.startswith("semiconductor") else _dielectrics()
+            return "one of " + ", ".join(repr(c) for c in known)
         if self.choices is not None:
             return "one of " + ", ".join(repr(c) for c in self.choices)
         return f"[{self.low:g}, {self.high:g}]"
@@ -240,11 +246,24 @@ class Design:
         return cls.from_dict(data)
 
 
+_generated_init = Design.__init__
+
+
+def _init_naming_unknown_fields(self: Design, *args: Any, **kwargs: Any) -> None:
+    unknown = sorted(set(kwargs) - set(FIELD_RANGES))
+    if unknown:
+        raise ValueError(f"{unknown[0]}: unknown design field; known fields: " + ", ".join(FIELD_RANGES))
+    _generated_init(self, *args, **kwargs)
+
+
+Design.__init__ = _init_naming_unknown_fields  # unknown fields raise ValueError, not TypeError
+
+
 def _check(name: str, value: Any) -> Any:
     spec = FIELD_RANGES[name]
     if spec.kind is str:
         if not isinstance(value, str):
-            raise ValueError(f"{name}: expected text, got {value!r}")
+            raise ValueError(f"{name}: expected text, got {value!r}; allowed {spec.describe()}")
         if name == "material":
             known = _materials()
             match = [k for k in known if k.lower() == value.lower()]
@@ -262,14 +281,14 @@ def _check(name: str, value: Any) -> Any:
         if value not in spec.choices:
             raise ValueError(f"{name}: {value!r} not allowed; allowed {spec.describe()}")
         return value
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (numbers.Real, np.integer)):
         raise ValueError(f"{name}: expected a number, got {value!r}; "
                          f"allowed {spec.describe()}")
     value = float(value)
     if not math.isfinite(value):
         raise ValueError(f"{name}: {value} is not a finite number; allowed {spec.describe()}")
     if not spec.low <= value <= spec.high:
-        raise ValueError(f"{name}: {value:g} outside the allowed range {spec.describe()}")
+        raise ValueError(f"{name}: {value!r} outside the allowed range {spec.describe()}")
     return value
 
 
@@ -277,11 +296,12 @@ def check_bias(vg_V: float, vd_V: float) -> tuple[float, float]:
     """Validate a bias point; ValueError names the terminal and the allowed range [V]."""
     out = []
     for label, v, (lo, hi) in (("vg_V", vg_V, VG_RANGE_V), ("vd_V", vd_V, VD_RANGE_V)):
-        if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
+        if isinstance(v, (bool, np.bool_)) or not isinstance(v, (numbers.Real, np.integer)) \
+                or not math.isfinite(v):
             raise ValueError(f"{label}: expected a finite number, got {v!r}; "
                              f"allowed [{lo:g}, {hi:g}] V")
         if not lo <= v <= hi:
-            raise ValueError(f"{label}: {v:g} V outside the allowed range [{lo:g}, {hi:g}] V")
+            raise ValueError(f"{label}: {float(v)!r} V outside the allowed range [{lo:g}, {hi:g}] V")
         out.append(float(v))
     return out[0], out[1]
 

@@ -38,7 +38,7 @@ import scipy.linalg as sla
 import scipy.sparse as sp
 
 from physics.mesh import Mesh
-from physics.statistics import fermi_half_and_minus_half
+from physics.statistics import fermi_half_and_minus_half, inverse_fermi_half
 
 # charge term of the residual = QE * (control area [nm^2]) * density [cm^-3] -> [V]:
 # q/eps0 [V m] -> [V nm] (x 1e9), and cm^-3 -> nm^-3 (x 1e-21)
@@ -107,11 +107,13 @@ def neutral_potential(
     net = np.asarray(net_doping_cm3, dtype=float)
     efn = np.broadcast_to(np.asarray(efn_eV, float), net.shape)
     efp = np.broadcast_to(np.asarray(efp_eV, float), net.shape)
-    # bracket: holes dominate with E_v 2 eV above every Fermi level, electrons with E_c
-    # 2 eV below every Fermi level
-    lo = -bands.chi_eV - bands.eg_eV - bands.dev_eV - np.maximum(efn, efp) - 2.0
-    hi = -bands.chi_eV + bands.dec_eV - np.minimum(efn, efp) + 2.0
-    for _ in range(64):
+    # bracket: holes dominate with E_v 2 eV (plus the degeneracy depth of the acceptors)
+    # above every Fermi level, electrons with E_c 2 eV (plus that of the donors) below
+    deep_n = bands.kT_eV * np.maximum(inverse_fermi_half(np.maximum(net, 1.0) / bands.nc_cm3), 0.0)
+    deep_p = bands.kT_eV * np.maximum(inverse_fermi_half(np.maximum(-net, 1.0) / bands.nv_cm3), 0.0)
+    lo = -bands.chi_eV - bands.eg_eV - bands.dev_eV - np.maximum(efn, efp) - 2.0 - deep_p
+    hi = -bands.chi_eV + bands.dec_eV - np.minimum(efn, efp) + 2.0 + deep_n
+    for _ in range(80):
         mid = 0.5 * (lo + hi)
         n, p, _, _ = bands.densities(mid, efn, efp)
         positive = (p - n + net) > 0  # too much positive charge: raise psi

@@ -14,6 +14,7 @@ import time
 from collections import OrderedDict
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -22,6 +23,8 @@ from physics.electrostatics import Electrostatics, solve_electrostatics
 from physics.materials import check_tunnelling_material, get_semiconductor
 from physics.metrics import Metrics, figures_of_merit, point_swing_mV_per_dec
 from physics.poisson import SolverError
+from physics.statistics import inverse_fermi_half
+from physics.structure import band_parameters
 from physics.subbands import device_subbands
 from physics.transport import (
     BandProfile,
@@ -76,7 +79,7 @@ class BiasPoint:
 
     @property
     def ec_eV(self) -> np.ndarray:
-        return self.conduction_eV[0]
+        return self.conduction_eV.min(axis=0)
 
     @property
     def ev_eV(self) -> np.ndarray:
@@ -129,7 +132,7 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
     i_p = thermionic_current(vprof, "valence", efs, efd, kT)
     if es.vd_V == 0:
         i_n = i_p = 0.0
-    window = tunnel_window(x, cond[0], val.max(axis=0), (d.gate_start_nm, d.gate_end_nm),
+    window = tunnel_window(x, cond.min(axis=0), val.max(axis=0), (d.gate_start_nm, d.gate_end_nm),
                            d.source_junction_nm, efs, efd)
     t2 = time.perf_counter()
     return BiasPoint(
@@ -140,13 +143,55 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         efs_eV=efs, efd_eV=efd, window_eV=window, spectrum=spectrum,
         btbt_uA_per_um=spectrum.current_uA_per_um,
         electron_thermionic_uA_per_um=i_n, hole_thermionic_uA_per_um=i_p,
-        timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1}, warnings=design_warnings(d))
+        timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1},
+        warnings=design_warnings(d) + _bending_warning(es, sb))
+
+
+def _bending_warning(es: Electrostatics, sb) -> tuple[str, ...]:
+    """Warn when the band edge varies across the body by more than the C1-C2 spacing:
+    first-order subband edges (and the confinement-shifted gap) are then unreliable."""
+    semi = es.frame.mesh.node_semiconductor
+    ec = es.ec_map_eV[:, semi]
+    spread = float(np.max(ec.max(axis=1) - ec.min(axis=1)))
+    spacing = sb.conduction[1].energy_eV - sb.conduction[0].energy_eV if len(sb.conduction) > 1 \
+        else sb.conduction[0].energy_eV
+    if spread > spacing:
+        return (f"band edge varies by {spread:.2f} eV across the body, more than the C1-C2 "
+                f"spacing ({spacing:.2f} eV): first-order subband edges are unreliable here.",)
+    return ()
+
+
+DEGENERACY_WARN_EV = 0.5  # Fermi level this far inside a band: parabolic DOS overstated
 
 
 def design_warnings(design: Design) -> tuple[str, ...]:
-    """Warnings about the model's validity for a design (empty when none)."""
+    """Warnings about the model's validity for a design (empty when none).
+
+    An indirect gap (no phonon-assisted tunnelling), and contacts doped so heavily that
+    the parabolic density of states puts the Fermi level more than 0.5 eV inside the
+    band (non-parabolicity and satellite valleys, not modelled in the charge, would
+    hold it lower).
+    """
+    return _design_warnings(design)
+
+
+@lru_cache(maxsize=256)
+def _design_warnings(design: Design) -> tuple[str, ...]:
+    out = []
     text = check_tunnelling_material(get_semiconductor(design.material))
-    return (text,) if text else ()
+    if text:
+        out.append(text)
+    bands = band_parameters(design)
+    n_src = ("source_doping_cm3", design.source_doping_cm3,
+             bands.nv_cm3 if design.source_type == "p" else bands.nc_cm3)
+    for name, dop, dos in (n_src, ("drain_doping_cm3", design.drain_doping_cm3, bands.nc_cm3)):
+        depth = bands.kT_eV * float(inverse_fermi_half(dop / dos))
+        if depth > DEGENERACY_WARN_EV:
+            out.append(f"{name} = {dop:.3g} cm^-3 puts the Fermi level {depth:.2f} eV inside the "
+                       f"band of {design.material} with the model's parabolic density of states; "
+                       "real bands (non-parabolic, satellite valleys) hold it lower, so currents "
+                       "from this contact are overstated.")
+    return tuple(out)
 
 
 class Simulator:
@@ -170,7 +215,7 @@ class Simulator:
                    initial: Electrostatics | None = None) -> BiasPoint:
         """One bias point; cached; warm-started from the design's last solution."""
         vg_V, vd_V = check_bias(vg_V, vd_V)
-        key = (design, round(vg_V, 9), round(vd_V, 9))
+        key = (design, vg_V, vd_V)
         with self._lock:
             hit = self._cache.get(key)
             if hit is not None:

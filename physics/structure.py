@@ -80,7 +80,7 @@ def build_mesh(design: Design, resolution: float = 1.0) -> Mesh:
 def doping_profile(design: Design, x_nm: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Donor and acceptor concentrations along x [cm^-3] (see module docstring)."""
     xj1, xj2, g = design.source_junction_nm, design.drain_junction_nm, design.doping_gradient_nm_per_dec
-    if g > 0:
+    if g > 1e-6:  # below that, abrupt (and no overflow in 10**(-x/g))
         src = np.where(x_nm <= xj1, 1.0, 10.0 ** (-np.clip(x_nm - xj1, 0, None) / g))
         drn = np.where(x_nm >= xj2, 1.0, 10.0 ** (-np.clip(xj2 - x_nm, 0, None) / g))
     else:
