@@ -30,6 +30,7 @@ from pathlib import Path
 import numpy as np
 import panel as pn
 from bokeh.models import CustomJSTickFormatter
+from panel.io.document import hold
 from panel.io.state import set_curdoc
 
 from app.plots import ExplorerFigures, metrics_html
@@ -51,6 +52,8 @@ CAUTION = ("Design-exploration model with stated approximations (semiclassical c
            "not calibrated TCAD; decisions rest on local practice and measurement.")
 TITLE = "sub60 · tunnel FET explorer"
 SIDEBAR_WIDTH = 330
+OUTPUT_REST_S = 0.3  # quiet time after a gate-voltage move before the output curves [s]
+STREAM_INTERVAL_S = 0.2  # least time between two partial transfer curves sent to the page [s]
 _WIDGET_WIDTH = 290
 
 _LOG_CM3 = CustomJSTickFormatter(code="return Math.pow(10, tick).toExponential(1).replace('e+', 'e')")
@@ -62,6 +65,25 @@ for (const [s, u] of units) {
 }
 return a.toExponential(1) + ' µA/µm';
 """)
+
+
+# Panel waits 50 ms after a widget event to batch further ones; a slider release or an
+# entry is one complete event, so the explorer's controls pass it on at once.
+class _NowFloatSlider(pn.widgets.FloatSlider):
+    _debounce = 0
+
+
+class _NowIntSlider(pn.widgets.IntSlider):
+    _debounce = 0
+
+
+class _NowFloatInput(pn.widgets.FloatInput):
+    _debounce = 0
+
+
+class _NowEditableFloatSlider(pn.widgets.EditableFloatSlider):
+    _slider_widget = _NowFloatSlider
+    _input_widget = _NowFloatInput
 
 
 def stylesheet() -> str:
@@ -97,6 +119,7 @@ class Explorer:
         self._bias_pending = 0
         self._bias_idle = threading.Event()
         self._bias_idle.set()
+        self._sweep_requested = threading.Event()
         self._pools: dict[str, ThreadPoolExecutor] = {}
         if background:
             self._pools = {k: ThreadPoolExecutor(1, thread_name_prefix=f"sub60-{k}")
@@ -109,7 +132,6 @@ class Explorer:
         self._last_changed: str | None = None
         self._sweep_started = 0.0
         self.last_bias = None
-        self.timings: dict[str, float] = {}
         self._css = stylesheet()
         self._build_panes()
         self._build_controls()
@@ -134,7 +156,7 @@ class Explorer:
         self.status = pn.pane.HTML("Starting…", css_classes=["sweep-status"], stylesheets=css,
                                    width=260, margin=(0, 8))
         self.presentation_toggle = pn.widgets.Toggle.from_param(
-            self.state.param.presentation, button_type="default", width=170, margin=(6, 8))
+            self.state.param.presentation, color="default", width=170, margin=(6, 8))
         f = self.figures
         self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 2)) for k, fig in f.figures.items()}
         p = self.plot_panes
@@ -149,16 +171,18 @@ class Explorer:
         def slider(name: str, step: float, width: int = _WIDGET_WIDTH):
             par = s[name]
             lo, hi = par.bounds
-            return pn.widgets.EditableFloatSlider.from_param(
+            return _NowEditableFloatSlider.from_param(
                 par, step=step, throttled=True, fixed_start=lo, fixed_end=hi, width=width,
-                margin=(2, 10))
+                margin=(2, 10), css_classes=[f"ctl-{name}"])
 
         def log_slider(name: str, formatter):
-            return pn.widgets.FloatSlider.from_param(s[name], throttled=True, format=formatter,
-                                                     width=_WIDGET_WIDTH, margin=(4, 10))
+            return _NowFloatSlider.from_param(s[name], throttled=True, format=formatter,
+                                                     width=_WIDGET_WIDTH, margin=(4, 10),
+                                                     css_classes=[f"ctl-{name}"])
 
         def choice(name: str, cls=pn.widgets.Select):
-            return cls.from_param(s[name], width=_WIDGET_WIDTH, margin=(4, 10))
+            return cls.from_param(s[name], width=_WIDGET_WIDTH, margin=(4, 10),
+                                  css_classes=[f"ctl-{name}"])
 
         w = {}
         for name, step in (("vg_V", 0.01), ("vd_V", 0.01), ("vdd_V", 0.01),
@@ -172,9 +196,10 @@ class Explorer:
         lo, hi = s.vg_sweep_V.bounds
         w["vg_sweep_V"] = pn.widgets.EditableRangeSlider.from_param(
             s.vg_sweep_V, step=0.05, throttled=True, fixed_start=lo, fixed_end=hi,
-            width=_WIDGET_WIDTH, margin=(2, 10))
-        w["vg_points"] = pn.widgets.IntSlider.from_param(s.vg_points, step=2, throttled=True,
-                                                         width=_WIDGET_WIDTH, margin=(4, 10))
+            width=_WIDGET_WIDTH, margin=(2, 10), css_classes=["ctl-vg_sweep_V"])
+        w["vg_points"] = _NowIntSlider.from_param(s.vg_points, step=2, throttled=True,
+                                                         width=_WIDGET_WIDTH, margin=(4, 10),
+                                                         css_classes=["ctl-vg_points"])
         w["ioff_log10_uA_per_um"] = log_slider("ioff_log10_uA_per_um", _LOG_CURRENT)
         for name in ("source_doping_log10_cm3", "channel_doping_log10_cm3",
                      "drain_doping_log10_cm3"):
@@ -191,10 +216,15 @@ class Explorer:
             "at V<sub>off</sub> + V<sub>dd</sub>. Low-power logic targets are lower, about "
             "10–100 pA/µm; high-performance ones near 100 nA/µm (common practice).</div>",
             stylesheets=[self._css], margin=(0, 12))
-        self.reset_button = pn.widgets.Button(name="Reset all settings to defaults",
-                                              button_type="light", width=_WIDGET_WIDTH,
+        self.reset_button = pn.widgets.Button(label="Reset all settings to defaults",
+                                              color="light", width=_WIDGET_WIDTH,
                                               margin=(8, 10), css_classes=["reset-button"])
         self.reset_button.on_click(lambda _event: self.state.reset())
+
+        def labelled(name: str):  # button groups show no title of their own
+            head = pn.pane.HTML(f'<div class="ctl-label">{s[name].label}</div>',
+                                stylesheets=[self._css], margin=(4, 10, 0, 10))
+            return pn.Column(head, w[name], margin=0)
 
         def card(title: str, *items, collapsed: bool = False):
             return pn.Card(*items, title=title, collapsed=collapsed, width=SIDEBAR_WIDTH - 14,
@@ -205,9 +235,10 @@ class Explorer:
             card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], w["vdd_V"],
                  w["ioff_log10_uA_per_um"], ioff_note),
             card("Structure", w["body_thickness_nm"], w["gate_length_nm"],
-                 w["source_length_nm"], w["drain_length_nm"], w["gate_layout"],
+                 w["source_length_nm"], w["drain_length_nm"], labelled("gate_layout"),
                  w["gate_source_offset_nm"], w["buried_oxide_thickness_nm"]),
-            card("Doping", w["source_type"], w["source_doping_log10_cm3"], w["channel_dopant"],
+            card("Doping", labelled("source_type"), w["source_doping_log10_cm3"],
+                 labelled("channel_dopant"),
                  w["channel_doping_log10_cm3"], w["drain_doping_log10_cm3"],
                  w["doping_gradient_nm_per_dec"], collapsed=True),
             card("Gate stack", w["oxide"], w["oxide_thickness_nm"], self.eot,
@@ -303,22 +334,31 @@ class Explorer:
                      float(self.state.vd_V))
 
     def _bias_job(self, g: int, design, vg: float, vd: float, post: bool = True) -> None:
+        outcome: tuple = (_nothing,)
         try:
-            if g != self._bias_gen:
-                return
-            t0 = time.perf_counter()
-            bp = self.simulator.solve_bias(design, vg, vd)
-            self.timings["bias_s"] = time.perf_counter() - t0
-            (self._post if post else _call)(self._apply_bias, g, bp)
+            if g == self._bias_gen:  # else a newer bias point is queued: skip this one
+                shown = self.last_bias
+                # continue from the bias point on screen, the nearest solved bias
+                start = (shown.electrostatics if shown is not None and shown.design == design
+                         else None)
+                bp = self.simulator.solve_bias(design, vg, vd, initial=start)
+                outcome = (self._apply_bias, g, bp)
         except (ValueError, SolverError) as exc:
-            (self._post if post else _call)(self._fail, "bias", g, exc)
+            outcome = (self._fail, "bias", g, exc)
         finally:
-            if post:
-                with self._lock:
-                    self._bias_pending -= 1
-                    if self._bias_pending <= 0:
-                        self._bias_pending = 0
-                        self._bias_idle.set()
+            if post:  # the sweep worker resumes once the page holds this result
+                self._post(self._bias_finished, *outcome)
+        if not post:
+            outcome[0](*outcome[1:])
+
+    def _bias_finished(self, fn, *args) -> None:
+        try:
+            fn(*args)
+        finally:
+            with self._lock:
+                self._bias_pending = max(0, self._bias_pending - 1)
+                if self._bias_pending == 0:
+                    self._bias_idle.set()
 
     def _apply_bias(self, g: int, bp) -> None:
         if g != self._bias_gen:
@@ -334,6 +374,7 @@ class Explorer:
             return
         st = self.state
         self._sweep_gen += 1
+        self._sweep_requested.set()
         job = {
             "g": self._sweep_gen, "design": design, "transfer_key": st.transfer_key(),
             "output_key": st.output_key(), "vg": st.sweep_gate_voltages(),
@@ -353,6 +394,15 @@ class Explorer:
 
         need_transfer = job["transfer_key"] != self._shown_transfer
         need_output = job["output_key"] != self._shown_output
+        if self.background and need_output and not need_transfer:
+            # a gate-voltage move: wait for the slider to rest before the output curves,
+            # so that the next band diagram does not queue behind them
+            end = time.perf_counter() + OUTPUT_REST_S
+            while g == self._sweep_gen and (left := end - time.perf_counter()) > 0:
+                self._sweep_requested.wait(left)  # a newer request ends the rest at once
+                self._sweep_requested.clear()
+            if g != self._sweep_gen:
+                return
         n_t = 2 * job["vg"].size if need_transfer else 0
         n_o = job["out_vg"].size * job["out_vd"].size if need_output else 0
         total = max(n_t + n_o, 1)
@@ -369,7 +419,6 @@ class Explorer:
                         vdd_V=job["vdd"], progress=progress, cancelled=superseded)
                     done += job["vg"].size
                     self._post(self._apply_transfer, g, key, tc, job, done, total)
-                self.timings["transfer_s"] = time.perf_counter() - t0
             if need_output:
                 curves = []
                 for vg in job["out_vg"]:
@@ -378,7 +427,6 @@ class Explorer:
                     curves.append(sim.output_curve(job["design"], float(vg), job["out_vd"]))
                     done += job["out_vd"].size
                     self._post(self._apply_outputs, g, list(curves), job, done, total)
-            self.timings["sweeps_s"] = time.perf_counter() - t0
             self._post(self._sweep_end, g, time.perf_counter() - t0)
         except InterruptedError:
             return
@@ -387,10 +435,13 @@ class Explorer:
 
     def _progress_callback(self, g: int, key: str, device, job: dict, done: int, total: int):
         vgs, vd = job["vg"], job["vd"]
+        last = [time.perf_counter()]
 
         def progress(i: int, n: int) -> None:
-            if g != self._sweep_gen or not (i % 4 == 0 or i == n):
-                return
+            now = time.perf_counter()
+            if g != self._sweep_gen or i == n or now - last[0] < STREAM_INTERVAL_S:
+                return  # the complete curve follows at once; partial ones at most 5 per second
+            last[0] = now
             # points already solved are in the simulator's cache: no new solve here
             ids = np.array([self.simulator.solve_bias(device, float(v), vd).current_uA_per_um
                             for v in vgs[:i]])
@@ -408,9 +459,9 @@ class Explorer:
             self.status.object = f"Computing {' and '.join(parts)}…"
             if transfer:
                 self.metrics.object = self._metrics_text(stale=True)
-                self.figures.transfer.title.text = "Transfer curve — updating…"
+                self.figures.transfer.title.text = "Transfer curve · updating…"
             if output:
-                self.figures.output.title.text = "Output curves (tunnel FET) — updating…"
+                self.figures.output.title.text = f"{self.figures.output_title} · updating…"
 
     def _apply_partial(self, g: int, key: str, vg, ids, done: int, total: int) -> None:
         if g != self._sweep_gen:
@@ -455,13 +506,14 @@ class Explorer:
         if len(curves) == job["out_vg"].size:
             self._outputs = curves
             self._shown_output = job["output_key"]
-            self.figures.output.title.text = "Output curves (tunnel FET)"
+            self.figures.output.title.text = self.figures.output_title
 
     def _sweep_end(self, g: int, seconds: float) -> None:
         if g != self._sweep_gen:
             return
         self.progress.value = 100
         self.status.object = f"Curves up to date ({seconds:.1f} s)"
+        self._clear_error("sweep")
 
     def _set_progress(self, done: int, total: int) -> None:
         self.progress.value = int(round(100 * min(done, total) / max(total, 1)))
@@ -566,11 +618,7 @@ class Explorer:
         on = self.state.presentation
         self.sidebar.visible = not on
         self.figures.set_presentation(on)
-        classes = [c for c in self.main.css_classes if c != "presenting"] if hasattr(
-            self, "main") else []
-        if hasattr(self, "main"):
-            self.main.css_classes = classes + (["presenting"] if on else [])
-        for pane in (self.header, self.metrics, self.status):
+        for pane in (self.header, self.metrics, self.status):  # larger text (style.css)
             pane.css_classes = [c for c in pane.css_classes if c != "presenting"] + (
                 ["presenting"] if on else [])
 
@@ -590,7 +638,7 @@ class Explorer:
             return
 
         def run() -> None:
-            with set_curdoc(doc):
+            with set_curdoc(doc), hold(doc):  # the update's changes leave as one message
                 try:
                     fn(*args)
                 except Exception:  # the page must survive a bad update
@@ -601,23 +649,9 @@ class Explorer:
         except Exception:  # session already closed
             log.debug("sub60: session gone, update dropped")
 
-    def wait_idle(self, timeout: float = 120.0) -> bool:
-        """Block until both workers are idle (tests and scripts)."""
-        end = time.monotonic() + timeout
-        for pool in self._pools.values():
-            remaining = end - time.monotonic()
-            if remaining <= 0:
-                return False
-            fut = pool.submit(lambda: None)
-            try:
-                fut.result(timeout=remaining)
-            except Exception:
-                return False
-        return True
 
-
-def _call(fn, *args) -> None:
-    fn(*args)
+def _nothing() -> None:
+    return None
 
 
 def _log_failure(future) -> None:

@@ -20,10 +20,13 @@ import math
 from collections.abc import Sequence
 
 import numpy as np
+from bokeh.core.properties import value
 from bokeh.models import (
+    BasicTickFormatter,
     BoxAnnotation,
     ColorBar,
     ColumnDataSource,
+    FixedTicker,
     HoverTool,
     Label,
     Legend,
@@ -32,7 +35,6 @@ from bokeh.models import (
     Range1d,
     Span,
 )
-from bokeh.core.properties import value
 from bokeh.plotting import figure
 
 from physics.metrics import thermionic_limit_mV_per_dec
@@ -188,41 +190,45 @@ def metrics_html(rows: Sequence[tuple[str, str, object | None]], temperature_K: 
     """The metrics strip as an HTML table.
 
     rows : (device key, heading, Metrics or None while computing). A missing metric shows
-    a dash with its reason as tooltip and as small text. Every cell carries
-    ``data-device``, ``data-metric`` and ``data-value`` attributes (test hooks).
+    a dash with a note number; the note gives its reason (also the cell's tooltip). Every
+    cell carries ``data-device``, ``data-metric`` and ``data-value`` attributes (test
+    hooks; data-value is empty when the metric is missing or pending).
     """
     limit = thermionic_limit_mV_per_dec(temperature_K)
     head = "".join(f"<th>{h}</th>" for _, h in METRIC_COLUMNS)
+    reasons: list[str] = []
     body = []
     for key, heading, metrics in rows:
         cells = []
         for name, _ in METRIC_COLUMNS:
+            attrs = f'data-device="{key}" data-metric="{name}"'
             if metrics is None:
-                cells.append(f'<td data-device="{key}" data-metric="{name}" data-value="" '
-                             'class="pending">…</td>')
+                cells.append(f'<td {attrs} data-value="" class="pending">…</td>')
                 continue
             m = getattr(metrics, name)
             if m.value is None:
-                reason = html.escape(m.reason or "", quote=True)
-                short = html.escape(_shorten(m.reason or ""))
-                cells.append(f'<td data-device="{key}" data-metric="{name}" data-value="" '
-                             f'class="missing" title="{reason}">—<div class="why">{short}</div></td>')
+                reason = m.reason or "undefined for this curve"
+                if reason not in reasons:
+                    reasons.append(reason)
+                n = reasons.index(reason) + 1
+                tip = html.escape(reason, quote=True)
+                cells.append(f'<td {attrs} data-value="" class="missing" title="{tip}">'
+                             f'—<sup>{n}</sup></td>')
                 continue
             badge = ""
-            if name in ("ss_min_mV_per_dec", "ss_avg4_mV_per_dec"):
-                badge = (' <span class="sub60">below limit</span>' if m.value < limit else "")
-            cells.append(f'<td data-device="{key}" data-metric="{name}" '
-                         f'data-value="{m.value:.12g}">{_format_metric(name, m.value)}{badge}</td>')
+            if name in ("ss_min_mV_per_dec", "ss_avg4_mV_per_dec") and m.value < limit:
+                badge = ' <span class="sub60">&lt; limit</span>'
+            cells.append(f'<td {attrs} data-value="{m.value:.12g}">'
+                         f'{_format_metric(name, m.value)}{badge}</td>')
         body.append(f'<tr><th class="device {key}">{heading}</th>{"".join(cells)}</tr>')
+    notes = "".join(f'<div class="why"><sup>{i}</sup> {html.escape(r)}</div>'
+                    for i, r in enumerate(reasons, start=1))
     note = (f"Thermionic limit (ln 10)·kT/q = {limit:.1f} mV/dec at {temperature_K:g} K; "
-            f"I<sub>on</sub> at V<sub>g</sub> = V<sub>off</sub> + {vdd_V:g} V. "
-            "Hover a dash for the reason a figure is missing.")
+            f"I<sub>on</sub> at V<sub>g</sub> = V<sub>off</sub> + {vdd_V:g} V; "
+            "— = not defined for this curve:")
     return (f'<table class="metrics"><thead><tr><th></th>{head}</tr></thead>'
-            f'<tbody>{"".join(body)}</tbody></table><div class="metrics-note">{note}</div>')
-
-
-def _shorten(text: str, n: int = 48) -> str:
-    return text if len(text) <= n else text[: n - 1].rstrip() + "…"
+            f'<tbody>{"".join(body)}</tbody></table>'
+            f'<div class="metrics-note">{note}{notes}</div>')
 
 
 # ---------------------------------------------------------------------- figures
@@ -242,7 +248,6 @@ def _style(fig) -> None:
         axis.major_label_text_font_size = "11px"
     fig.xgrid.grid_line_color = COLOURS["grid"]
     fig.ygrid.grid_line_color = COLOURS["grid"]
-    fig.min_border_left = 50
 
 
 def _legend(fig, location: str = "top_right") -> None:
@@ -262,20 +267,25 @@ def _legend(fig, location: str = "top_right") -> None:
 class ExplorerFigures:
     """Every figure of the page and its data sources (one set per browser session)."""
 
-    SIZES = {  # (width, height) [px], designed for a 1600 x 1000 screen with the controls
-        "band": (560, 380), "spectrum": (170, 380), "transmission": (170, 380),
-        "transfer": (350, 380), "map": (560, 250), "output": (340, 250), "swing": (350, 250),
+    # Plot-frame sizes (width, height) [px] for a 1600 x 1000 screen: the band diagram,
+    # J(E) and T(E) share one frame height (common energy axis); the 2D map sits under
+    # the band diagram with the same frame width and left border (common x axis).
+    SIZES = {
+        "band": (462, 345), "spectrum": (110, 345), "transmission": (110, 345),
+        "transfer": (266, 345), "map": (462, 195), "output": (212, 195), "swing": (246, 195),
     }
-    SIZES_PRESENTING = {
-        "band": (720, 470), "spectrum": (210, 470), "transmission": (210, 470),
-        "transfer": (440, 470), "map": (720, 300), "output": (420, 300), "swing": (440, 300),
+    SIZES_PRESENTING = {  # the controls are hidden: the plots take their width
+        "band": (580, 365), "spectrum": (136, 365), "transmission": (136, 365),
+        "transfer": (360, 365), "map": (580, 190), "output": (290, 190), "swing": (330, 190),
     }
+    LEFT_BORDER = {"band": 66, "map": 66, "spectrum": 6, "transmission": 6}
 
     def __init__(self) -> None:
         self.energy_range = Range1d(-1.2, 0.8, name="energy_range")
         self.x_range = Range1d(0.0, 70.0, name="position_range")
         self._base_widths: dict[object, float] = {}
         self._presenting = False
+        self.output_title = "Output curves (tunnel FET)"
         self._band_renderers: dict[str, object] = {}
         self._build_band()
         self._build_spectrum()
@@ -323,8 +333,9 @@ class ExplorerFigures:
         f.add_tools(HoverTool(renderers=[win], tooltips=[
             ("tunnel window", "@e_min{0.000} to @e_max{0.000} eV"),
             ("width", "@width_meV{0} meV")]))
-        self.window_closed = Label(x=10, y=10, x_units="screen", y_units="screen",
-                                   text="", text_font_size="11px", text_color="#8a6d00",
+        self.window_closed = Label(x=0, y=0, text="", text_font_size="11px",
+                                   text_color="#8a6d00", text_align="center",
+                                   text_baseline="top", y_offset=-20,
                                    name="window_closed_label")
         f.add_layout(self.window_closed)
         self.band_source = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": []},
@@ -335,7 +346,9 @@ class ExplorerFigures:
                        line_dash="dashed", line_width=1.5, legend_label="Fermi levels")
         f.add_tools(HoverTool(renderers=[fl], tooltips=[("", "@label"), ("E", "@y{0.000} eV")]))
         self.fermi_labels = {k: Label(x=0, y=0, text=t, text_font_size="11px",
-                                      text_color=COLOURS["fermi"], y_offset=3, name=f"{k}_label")
+                                      text_color=COLOURS["fermi"], y_offset=-3,
+                                      text_baseline="top", background_fill_color="white",
+                                      background_fill_alpha=0.7, name=f"{k}_label")
                              for k, t in (("efs", "E_F source"), ("efd", "E_F drain"))}
         for lab in self.fermi_labels.values():
             f.add_layout(lab)
@@ -393,12 +406,20 @@ class ExplorerFigures:
                     line_width=2)
         t.add_tools(HoverTool(renderers=[tr], tooltips=[
             ("E", "@energy_eV{0.000} eV"), ("T", "@t{0.00e+0}")], mode="hline"))
+        self.t_ticker = FixedTicker(ticks=[1e-12, 1e-6, 1.0], name="transmission_ticker")
+        t.xaxis.ticker = self.t_ticker
+        self.transmission_note = Label(x=4, y=4, x_units="screen", y_units="screen", text="",
+                                       text_font_size="11px", text_color=COLOURS["text"],
+                                       name="transmission_note")
+        t.add_layout(self.transmission_note)
         self.fermi_spans = []
         for fig in (s, t):
             fig.yaxis.major_label_text_font_size = "0px"
             fig.yaxis.major_tick_line_color = None
-            fig.xaxis.ticker.desired_num_ticks = 3
-            fig.min_border_left = 8
+            if fig is s:
+                fig.xaxis.ticker.desired_num_ticks = 2
+                fig.xaxis.formatter = BasicTickFormatter(precision=0, power_limit_low=-2,
+                                                         power_limit_high=3)
             for _ in range(2):
                 span = Span(location=0, dimension="width", line_color=COLOURS["fermi"],
                             line_dash="dashed", line_width=1)
@@ -554,6 +575,7 @@ class ExplorerFigures:
         self.region_labels["gate"].x = 0.5 * (d.gate_start_nm + d.gate_end_nm)
         self.region_labels["drain"].x = 0.5 * (d.drain_junction_nm + d.total_length_nm)
         self.region_labels["source"].text = f"{'p' if d.source_type == 'p' else 'n'}+ source"
+        self._name_devices(d.source_type)
         self.region_labels["gate"].text = "gate"
         self.region_labels["drain"].text = "n+ drain"
         self.fermi_source.data = {
@@ -578,6 +600,7 @@ class ExplorerFigures:
         self.energy_range.start, self.energy_range.end = lo - pad, hi + 2.5 * pad
         for lab in self.region_labels.values():
             lab.y = hi + 2.5 * pad
+        self.window_closed.update(x=self.region_labels["gate"].x, y=hi + 2.5 * pad)
 
         # spectrum
         sp = bp.spectrum
@@ -586,8 +609,13 @@ class ExplorerFigures:
                                      "j": np.asarray(sp.current_density, float), "t": t}
         finite = t[np.isfinite(t)]
         t_lo = 10.0 ** math.floor(math.log10(float(finite.min()))) if finite.size else 1e-12
-        self.transmission.x_range.start = max(t_lo, 1e-30)
+        t_lo = max(t_lo, 1e-30)
+        self.transmission.x_range.start = t_lo
         self.transmission.x_range.end = 1.5
+        k_lo = int(round(math.log10(t_lo)))
+        step = max(1, int(math.ceil(-k_lo / 2)))
+        self.t_ticker.ticks = [10.0 ** k for k in range(0, k_lo - 1, -step)][::-1]
+        self.transmission_note.text = "" if finite.size else f"T < {_T_FLOOR:.0e}\neverywhere"
         for span, level in zip(self.fermi_spans, (bp.efs_eV, bp.efd_eV) * 2, strict=True):
             span.location = level
         self.spectrum_total.text = f"BTBT total\n{format_current(bp.btbt_uA_per_um)}"
@@ -618,6 +646,17 @@ class ExplorerFigures:
                                       "id": [current if current > 0 else np.nan]}
         self.vg_span.location = bp.vg_V
         self.vd_span.location = bp.vd_V
+
+    def _name_devices(self, source_type: str) -> None:
+        """Legend names of the first device: tunnel FET (p+ source) or MOSFET (n+)."""
+        name = "tunnel FET" if source_type == "p" else "MOSFET (n+ source)"
+        for fig in (self.transfer, self.swing):
+            for item in fig.legend[0].items:
+                if item.label == value("tunnel FET") or item.label == value("MOSFET (n+ source)"):
+                    if item.label != value(name):
+                        item.label = value(name)
+        title = "Output curves (tunnel FET)" if source_type == "p" else "Output curves (MOSFET)"
+        self.output_title = title
 
     def show_transfer(self, key: str, vg: np.ndarray, current: np.ndarray,
                       btbt: np.ndarray | None = None, therm: np.ndarray | None = None,
@@ -662,7 +701,7 @@ class ExplorerFigures:
                 vd = np.asarray(c.vd_V, float)
                 self.output_sources[k].data = {"vd": vd, "id": np.asarray(c.id_uA_per_um, float),
                                                "vg": np.full_like(vd, c.vg_V)}
-                self.output_items[k].label = value(f"Vg = {c.vg_V:.2f} V")
+                self.output_items[k].label = value(f"Vg = {c.vg_V + 0.0:.2f} V".replace("-0.00", "0.00"))
                 self.output_items[k].visible = True
             else:
                 self.output_sources[k].data = {"vd": [], "id": [], "vg": []}
@@ -683,13 +722,16 @@ class ExplorerFigures:
             return f"{round(px * grow)}px"
 
         for key, fig in self.figures.items():
-            fig.width, fig.height = sizes[key]
+            fig.frame_width, fig.frame_height = sizes[key]
+            fig.min_border_left = round(self.LEFT_BORDER.get(key, 58) * (1.3 if on and key not in (
+                "spectrum", "transmission") else 1.0))
+            fig.min_border_right = 12
             fig.title.text_font_size = font(13)
             for axis in (*fig.xaxis, *fig.yaxis):
                 axis.axis_label_text_font_size = font(12)
-                if key in ("spectrum", "transmission") and axis in fig.yaxis:
-                    continue
                 axis.major_label_text_font_size = font(11)
+            if key in ("spectrum", "transmission"):  # energy labels are on the band diagram
+                fig.yaxis.major_label_text_font_size = "0px"
             for leg in fig.legend:
                 leg.label_text_font_size = font(11)
             for r in fig.renderers:
@@ -697,7 +739,8 @@ class ExplorerFigures:
                 if glyph in self._base_widths:
                     glyph.line_width = self._base_widths[glyph] * scale
         for lab in (*self.region_labels.values(), *self.fermi_labels.values(),
-                    self.spectrum_total, self.window_closed, self.swing_limit_label):
+                    self.spectrum_total, self.window_closed, self.swing_limit_label,
+                    self.transmission_note):
             lab.text_font_size = font(11)
 
 

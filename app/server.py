@@ -28,6 +28,14 @@ def is_loopback(host: str) -> bool:
         return False
 
 
+def loopback_warning(host: str, port: int) -> str | None:
+    """The warning printed when serving beyond this machine, or None."""
+    if is_loopback(host):
+        return None
+    return (f"sub60: WARNING: serving on {host}, which is not a loopback address — anyone "
+            f"who can reach this machine on port {port} can use the explorer.")
+
+
 def allowed_origins(host: str, port: int) -> list[str]:
     """Websocket origins accepted: the served address (and its loopback aliases)."""
     origins = [f"{host}:{port}"]
@@ -50,10 +58,9 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
                  start: bool = True, threaded: bool = False):
     """The Panel/Bokeh server of the explorer (see `serve`); returned for tests."""
     configure()
-    if not is_loopback(host):
-        print(f"sub60: WARNING: serving on {host}, which is not a loopback address — "
-              "anyone who can reach this machine on port "
-              f"{port} can use the explorer.", file=sys.stderr)
+    warning = loopback_warning(host, port)
+    if warning:
+        print(warning, file=sys.stderr)
     return pn.serve(
         {"/": create_app}, port=port, address=host, show=show, start=start,
         threaded=threaded, title=TITLE, websocket_origin=allowed_origins(host, port),

@@ -70,7 +70,7 @@ class ExplorerState(param.Parameterized):
 
     # ---------------------------------------------------------------- material, temperature
     material = param.Selector(
-        default=_DEFAULT.material, objects=list(SEMICONDUCTORS), label="Semiconductor",
+        default=_DEFAULT.material, objects=list(SEMICONDUCTORS), label="Body semiconductor",
         doc="Body semiconductor (a record of physics.materials).")
     temperature_K = param.Number(
         default=_DEFAULT.temperature_K, bounds=_bounds("temperature_K"), step=1.0,
@@ -151,7 +151,7 @@ class ExplorerState(param.Parameterized):
     vd_V = param.Number(default=0.3, bounds=VD_RANGE_V, step=0.01, label="Drain voltage (V)",
                         doc="Drain voltage of the band diagram and of the transfer curves [V].")
     vg_sweep_V = param.Range(default=(-0.2, 0.6), bounds=VG_RANGE_V,
-                             label="Gate sweep of the transfer curve (V)",
+                             label="Gate sweep (V)",
                              doc="First and last gate voltage of the transfer curves [V].")
     vg_points = param.Integer(default=41, bounds=(11, 81), label="Points per transfer curve",
                               doc="Gate voltages of each transfer curve [-].")

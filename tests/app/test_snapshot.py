@@ -372,16 +372,10 @@ def test_presets_fall_back_gracefully(monkeypatch, tmp_path):
 
 
 @pytest.mark.browser
-def test_offline_page_renders_with_the_network_blocked(exported, tmp_path):
-    """plots.html opened from disk in headless Chromium: every request other than the
-    file itself is blocked and recorded; the four plots must appear without any."""
-    import os
-    import shutil
-
-    chromium = shutil.which("chromium") or shutil.which("chromium-browser")
-    if chromium is None and os.environ.get("SUB60_REQUIRE_BROWSER") != "1":
-        pytest.skip("no Chromium on this machine (SUB60_REQUIRE_BROWSER=1 makes this fail)")
-    from playwright import sync_api as playwright
+def test_offline_page_renders_with_the_network_blocked(exported, tmp_path, browser):
+    """plots.html opened from disk in headless Chromium (the shared session browser of
+    tests/app/conftest.py): every request other than the file itself is blocked and
+    recorded; the four plots must appear without any."""
     page_file = tmp_path / "plots.html"
     page_file.write_bytes(members(exported[1])["plots.html"])
     requests, errors = [], []
@@ -393,19 +387,15 @@ def test_offline_page_renders_with_the_network_blocked(exported, tmp_path):
             requests.append(r.request.url)
             r.abort()
 
-    with playwright.sync_playwright() as p:
-        browser = p.chromium.launch(executable_path=chromium, headless=True,
-                                    args=["--no-sandbox", "--disable-gpu",
-                                          "--disable-background-networking"])
-        try:
-            page = browser.new_page()
-            page.route("**/*", route)
-            page.on("pageerror", lambda e: errors.append(str(e)))
-            page.goto(page_file.as_uri())
-            page.wait_for_function("window.Bokeh && Bokeh.documents.length > 0", timeout=30000)
-            titles = page.evaluate("[...Bokeh.documents[0]._all_models.values()]"
-                                   ".filter(m => m.type === 'Figure').map(m => m.title.text)")
-        finally:
-            browser.close()
+    page = browser.new_page()
+    try:
+        page.route("**/*", route)
+        page.on("pageerror", lambda e: errors.append(str(e)))
+        page.goto(page_file.as_uri())
+        page.wait_for_function("window.Bokeh && Bokeh.documents.length > 0", timeout=30000)
+        titles = page.evaluate("[...Bokeh.documents[0]._all_models.values()]"
+                               ".filter(m => m.type === 'Figure').map(m => m.title.text)")
+    finally:
+        page.close()
     assert requests == [] and errors == []
     assert len(titles) == 4 and any(t.startswith("Band diagram") for t in titles)

@@ -1,0 +1,182 @@
+"""Fixtures of the app tests: a served explorer on a free loopback port and a headless
+Chromium page on it (browser tests skip when /usr/bin/chromium is missing, unless
+SUB60_REQUIRE_BROWSER=1, then they fail).
+
+The helpers here are also used by ``tests/bench_app.py``.
+"""
+
+from __future__ import annotations
+
+import os
+import socket
+import subprocess
+import sys
+import time
+from collections.abc import Iterator
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[2]
+CHROMIUM = "/usr/bin/chromium"
+CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+                 "--disable-background-networking", "--disable-component-update",
+                 "--disable-sync"]
+VIEWPORT = {"width": 1600, "height": 1000}
+
+# JavaScript run in the page: find Bokeh models by name or css class, read their data.
+JS_HELPERS = """
+window.sub60 = {
+  doc() { return Bokeh.documents[0]; },
+  model(name) { return this.doc().get_model_by_name(name); },
+  byClass(cls) {
+    return [...this.doc()._all_models.values()].find(
+      m => Array.isArray(m.css_classes) && m.css_classes.includes(cls));
+  },
+  data(name) {
+    const d = this.model(name).data; const out = {};
+    for (const k of Object.keys(d)) { out[k] = Array.from(d[k], v => (v === null ? NaN : v)); }
+    return out;
+  },
+  sliderOf(cls) {            // the Bokeh slider inside a control (editable or plain)
+    const root = this.byClass(cls);
+    if (root.start !== undefined) { return root; }
+    const stack = [root];
+    while (stack.length) {
+      const m = stack.shift();
+      if (m.type && m.type.endsWith('Slider') && m.start !== undefined) { return m; }
+      for (const c of (m.children || [])) { stack.push(Array.isArray(c) ? c[0] : c); }
+    }
+    return null;
+  },
+  metricsHTML() {
+    const t = document.createElement('textarea');
+    t.innerHTML = this.byClass('metrics-strip').text;
+    return t.value;
+  },
+  metrics() {                 // {device: {metric: value|null}}, null while stale
+    const html = this.metricsHTML();
+    if (!html.includes('class="fresh"')) { return null; }
+    const doc = new DOMParser().parseFromString(html, 'text/html');
+    const out = {};
+    for (const td of doc.querySelectorAll('td[data-metric]')) {
+      const dev = td.dataset.device; out[dev] = out[dev] || {};
+      out[dev][td.dataset.metric] = td.dataset.value === '' ? null : Number(td.dataset.value);
+    }
+    return out;
+  },
+  curvesDone(n) {
+    const f = this.model('transfer_plot');
+    return this.model('transfer_tfet_source').data.vg.length === n &&
+      this.model('transfer_twin_source').data.vg.length === n &&
+      f.title.text === 'Transfer curve' && this.metrics() !== null;
+  },
+  allDone(n) {
+    return this.curvesDone(n) && !this.model('output_plot').title.text.includes('updating');
+  },
+};
+"""
+
+
+def free_port() -> int:
+    """A TCP port free on 127.0.0.1 at the time of the call."""
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+def wait_for_port(port: int, proc: subprocess.Popen, timeout_s: float = 90.0) -> None:
+    """Block until the server accepts connections (or its process dies)."""
+    deadline = time.monotonic() + timeout_s
+    while time.monotonic() < deadline:
+        if proc.poll() is not None:
+            out = proc.stdout.read().decode(errors="replace") if proc.stdout else ""
+            raise RuntimeError(f"sub60 serve exited with {proc.returncode}:\n{out}")
+        try:
+            with socket.create_connection(("127.0.0.1", port), timeout=0.5):
+                return
+        except OSError:
+            time.sleep(0.05)  # polling a condition (the port), not a fixed wait
+    raise TimeoutError(f"sub60 serve did not listen on port {port} within {timeout_s} s")
+
+
+def start_server(port: int) -> subprocess.Popen:
+    """`python -m app serve` on 127.0.0.1:port, one BLAS thread, output captured."""
+    env = dict(os.environ, OPENBLAS_NUM_THREADS="1", OMP_NUM_THREADS="1",
+               PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    proc = subprocess.Popen([sys.executable, "-m", "app", "serve", "--port", str(port),
+                             "--host", "127.0.0.1"], cwd=ROOT, env=env,
+                            stdout=subprocess.PIPE, stderr=subprocess.STDOUT)
+    try:
+        wait_for_port(port, proc)
+    except Exception:
+        proc.kill()
+        raise
+    return proc
+
+
+def stop_server(proc: subprocess.Popen) -> None:
+    """Stop the server process started by `start_server` (by its own handle)."""
+    if proc.poll() is None:
+        proc.terminate()
+        try:
+            proc.wait(timeout=10)
+        except subprocess.TimeoutExpired:
+            proc.kill()
+            proc.wait(timeout=10)
+
+
+def open_app(browser, url: str, timeout_ms: float = 90_000):
+    """A new page on the served app, its Bokeh document loaded and the first transfer
+    and output curves complete; returns (page, requests, errors)."""
+    page = browser.new_page(viewport=VIEWPORT)
+    requests: list[str] = []
+    errors: list[str] = []
+    page.on("request", lambda r: requests.append(r.url))
+    page.on("pageerror", lambda e: errors.append(str(e)))
+    page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
+    page.goto(url, wait_until="domcontentloaded", timeout=timeout_ms)
+    page.wait_for_function("() => window.Bokeh && Bokeh.documents.length > 0 && "
+                           "Bokeh.documents[0].get_model_by_name('band_source') != null",
+                           timeout=timeout_ms)
+    page.evaluate(JS_HELPERS)
+    page.wait_for_function("() => sub60.allDone(41)", timeout=timeout_ms)
+    return page, requests, errors
+
+
+def browser_or_skip():
+    """The Playwright Chromium launcher, or skip (fail with SUB60_REQUIRE_BROWSER=1)."""
+    required = os.environ.get("SUB60_REQUIRE_BROWSER") == "1"
+    reason = None
+    if not os.path.exists(CHROMIUM):
+        reason = f"headless Chromium not found at {CHROMIUM} (apt-get install chromium)"
+    else:
+        try:
+            import playwright.sync_api  # noqa: F401
+        except ImportError:
+            reason = "the playwright package is not installed (pip install playwright)"
+    if reason:
+        if required:
+            pytest.fail(f"SUB60_REQUIRE_BROWSER=1 but {reason}")
+        pytest.skip(reason)
+
+
+@pytest.fixture(scope="session")
+def browser() -> Iterator[object]:
+    browser_or_skip()
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as p:
+        b = p.chromium.launch(executable_path=CHROMIUM, headless=True, args=CHROMIUM_ARGS)
+        yield b
+        b.close()
+
+
+@pytest.fixture(scope="session")
+def app_url(browser) -> Iterator[str]:
+    port = free_port()
+    proc = start_server(port)
+    try:
+        yield f"http://127.0.0.1:{port}/"
+    finally:
+        stop_server(proc)
