@@ -10,7 +10,13 @@ A bad option or design value exits with status 2 and a one-line message naming i
 
 from __future__ import annotations
 
-import argparse
+import os
+
+# one BLAS thread: the banded solvers are small and erratic with two (see physics/__init__)
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+os.environ.setdefault("OMP_NUM_THREADS", "1")
+
+import argparse  # noqa: E402
 import csv
 import io
 import json

@@ -150,7 +150,7 @@ class ExplorerState(param.Parameterized):
                         doc="Gate voltage of the band diagram [V].")
     vd_V = param.Number(default=0.3, bounds=VD_RANGE_V, step=0.01, label="Drain voltage (V)",
                         doc="Drain voltage of the band diagram and of the transfer curves [V].")
-    vg_sweep_V = param.Range(default=(-0.2, 0.6), bounds=VG_RANGE_V,
+    vg_sweep_V = param.Range(default=(-0.4, 0.6), bounds=VG_RANGE_V,
                              label="Gate sweep (V)",
                              doc="First and last gate voltage of the transfer curves [V].")
     vg_points = param.Integer(default=41, bounds=(11, 81), label="Points per transfer curve",

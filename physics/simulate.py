@@ -8,6 +8,7 @@ functions use a shared default one. Separate sessions should own separate simula
 
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import threading
 import time
@@ -286,14 +287,22 @@ class Simulator:
         ioff_target_uA_per_um: float = 1e-3, vdd_V: float = 0.3,
         progress: Callable[[int, int], None] | None = None,
         cancelled: Callable[[], bool] | None = None,
+        slots: threading.Semaphore | None = None,
     ) -> TransferCurve:
-        """Id-Vg at fixed V_d with continuation along V_g, and its figures of merit."""
+        """Id-Vg at fixed V_d with continuation along V_g, and its figures of merit.
+
+        progress(i, n) is called after each point; cancelled() before each point (True
+        stops the sweep with InterruptedError); with ``slots`` each point is solved while
+        holding one slot of that semaphore, so that many concurrent sweeps share the
+        cores point by point and leave room for single bias points.
+        """
         vg = np.asarray(vg_V, float)
         points: list[BiasPoint] = []
         for i, v in enumerate(vg):
             if cancelled is not None and cancelled():
                 raise InterruptedError("transfer curve superseded")
-            bp = self.solve_bias(design, float(v), vd_V, initial=_predict(points, float(v), "vg_V"))
+            with slots if slots is not None else contextlib.nullcontext():
+                bp = self.solve_bias(design, float(v), vd_V, initial=_predict(points, float(v), "vg_V"))
             points.append(bp)
             if progress is not None:
                 progress(i + 1, vg.size)
@@ -304,13 +313,15 @@ class Simulator:
         return TransferCurve(design, float(vd_V), vg, current, btbt, therm,
                              point_swing_mV_per_dec(vg, current), metrics)
 
-    def output_curve(self, design: Design, vg_V: float, vd_V: np.ndarray) -> OutputCurve:
-        """Id-Vd at fixed V_g with continuation along V_d."""
+    def output_curve(self, design: Design, vg_V: float, vd_V: np.ndarray,
+                     slots: threading.Semaphore | None = None) -> OutputCurve:
+        """Id-Vd at fixed V_g with continuation along V_d (``slots``: as in transfer_curve)."""
         vd = np.asarray(vd_V, float)
         points: list[BiasPoint] = []
         for v in vd:
-            points.append(self.solve_bias(design, vg_V, float(v),
-                                          initial=_predict(points, float(v), "vd_V")))
+            with slots if slots is not None else contextlib.nullcontext():
+                points.append(self.solve_bias(design, vg_V, float(v),
+                                              initial=_predict(points, float(v), "vd_V")))
         out = [p.current_uA_per_um for p in points]
         return OutputCurve(design, float(vg_V), vd, np.array(out))
 

@@ -113,7 +113,7 @@ except ImportError:  # pragma: no cover - numba is a declared dependency
 
 if _nb is not None:
 
-    @_nb.njit(cache=True, fastmath=False)
+    @_nb.njit(cache=True, nogil=True)
     def _wkb_kernel(x, ec, ev, energies, mass_rel, two_band, gl_x, gl_w, connected_only):  # pragma: no cover
         nk, nx = ec.shape
         ne = energies.size
@@ -187,7 +187,7 @@ def wkb_exponent_fast(
 
 if _nb is not None:
 
-    @_nb.njit(cache=True)
+    @_nb.njit(cache=True, nogil=True)
     def _wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
                                gl_x, gl_w):  # pragma: no cover
         nk, ne = kvals.shape

@@ -24,7 +24,7 @@ pytestmark = pytest.mark.browser
 
 PLOTS = ("band_plot", "spectrum_plot", "transmission_plot", "transfer_plot", "swing_plot",
          "map_plot", "output_plot")
-VG_SWEEP = np.linspace(-0.2, 0.6, 41)  # the default sweep of the page [V]
+VG_SWEEP = np.linspace(-0.4, 0.6, 41)  # the default sweep of the page [V]
 E_TOL_EV = 1e-5
 
 

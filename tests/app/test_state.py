@@ -28,7 +28,7 @@ from physics.metrics import figures_of_merit
 from physics.poisson import SolverError
 from physics.simulate import Simulator
 
-VG_SWEEP = np.linspace(-0.2, 0.6, 41)  # default sweep of the state [V]
+VG_SWEEP = np.linspace(-0.4, 0.6, 41)  # default sweep of the state [V]
 
 
 @pytest.fixture(scope="module")
