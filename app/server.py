@@ -17,6 +17,10 @@ from app.layout import TITLE, create_app
 
 _LOOPBACK_NAMES = {"localhost", "localhost.localdomain", "ip6-localhost"}
 
+#: Largest websocket message accepted [bytes]: bounds an uploaded snapshot (20 MB limit,
+#: base64-encoded by the browser, so about 27 MB on the wire).
+MAX_MESSAGE_BYTES = 32 * 1024 * 1024
+
 
 def is_loopback(host: str) -> bool:
     """True when host names this machine's loopback interface only."""
@@ -64,7 +68,8 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
     return pn.serve(
         {"/": create_app}, port=port, address=host, show=show, start=start,
         threaded=threaded, title=TITLE, websocket_origin=allowed_origins(host, port),
-        verbose=False, admin=False, check_unused_sessions=5000, unused_session_lifetime=15000)
+        verbose=False, admin=False, check_unused_sessions=5000, unused_session_lifetime=15000,
+        websocket_max_message_size=MAX_MESSAGE_BYTES)
 
 
 def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None:
