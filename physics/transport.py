@@ -35,7 +35,8 @@ from physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent_transverse
 
 G0_S = 2 * sc.e**2 / sc.h  # conductance quantum 2e^2/h [S]
 N_K = 6  # Gauss-Legendre nodes of the transverse-k integral (per energy; 2e-4 rel. vs 40)
-N_E = 90  # energies of the spectral current
+N_E = 64  # energies of each pair's current integral, over where it flows
+N_E_SCAN = 160  # energies of the k = 0 scan and of the reported spectrum
 _GL_K = np.polynomial.legendre.leggauss(N_K)
 
 
@@ -106,6 +107,32 @@ def energy_grid(
     return np.linspace(e_lo, e_hi, n)
 
 
+def _pair_transmission_integral(
+    x_nm: np.ndarray, cb: BandProfile, vb: BandProfile, e: np.ndarray, model: str,
+    k_integral: bool = True,
+) -> tuple[np.ndarray, np.ndarray]:
+    """For one (valence, conduction) subband pair: (1/pi) int_0^inf T(E, k) dk [1/m]
+    (zero without ``k_integral``) and T(E, k = 0), at each energy."""
+    m_r = cb.mass * vb.mass / (cb.mass + vb.mass)
+    m_t = 2 * m_r if model == "two-band" else cb.mass
+    # transverse kinetic energy closes the source-valence/drain-conduction overlap:
+    # energy E stays connected for a k^2 < min((Ev_src - E)/b, (E - Ec_drn)/a),
+    # so each energy gets its own Gauss-Legendre nodes on [0, k_max(E)]
+    a, b = HBAR2_2M0_EV_NM2 / cb.mass, HBAR2_2M0_EV_NM2 / vb.mass
+    k2 = np.minimum((vb.edge_eV[0] - e) / b, (e - cb.edge_eV[-1]) / a)
+    k_max = np.sqrt(np.clip(k2, 0.0, None))  # (nE,)
+    xg, wg = _GL_K
+    if k_integral:  # row 0: k = 0 (the reported transmission); then the nodes of each energy
+        k = np.vstack([np.zeros_like(e), 0.5 * k_max[None, :] * (xg[:, None] + 1)])
+        wk = np.vstack([np.zeros_like(e), 0.5 * k_max[None, :] * wg[:, None]])
+    else:
+        k, wk = np.zeros((1, e.size)), np.zeros((1, e.size))
+    expo = wkb_exponent_transverse(x_nm, cb.edge_eV, vb.edge_eV, a, b, k, e, m_t, model)
+    trans = np.where(k_max[None, :] > 0, np.exp(-expo), 0.0)
+    # int dk/2pi over all k = (1/pi) int_0^inf dk ; k in 1/nm -> 1/m
+    return (wk * trans).sum(axis=0) / np.pi * 1e9, trans[0]
+
+
 def band_to_band(
     x_nm: np.ndarray, conduction: list[BandProfile], valence: list[BandProfile],
     efs_eV: float, efd_eV: float, kT_eV: float, model: str = "two-band",
@@ -118,43 +145,55 @@ def band_to_band(
     x_nm : (nx,) path along transport [nm]; conduction, valence : subband profiles;
     efs_eV, efd_eV : source and drain Fermi levels [eV]; kT_eV : thermal energy [eV];
     model : imaginary wave-vector model ("two-band" or "one-band");
-    energies_eV : energy grid (default: `energy_grid`).
+    energies_eV : a fixed energy grid for every pair; by default each pair is first
+        scanned at k = 0 on `energy_grid` (N_E_SCAN points), and its current integrated
+        on N_E cosine-spaced points spanning only the energies where it flows (J at
+        k = 0 above 1e-7 of its peak; the k integral only narrows that range). J(E)
+        has square-root edges where the transverse range k_max(E) closes, which a
+        uniform grid resolves poorly; in the cosine variable they are smooth.
     """
-    e = energy_grid(conduction, valence, efs_eV, efd_eV, kT_eV) if energies_eV is None \
-        else np.asarray(energies_eV, float)
+    fixed = energies_eV is not None
+    e = np.asarray(energies_eV, float) if fixed else \
+        energy_grid(conduction, valence, efs_eV, efd_eV, kT_eV, n=N_E_SCAN)
     if e is None:
         e0 = np.linspace(min(efs_eV, efd_eV) - 0.05, max(efs_eV, efd_eV) + 0.05, 3)
         return Spectrum(e0, np.zeros(3), np.zeros(3), 0.0)
-    occupancy = fermi(e, efs_eV, kT_eV) - fermi(e, efd_eV, kT_eV)
     if efs_eV == efd_eV:
-        occupancy = np.zeros_like(e)
+        return Spectrum(e, np.zeros_like(e), np.zeros_like(e), 0.0)
+
+    def occupancy(en: np.ndarray) -> np.ndarray:
+        return fermi(en, efs_eV, kT_eV) - fermi(en, efd_eV, kT_eV)
+
+    occ = occupancy(e)
     density = np.zeros_like(e)
     t_best = np.zeros_like(e)
+    current = 0.0
     for vb in valence:
         for cb in conduction:
-            m_r = cb.mass * vb.mass / (cb.mass + vb.mass)
-            m_t = 2 * m_r if model == "two-band" else cb.mass
-            overlap = vb.edge_eV[0] - cb.edge_eV[-1]
-            if overlap <= 0:
+            if vb.edge_eV[0] - cb.edge_eV[-1] <= 0:
                 continue
-            # transverse kinetic energy closes the source-valence/drain-conduction overlap:
-            # energy E stays connected for a k^2 < min((Ev_src - E)/b, (E - Ec_drn)/a),
-            # so each energy gets its own Gauss-Legendre nodes on [0, k_max(E)]
-            a, b = HBAR2_2M0_EV_NM2 / cb.mass, HBAR2_2M0_EV_NM2 / vb.mass
-            k2 = np.minimum((vb.edge_eV[0] - e) / b, (e - cb.edge_eV[-1]) / a)
-            k_max = np.sqrt(np.clip(k2, 0.0, None))  # (nE,)
-            xg, wg = _GL_K
-            # row 0: k = 0 (the reported transmission); then the nodes of each energy
-            k = np.vstack([np.zeros_like(e), 0.5 * k_max[None, :] * (xg[:, None] + 1)])
-            wk = np.vstack([np.zeros_like(e), 0.5 * k_max[None, :] * wg[:, None]])
-            expo = wkb_exponent_transverse(x_nm, cb.edge_eV, vb.edge_eV, a, b, k, e, m_t, model)
-            trans = np.where(k_max[None, :] > 0, np.exp(-expo), 0.0)
-            # int dk/2pi over all k = (1/pi) int_0^inf dk ; k in 1/nm -> 1/m
-            density += (wk * trans).sum(axis=0) / np.pi * 1e9
-            t_best = np.maximum(t_best, trans[0])
-    # (2q/h) * (q * 1 eV) per eV of energy -> A/m per eV = uA/um per eV
-    density = G0_S * density * occupancy
-    current = float(np.trapezoid(density, e)) if efs_eV != efd_eV else 0.0
+            if fixed:
+                tk, t0 = _pair_transmission_integral(x_nm, cb, vb, e, model)
+                pair = G0_S * tk * occ  # (2q/h)(q 1 eV) per eV -> A/m per eV = uA/um per eV
+                density += pair
+                current += float(np.trapezoid(pair, e))
+                t_best = np.maximum(t_best, t0)
+                continue
+            _, t0 = _pair_transmission_integral(x_nm, cb, vb, e, model, k_integral=False)
+            t_best = np.maximum(t_best, t0)
+            j0 = np.abs(t0 * occ)
+            if j0.max() <= 0:
+                continue
+            on = np.flatnonzero(j0 > 1e-7 * j0.max())
+            lo, hi = e[max(on[0] - 1, 0)], e[min(on[-1] + 1, e.size - 1)]
+            # cosine-spaced energies: J(E) has square-root edges where k_max(E) -> 0 (the
+            # source valence and drain conduction edges); in theta they are smooth
+            theta = np.linspace(0.0, np.pi, N_E)
+            e_fine = 0.5 * (lo + hi) - 0.5 * (hi - lo) * np.cos(theta)
+            tk, _ = _pair_transmission_integral(x_nm, cb, vb, e_fine, model)
+            pair = G0_S * tk * occupancy(e_fine)
+            current += float(np.trapezoid(pair * 0.5 * (hi - lo) * np.sin(theta), theta))
+            density += np.interp(e, e_fine, pair, left=0.0, right=0.0)
     return Spectrum(e, density, t_best, current)
 
 
