@@ -12,7 +12,13 @@
   to a pending bias point so that the band diagram stays quick;
 * results reach the page through ``doc.add_next_tick_callback`` (Bokeh's thread-safe way
   to touch a served document); a failed solve shows a message naming the setting and
-  keeps the last good plots.
+  keeps the last good plots;
+* pinned designs (`app.pinning`) keep their band edges at the present bias (solved on the
+  bias worker after the band diagram) and their transfer curves (on the sweep worker,
+  after the present curves) on the plots, with a comparison table under the plots;
+* a snapshot (`app.snapshot`) is exported and verified on a third worker; an import or a
+  demo design restores every control in one update; the design, bias and sweep live in
+  the page address (`app.sharing`), so that a link reproduces the view.
 
 With ``background=False`` (tests, scripts) every computation runs at once in the
 calling thread.
@@ -20,12 +26,17 @@ calling thread.
 
 from __future__ import annotations
 
+import asyncio
+import datetime as _dt
+import functools
+import io
 import logging
 import math
 import threading
 import time
 from concurrent.futures import ThreadPoolExecutor
 from pathlib import Path
+from urllib.parse import parse_qsl, urlencode
 
 import numpy as np
 import panel as pn
@@ -33,7 +44,26 @@ from bokeh.models import CustomJSTickFormatter
 from panel.io.document import hold
 from panel.io.state import set_curdoc
 
+from app.compare_panes import UPLOAD_LIMIT_BYTES, ComparisonPanel, SnapshotControls
+from app.pinning import Pin, PinBoard, PinError, comparison_rows
 from app.plots import ExplorerFigures, metrics_html
+from app.sharing import (
+    LINKED_PARAMETERS,
+    query_from_state,
+    settings_from_state,
+    state_updates,
+    updates_from_query,
+)
+from app.snapshot import (
+    ModelSettings,
+    SnapshotError,
+    SnapshotSettings,
+    TransferSweep,
+    export_snapshot,
+    import_snapshot,
+    list_presets,
+    verify_snapshot,
+)
 from app.state import (
     COMPUTED_PARAMETERS,
     DESIGN_PARAMETERS,
@@ -43,6 +73,10 @@ from app.state import (
 from physics.materials import check_tunnelling_material, eot_nm, get_semiconductor
 from physics.poisson import SolverError
 from physics.structure import gate_dielectric
+
+#: Sweep points solved at once across all sessions (one per core): sweeps of many
+#: sessions interleave point by point, and single bias points never wait for them.
+SWEEP_SLOTS = threading.BoundedSemaphore(2)
 
 log = logging.getLogger("sub60.app")
 
@@ -123,7 +157,7 @@ class Explorer:
         self._pools: dict[str, ThreadPoolExecutor] = {}
         if background:
             self._pools = {k: ThreadPoolExecutor(1, thread_name_prefix=f"sub60-{k}")
-                           for k in ("bias", "sweep")}
+                           for k in ("bias", "sweep", "io")}
         self._shown_transfer: tuple | None = None
         self._shown_output: tuple | None = None
         self._curves: dict[str, object] = {}      # last complete transfer curves
@@ -132,10 +166,34 @@ class Explorer:
         self._last_changed: str | None = None
         self._sweep_started = 0.0
         self.last_bias = None
+        self._tfet_key: tuple | None = None        # what the shown tunnel-FET curve is of
+        # pinned designs: the board, and what each slot shows (curve, keys of its results)
+        self.pins = PinBoard()
+        self._pin_curves: dict[int, object] = {}
+        self._pin_curve_keys: dict[int, tuple] = {}
+        self._pin_band_keys: dict[int, tuple] = {}
+        self._pin_gen = 0
+        self._importing = False
+        self._report_token = 0
+        self._location = None
         self._css = stylesheet()
         self._build_panes()
         self._build_controls()
         self.state.param.watch(self._on_change, [*COMPUTED_PARAMETERS, "presentation"])
+
+    @classmethod
+    def from_query(cls, query: dict[str, str], **kw) -> Explorer:
+        """An explorer at the settings of a page address's query (see `app.sharing`);
+        values that cannot be used are ignored with a message naming their control."""
+        state = ExplorerState()
+        updates, problems = updates_from_query(query)
+        state.param.update(**updates)
+        explorer = cls(state, **kw)
+        if problems:
+            explorer._set_error("link", "**Some settings of the page address were ignored** "
+                                "(the defaults are shown for them):\n\n"
+                                + "\n".join(f"- {p}" for p in problems))
+        return explorer
 
     # ================================================================== page
     def _build_panes(self) -> None:
@@ -164,6 +222,14 @@ class Explorer:
             pn.Row(p["band"], p["spectrum"], p["transmission"], p["transfer"]),
             pn.Row(p["map"], p["output"], p["swing"]),
             margin=(0, 4))
+        # widget events may arrive outside the document lock (button clicks are handled
+        # in a coroutine): the actions touch the figures, so they run as a locked tick
+        self.compare = ComparisonPanel(
+            [self._css], lambda name: self._post(self.pin_present, name),
+            lambda slot, name: self._post(self.rename_pin, slot, name),
+            lambda slot: self._post(self.load_pin, slot),
+            lambda slot: self._post(self.unpin, slot))
+        self.compare.set_pins((), self.pins.default_name(), False)
 
     def _build_controls(self) -> None:
         s = self.state.param
@@ -231,7 +297,12 @@ class Explorer:
                            margin=(4, 4), header_background="#eef2f5",
                            css_classes=["control-group"])
 
+        self.snapshots = SnapshotControls([self._css], _WIDGET_WIDTH, _preset_labels(),
+                                          self._download)
+        self.snapshots.presets.param.watch(self._on_preset, "value")
+        self.snapshots.upload.param.watch(self._on_upload, "value")
         self.cards = [
+            card("Demo designs and snapshots", *self.snapshots.items),
             card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], w["vdd_V"],
                  w["ioff_log10_uA_per_um"], ioff_note),
             card("Structure", w["body_thickness_nm"], w["gate_length_nm"],
@@ -261,10 +332,14 @@ class Explorer:
                                width=280, margin=0),
                      sizing_mode="stretch_width", margin=0)
         self.main = pn.Column(top, self.metrics, self.material_warning, self.alert, self.plots,
-                              sizing_mode="stretch_width", css_classes=["sub60-main"], margin=0)
+                              self.compare.view, sizing_mode="stretch_width",
+                              css_classes=["sub60-main"], margin=0)
         self._update_material_warning()
+        if self._doc is not None and self._doc.session_context is not None:
+            self._location = pn.state.location
         self._solve_bias_now()
         if self._doc is not None and self._doc.session_context is not None:
+            pn.state.onload(self._sync_url)  # the browser's address takes it once loaded
             pn.state.onload(self._request_sweeps)
             pn.state.on_session_destroyed(lambda _ctx: self.close())
         else:
@@ -296,8 +371,21 @@ class Explorer:
             self._update_material_warning()
         if names & set(DESIGN_PARAMETERS) and "design" in self._errors:
             self._errors.pop("design")
+        if not self._importing:  # a change by hand: the view is no longer the file's
+            self._clear_error("link")
+            if self.snapshots.presets.value:
+                self.snapshots.presets.value = ""
+        self._sync_url(names)
+        try:
+            stale = self.state.transfer_key() != self._shown_transfer
+        except ValueError:
+            stale = False  # the message says why; the strip keeps the last valid result
+        if stale:  # dimmed at once, not only when the worker starts on the new curves
+            self.metrics.object = self._metrics_text(stale=True)
         self._request_bias()
         self._request_sweeps()
+        self._request_pin_work()
+        self._refresh_comparison()
 
     def _sync_enabled(self) -> None:
         self.widgets["oxide_permittivity"].disabled = self.state.oxide != "custom"
@@ -308,9 +396,16 @@ class Explorer:
             design = self.state.design()
         except ValueError as exc:
             self._set_error("design", self._value_message(exc))
+            self._enable_design_actions(False)
             return None
         self._clear_error("design")
+        self._enable_design_actions(True)
         return design
+
+    def _enable_design_actions(self, valid: bool) -> None:
+        """Pinning and export need a valid design."""
+        self.snapshots.download.disabled = not valid
+        self.compare.button.disabled = not valid or self.pins.full
 
     # ================================================================== bias point
     def _solve_bias_now(self) -> None:
@@ -416,7 +511,8 @@ class Explorer:
                     progress = self._progress_callback(g, key, device, job, done, total)
                     tc = sim.transfer_curve(
                         device, job["vg"], job["vd"], ioff_target_uA_per_um=job["ioff"],
-                        vdd_V=job["vdd"], progress=progress, cancelled=superseded)
+                        vdd_V=job["vdd"], progress=progress, cancelled=superseded,
+                        slots=SWEEP_SLOTS)
                     done += job["vg"].size
                     self._post(self._apply_transfer, g, key, tc, job, done, total)
             if need_output:
@@ -424,7 +520,8 @@ class Explorer:
                 for vg in job["out_vg"]:
                     if superseded():
                         return
-                    curves.append(sim.output_curve(job["design"], float(vg), job["out_vd"]))
+                    curves.append(sim.output_curve(job["design"], float(vg), job["out_vd"],
+                                                   slots=SWEEP_SLOTS))
                     done += job["out_vd"].size
                     self._post(self._apply_outputs, g, list(curves), job, done, total)
             self._post(self._sweep_end, g, time.perf_counter() - t0)
@@ -476,6 +573,9 @@ class Explorer:
         self.figures.show_transfer(key, tc.vg_V, tc.id_uA_per_um, tc.btbt_uA_per_um,
                                    tc.thermionic_uA_per_um, tc.ss_mV_per_dec)
         self._set_progress(done, total)
+        if key == "tfet":
+            self._tfet_key = job["transfer_key"]
+            self._refresh_comparison()
         if key == "twin":
             self._shown_transfer = job["transfer_key"]
             self.figures.transfer.title.text = "Transfer curve"
@@ -518,6 +618,352 @@ class Explorer:
     def _set_progress(self, done: int, total: int) -> None:
         self.progress.value = int(round(100 * min(done, total) / max(total, 1)))
         self.status.object = f"Computing curves… {min(done, total)}/{total} points"
+
+    # ================================================================== pinned designs
+    def _present_sweep(self) -> TransferSweep:
+        lo, hi = self.state.vg_sweep_V
+        return TransferSweep(float(lo), float(hi), int(self.state.vg_points),
+                             float(self.state.vd_V))
+
+    def _pin_curve_key(self, pin: Pin) -> tuple:
+        return (pin.design, pin.sweep, self.state.ioff_target_uA_per_um, float(self.state.vdd_V))
+
+    def _pin_band_key(self, pin: Pin) -> tuple:
+        return (pin.design, float(self.state.vg_V), float(self.state.vd_V))
+
+    def pin_present(self, name: str | None = None) -> Pin | None:
+        """Pin the present design with its sweep (the default name when name is empty);
+        returns the pin, or None with the reason shown beside the pin button."""
+        try:
+            design = self.state.design()
+            pin = self.pins.add(name, design, self._present_sweep())
+        except ValueError as exc:  # PinError, or an invalid design
+            self.compare.say(f"Not pinned: {exc}")
+            return None
+        self.compare.say("")
+        self.compare.name.value = ""
+        # the present results, when up to date, are the pin's: no new solve
+        tc = self._curves.get("tfet")
+        curve = tc if tc is not None and self._tfet_key == self.state.transfer_key() else None
+        if curve is not None:
+            self._pin_curves[pin.slot] = curve
+            self._pin_curve_keys[pin.slot] = self._pin_curve_key(pin)
+        bp = self.last_bias
+        bias = bp if bp is not None and (bp.design, bp.vg_V, bp.vd_V) == self._pin_band_key(
+            pin) else None
+        if bias is not None:
+            self._pin_band_keys[pin.slot] = self._pin_band_key(pin)
+        self.figures.show_pin(pin.slot, pin.name, bias=bias, curve=curve)
+        self._pins_changed()
+        self._request_pin_work()
+        return pin
+
+    def rename_pin(self, slot: int, name: str) -> Pin | None:
+        """Rename a pinned design (legends and table follow); a name that is not allowed
+        is refused with a message and the old name put back."""
+        old = self.pins.get(slot)
+        if old is None or name == old.name:
+            return old
+        try:
+            pin = self.pins.rename(slot, name)
+        except PinError as exc:
+            self.compare.say(f"Not renamed: {exc}")
+            self.compare.set_pins(self.pins.pins, self.pins.default_name(), self.pins.full)
+            return None
+        self.compare.say("")
+        self.figures.show_pin(slot, pin.name)
+        self._pins_changed()
+        return pin
+
+    def unpin(self, slot: int) -> None:
+        """Take a pinned design off the plots and out of the table."""
+        if self.pins.remove(slot) is None:
+            return
+        for d in (self._pin_curves, self._pin_curve_keys, self._pin_band_keys):
+            d.pop(slot, None)
+        self.figures.clear_pin(slot)
+        self.compare.say("")
+        self._pins_changed()
+
+    def load_pin(self, slot: int) -> None:
+        """Put a pinned design and its sweep into the controls (one update)."""
+        pin = self.pins.get(slot)
+        if pin is None:
+            return
+        updates = dict(self.state.design_settings(pin.design), vd_V=pin.sweep.vd_V,
+                       vg_sweep_V=(pin.sweep.vg_start_V, pin.sweep.vg_stop_V),
+                       vg_points=pin.sweep.vg_points)
+        try:
+            self.state.param.update(**updates)
+        except ValueError as exc:
+            self.compare.say(f"Not loaded: {exc}")
+
+    def _pins_changed(self) -> None:
+        self.compare.set_pins(self.pins.pins, self.pins.default_name(), self.pins.full)
+        self._enable_design_actions(self._errors.get("design") is None)
+        self._refresh_comparison()
+
+    def _request_pin_work(self) -> None:
+        """Solve what the pinned designs still miss: band edges at the present bias on
+        the bias worker (after the band diagram), transfer curves on the sweep worker."""
+        if not len(self.pins):
+            return
+        pins = self.pins.pins
+        bands = [p for p in pins if self._pin_band_keys.get(p.slot) != self._pin_band_key(p)]
+        curves = [p for p in pins if self._pin_curve_keys.get(p.slot) != self._pin_curve_key(p)]
+        if bands:
+            self._submit("bias", self._pin_bands_job, self._bias_gen, bands,
+                         float(self.state.vg_V), float(self.state.vd_V))
+        if curves:
+            self._pin_gen += 1
+            self._submit("sweep", self._pin_curves_job, self._pin_gen, curves,
+                         self.state.ioff_target_uA_per_um, float(self.state.vdd_V))
+
+    def _pin_bands_job(self, g: int, pins: list[Pin], vg: float, vd: float) -> None:
+        for pin in pins:
+            if g != self._bias_gen:  # a newer bias point: these edges are out of date
+                return
+            try:
+                bp = self.simulator.solve_bias(pin.design, vg, vd)
+            except (ValueError, SolverError) as exc:
+                self._post(self._pin_failed, pin, exc)
+                continue
+            self._post(self._apply_pin_band, pin, (pin.design, vg, vd), bp)
+
+    def _pin_curves_job(self, g: int, pins: list[Pin], ioff: float, vdd: float) -> None:
+        def superseded() -> bool:
+            self._bias_idle.wait(timeout=1.0)  # the band diagram goes first
+            return g != self._pin_gen
+
+        for pin in pins:
+            try:
+                tc = self.simulator.transfer_curve(
+                    pin.design, pin.sweep.gate_voltages(), pin.sweep.vd_V,
+                    ioff_target_uA_per_um=ioff, vdd_V=vdd, cancelled=superseded, slots=SWEEP_SLOTS)
+            except InterruptedError:
+                return
+            except (ValueError, SolverError) as exc:
+                self._post(self._pin_failed, pin, exc)
+                continue
+            self._post(self._apply_pin_curve, pin, (pin.design, pin.sweep, ioff, vdd), tc)
+
+    def _apply_pin_band(self, pin: Pin, key: tuple, bp) -> None:
+        now = self.pins.get(pin.slot)
+        if now is None or key != self._pin_band_key(now):
+            return
+        self._pin_band_keys[pin.slot] = key
+        self.figures.show_pin(pin.slot, now.name, bias=bp)
+
+    def _apply_pin_curve(self, pin: Pin, key: tuple, tc) -> None:
+        now = self.pins.get(pin.slot)
+        if now is None or key != self._pin_curve_key(now):
+            return
+        self._pin_curves[pin.slot] = tc
+        self._pin_curve_keys[pin.slot] = key
+        self.figures.show_pin(pin.slot, now.name, curve=tc)
+        self._refresh_comparison()
+
+    def _pin_failed(self, pin: Pin, exc: Exception) -> None:
+        if self.pins.get(pin.slot) is None:
+            return
+        first = str(exc).split("; residual history")[0]
+        self.compare.say(f"{pin.name}: not solved ({first})")
+
+    def comparison(self) -> list:
+        """The rows of the comparison table (`app.pinning.ComparisonRow`): the present
+        design (figures of merit None while its curve is computing), then each pin."""
+        try:
+            design = self.state.design()
+            key = self.state.transfer_key()
+        except ValueError:
+            present = None
+        else:
+            tc = self._curves.get("tfet")
+            fresh = tc is not None and self._tfet_key == key
+            present = (design, float(self.state.vd_V), tc.metrics if fresh else None)
+        pinned = []
+        for p in self.pins.pins:
+            tc = self._pin_curves.get(p.slot)
+            fresh = tc is not None and self._pin_curve_keys.get(p.slot) == self._pin_curve_key(p)
+            pinned.append((p, tc.metrics if fresh else None))
+        return comparison_rows(present, pinned)
+
+    def _refresh_comparison(self) -> None:
+        if len(self.pins):
+            self.compare.show_rows(self.comparison())
+
+    # ================================================================== page address
+    def _sync_url(self, names=None) -> None:
+        """Write the linked settings into the page address (all, or the changed ones)."""
+        if self._location is None:
+            return
+        chosen = LINKED_PARAMETERS if names is None else [n for n in LINKED_PARAMETERS
+                                                          if n in names]
+        if not chosen:
+            return
+        # the query is written as text here: Location.update_query would parse the present
+        # values back into numbers and spell them out again (4e19 -> 4e+19)
+        query = dict(parse_qsl(self._location.search.lstrip("?"), keep_blank_values=True))
+        query.update(query_from_state(self.state, chosen))
+        search = "?" + urlencode(query, safe=",")
+        if search != self._location.search:
+            self._location.search = search
+
+    # ================================================================== snapshots
+    def snapshot_settings(self) -> SnapshotSettings:
+        """The snapshot settings of the page: controls, numerical model, pinned designs."""
+        model = ModelSettings(self.simulator.resolution, self.simulator.model)
+        return settings_from_state(self.state, [p.record() for p in self.pins.pins], model)
+
+    def export_bytes(self, created: _dt.datetime | None = None) -> tuple[str, bytes]:
+        """(file name, zip bytes) of a snapshot of the page, recomputed from scratch."""
+        settings = self.snapshot_settings()
+        when = (created or _dt.datetime.now(_dt.UTC)).replace(microsecond=0)
+        stamp = when.isoformat().replace("+00:00", "Z")
+        data = export_snapshot(settings, created_utc=stamp)
+        return f"sub60-snapshot-{when:%Y-%m-%dT%H%M%S}Z.zip", data
+
+    async def _download(self):
+        """FileDownload callback: export on the io worker, with a note meanwhile."""
+        ctl = self.snapshots
+        idle_note = ctl.export_note.object
+        ctl.export_note.object = ('<div class="note busy">Preparing the snapshot: every curve '
+                                  "is recomputed from scratch, a few seconds…</div>")
+        ctl.download.loading = True
+        try:
+            loop = asyncio.get_running_loop()
+            if self.background:
+                name, data = await loop.run_in_executor(self._pools["io"], self.export_bytes)
+            else:
+                name, data = self.export_bytes()
+        except (ValueError, SolverError) as exc:
+            ctl.export_note.object = idle_note
+            self._set_error("snapshot", f"**Snapshot not written**: {exc}")
+            raise
+        finally:
+            ctl.download.loading = False
+        self._clear_error("snapshot")
+        ctl.download.filename = name
+        ctl.export_note.object = (f'<div class="note done">Saved {name} '
+                                  f"({len(data) / 1024:.0f} kB).</div>")
+        return io.BytesIO(data)
+
+    def _on_upload(self, event) -> None:
+        data = event.new
+        if not data:
+            return
+        name = self.snapshots.upload.filename or "the file"
+        self._post(self._open_upload, data, name)
+
+    def _open_upload(self, data: bytes, name: str) -> None:
+        try:
+            self.import_bytes(data, name)
+        finally:
+            self.snapshots.upload.clear()  # the same file can be chosen again
+
+    def import_bytes(self, data: bytes, filename: str = "the file") -> bool:
+        """Open a snapshot (zip or settings.json): restore every control, the pinned
+        designs and the plots, then recompute its figures of merit in the background and
+        report whether they equal the stored ones. A file that cannot be used leaves
+        everything as it was, with the reason in the page's error area."""
+        label = html_escape(filename)
+        if len(data) > UPLOAD_LIMIT_BYTES:
+            self._set_error("snapshot", f"**{label} not opened**: {len(data)} bytes, over the "
+                            f"page's limit of {UPLOAD_LIMIT_BYTES / 1024 / 1024:g} MB. "
+                            "Nothing was changed.")
+            return False
+        try:
+            settings, report = import_snapshot(bytes(data), max_bytes=UPLOAD_LIMIT_BYTES)
+            updates, notes = state_updates(settings)
+            PinBoard().replace_all(settings.pinned, settings.transfer_sweep)  # names usable?
+        except (SnapshotError, PinError) as exc:
+            self._set_error("snapshot", f"**{label} not opened**: {html_escape(str(exc))}. "
+                            "Nothing was changed.")
+            return False
+        self._clear_error("snapshot")
+        self._apply_settings(settings, updates)
+        self._report_token += 1
+        heading = f"Opened {label}" + (f": {html_escape(settings.title)}" if settings.title
+                                       else "")
+        n = len(settings.pinned)
+        notes = [f"every control restored, {n} pinned design{'s' if n != 1 else ''}", *notes]
+        self.snapshots.show_report("busy" if report.has_stored else "info", heading,
+                                   [*report.lines(), *notes])
+        if report.has_stored:
+            self._submit("io", self._verify_job, self._report_token, settings, report, notes,
+                         heading)
+        return True
+
+    def _verify_job(self, token: int, settings, report, notes: list[str], heading: str) -> None:
+        try:
+            report.differences = verify_snapshot(settings)
+            report.verified = True
+            error = None
+        except (ValueError, SolverError) as exc:
+            error = f"the recomputation failed: {str(exc).split('; residual history')[0]}"
+        self._post(self._show_verified, token, report, notes, heading, error)
+
+    def _show_verified(self, token: int, report, notes: list[str], heading: str,
+                       error: str | None) -> None:
+        if token != self._report_token:
+            return  # another file or demo design was opened since
+        lines = [*report.lines(), *([error] if error else []), *notes]
+        good = error is None and report.metrics_match and report.version_matches
+        self.snapshots.show_report("ok" if good else "warn", heading, lines)
+
+    def _on_preset(self, event) -> None:
+        if event.new:
+            self._post(self.load_preset, event.new)
+
+    def load_preset(self, name: str) -> bool:
+        """Put a demo design (assets/presets) into the controls, with its pinned designs."""
+        settings = _presets().get(name)
+        if settings is None:
+            self._set_error("snapshot", f"**Demo design {name!r} not found**.")
+            return False
+        try:
+            updates, notes = state_updates(settings)
+        except SnapshotError as exc:
+            self._set_error("snapshot", f"**Demo design {name!r} not loaded**: {exc}")
+            return False
+        self._clear_error("snapshot")
+        self._apply_settings(settings, updates)
+        self._report_token += 1
+        self.snapshots.show_report("info", f"Demo design: {html_escape(settings.title or name)}",
+                                   ([settings.note] if settings.note else []) + notes)
+        return True
+
+    def _apply_settings(self, settings: SnapshotSettings, updates: dict) -> None:
+        """Every control, the numerical model and the pinned designs of a snapshot, in
+        one update of the state (one recomputation)."""
+        from physics.simulate import Simulator
+
+        m = settings.model
+        new_model = (m.resolution, m.tunnelling_model) != (self.simulator.resolution,
+                                                           self.simulator.model)
+        if new_model:
+            self.simulator = Simulator(resolution=m.resolution, model=m.tunnelling_model)
+            self.last_bias = None  # another grid: no warm start from the old one
+            self._shown_transfer = self._shown_output = self._tfet_key = None
+        for p in self.pins.pins:
+            self.figures.clear_pin(p.slot)
+        for d in (self._pin_curves, self._pin_curve_keys, self._pin_band_keys):
+            d.clear()
+        for p in self.pins.replace_all(settings.pinned, settings.transfer_sweep):
+            self.figures.show_pin(p.slot, p.name)
+        self.compare.say("")
+        self._pins_changed()
+        before = (self._bias_gen, self._sweep_gen)
+        self._importing = True
+        try:
+            self.state.param.update(**updates)
+        finally:
+            self._importing = False
+        if before == (self._bias_gen, self._sweep_gen):  # the controls were there already
+            if new_model:
+                self._request_bias()
+                self._request_sweeps()
+            self._request_pin_work()
 
     # ================================================================== errors
     def _fail(self, kind: str, g: int, exc: Exception) -> None:
@@ -660,6 +1106,29 @@ def _log_failure(future) -> None:
         log.error("sub60: background job failed", exc_info=exc)
 
 
+def html_escape(text: str) -> str:
+    """Text for the page's Markdown/HTML messages (no markup from a file gets through)."""
+    import html
+
+    return html.escape(text, quote=True).replace("*", "&#42;").replace("_", "&#95;")
+
+
+@functools.lru_cache(maxsize=1)
+def _presets() -> dict[str, SnapshotSettings]:
+    """The demo designs of assets/presets (read once per process; bad files skipped)."""
+    return list_presets(on_error=lambda name, exc: log.warning("preset %r skipped: %s",
+                                                               name, exc))
+
+
+def _preset_labels() -> dict[str, str]:
+    """Preset name -> short label (its title up to the colon)."""
+    return {name: (s.title or name).split(":")[0] for name, s in _presets().items()}
+
+
 def create_app() -> pn.viewable.Viewable:
-    """A fresh explorer page (one per browser session)."""
-    return Explorer().panel()
+    """A fresh explorer page (one per browser session), at the settings of the page
+    address's query string when it has one."""
+    loc = pn.state.location
+    search = loc.search if loc is not None and loc.search else ""
+    query = dict(parse_qsl(search.lstrip("?"), keep_blank_values=True))
+    return Explorer.from_query(query).panel()

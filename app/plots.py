@@ -10,7 +10,10 @@ Test hooks: figures are named ``band_plot``, ``spectrum_plot``, ``transmission_p
 ``transfer_plot``, ``swing_plot``, ``map_plot``, ``output_plot``; their sources
 ``band_source``, ``spectrum_source``, ``window_source``, ``transfer_tfet_source``,
 ``transfer_twin_source``, ``vg_marker_source``, ``limit_source``, ``swing_tfet_source``,
-``swing_twin_source``, ``map_source``, ``output_source_0`` ... .
+``swing_twin_source``, ``map_source``, ``output_source_0`` ... ; pinned designs
+(slot k = 0 ... 7): ``pin_band_source_k``, ``pin_transfer_source_k``, renderers
+``pin_band_ec_k``, ``pin_band_ev_k``, ``pin_transfer_k``, legends ``pin_band_legend``,
+``pin_transfer_legend``.
 """
 
 from __future__ import annotations
@@ -37,6 +40,7 @@ from bokeh.models import (
 )
 from bokeh.plotting import figure
 
+from app.figures import COLOURS as _FIGURE_COLOURS
 from physics.metrics import thermionic_limit_mV_per_dec
 
 
@@ -71,6 +75,10 @@ COLOURS = {
     "grid": "#e9ecef",
 }
 OUTPUT_COLOURS = ("#9cd3cb", "#57ada2", "#1f8578", "#0b4f47")
+#: One colour per pinned-design slot: the palette of the snapshot figures, so that a
+#: pinned design has the same colour on the page and in an exported figure.
+PIN_COLOURS: tuple[str, ...] = tuple(_FIGURE_COLOURS["pinned"])
+N_PIN_SLOTS = len(PIN_COLOURS)
 #: Sequential colour map of the 2D band-edge map (own ramp: night blue -> teal -> sand).
 MAP_PALETTE = tuple(_ramp(((20, 33, 61), (27, 110, 125), (122, 186, 150), (246, 226, 164)), 256))
 TOOLS = "pan,box_zoom,wheel_zoom,reset,save"
@@ -293,6 +301,7 @@ class ExplorerFigures:
         self._build_swing()
         self._build_map()
         self._build_output()
+        self._build_pins()
         self.figures = {"band": self.band, "spectrum": self.spectrum,
                         "transmission": self.transmission, "transfer": self.transfer,
                         "map": self.map, "output": self.output, "swing": self.swing}
@@ -541,6 +550,86 @@ class ExplorerFigures:
                             line_alpha=0.35, line_width=1)
         f.add_layout(self.vd_span)
         self.output = f
+
+    # ------------------------------------------------------------------ pinned designs
+    def _build_pins(self) -> None:
+        """Overlay slots of the pinned designs: conduction and valence edges on the band
+        diagram (thin dashed), the tunnel-FET curve on the transfer plot; each slot has
+        its colour and one legend entry (click to hide), in a legend of its own."""
+        self.pin_band_sources, self.pin_transfer_sources = [], []
+        self.pin_band_items, self.pin_transfer_items = [], []
+        for k, colour in enumerate(PIN_COLOURS):
+            band = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []},
+                                    name=f"pin_band_source_{k}")
+            rs = [self.band.line("x_nm", edge, source=band, line_color=colour, line_width=1.4,
+                                 line_dash="dashed", line_alpha=0.95, name=f"pin_band_{tag}_{k}")
+                  for edge, tag in (("ec_eV", "ec"), ("ev_eV", "ev"))]
+            self.band.add_tools(HoverTool(renderers=rs, tooltips=[
+                ("pinned", "@name"), ("x", "@x_nm{0.0} nm"), ("Ec", "@ec_eV{0.000} eV"),
+                ("Ev", "@ev_eV{0.000} eV")]))
+            transfer = ColumnDataSource({"vg": [], "id": [], "name": []},
+                                        name=f"pin_transfer_source_{k}")
+            rt = self.transfer.line("vg", "id", source=transfer, line_color=colour,
+                                    line_width=1.8, name=f"pin_transfer_{k}")
+            self.transfer.add_tools(HoverTool(renderers=[rt], tooltips=[
+                ("pinned", "@name"), ("Vg", "@vg{0.000} V"), ("Id", "@id{0.00e+0} µA/µm")]))
+            self.pin_band_sources.append(band)
+            self.pin_transfer_sources.append(transfer)
+            self.pin_band_items.append(LegendItem(label=value(" "), renderers=rs, visible=False))
+            self.pin_transfer_items.append(LegendItem(label=value(" "), renderers=[rt],
+                                                      visible=False))
+        self.pin_legends = {}
+        for key, fig, items, where in (("band", self.band, self.pin_band_items, "top_right"),
+                                       ("transfer", self.transfer, self.pin_transfer_items,
+                                        "top_left")):
+            leg = Legend(items=items, location=where, click_policy="hide", visible=False,
+                         name=f"pin_{key}_legend", title="pinned", title_text_font_size="10px",
+                         title_text_font_style="italic", background_fill_alpha=0.8,
+                         label_text_font_size="10px", spacing=0, padding=3,
+                         margin=18 if key == "band" else 4,  # below the region labels
+                         glyph_width=16, glyph_height=12, label_height=12)
+            fig.add_layout(leg)
+            self.pin_legends[key] = leg
+
+    def show_pin(self, slot: int, name: str, bias=None, curve=None) -> None:
+        """Show a pinned design in a slot: its name, and (when given) its band edges at
+        the present bias (`physics.simulate.BiasPoint`) and its transfer curve
+        (`physics.simulate.TransferCurve`); what is not given stays as it was."""
+        for item in (self.pin_band_items[slot], self.pin_transfer_items[slot]):
+            item.label = value(name)
+            item.visible = True
+        if bias is not None:
+            x = np.asarray(bias.x_nm, float)
+            self.pin_band_sources[slot].data = {
+                "x_nm": x, "ec_eV": np.asarray(bias.ec_eV, float),
+                "ev_eV": np.asarray(bias.ev_eV, float), "name": [name] * x.size}
+        else:
+            src = self.pin_band_sources[slot]
+            src.data = {**src.data, "name": [name] * len(src.data["x_nm"])}
+        if curve is not None:
+            vg = np.asarray(curve.vg_V, float)
+            self.pin_transfer_sources[slot].data = {
+                "vg": vg, "id": positive_or_nan(curve.id_uA_per_um), "name": [name] * vg.size}
+        else:
+            src = self.pin_transfer_sources[slot]
+            src.data = {**src.data, "name": [name] * len(src.data["vg"])}
+        self._update_pin_legends()
+
+    def clear_pin(self, slot: int) -> None:
+        """Empty a pinned-design slot."""
+        self.pin_band_sources[slot].data = {"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []}
+        self.pin_transfer_sources[slot].data = {"vg": [], "id": [], "name": []}
+        for item in (self.pin_band_items[slot], self.pin_transfer_items[slot]):
+            item.visible = False
+            for r in item.renderers:  # a slot used again starts shown
+                r.visible = True
+        self._update_pin_legends()
+
+    def _update_pin_legends(self) -> None:
+        n = sum(1 for item in self.pin_transfer_items if item.visible)
+        for leg in self.pin_legends.values():
+            leg.visible = n > 0
+            leg.ncols = 1 if n <= 4 else 2
 
     # ------------------------------------------------------------------ updates
     def show_bias(self, bp) -> None:
