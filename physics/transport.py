@@ -35,8 +35,8 @@ from physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent_transverse
 
 G0_S = 2 * sc.e**2 / sc.h  # conductance quantum 2e^2/h [S]
 N_K = 6  # Gauss-Legendre nodes of the transverse-k integral (per energy; 2e-4 rel. vs 40)
-N_E = 64  # energies of each pair's current integral, over where it flows
-N_E_SCAN = 160  # energies of the k = 0 scan and of the reported spectrum
+N_E = 48  # energies of each pair's current integral, over where it flows
+N_E_SCAN = 100  # energies of the k = 0 scan and of the reported spectrum
 _GL_K = np.polynomial.legendre.leggauss(N_K)
 
 
