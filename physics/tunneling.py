@@ -113,6 +113,37 @@ except ImportError:  # pragma: no cover - numba is a declared dependency
 
 if _nb is not None:
 
+    @_nb.njit(cache=True, nogil=True, inline="always")
+    def _segment_integral(c0, c1, v0, v1, h, two_band, gl_x, gl_w):  # pragma: no cover
+        """int kappa dx / sqrt(2m/hbar^2) over the in-gap part of one segment, where
+        c = E_c - E and v = E - E_v are linear between c0, c1 and v0, v1 [eV^1/2 nm]."""
+        if (c0 <= 0 and c1 <= 0) or (v0 <= 0 and v1 <= 0):
+            return 0.0
+        lo, hi = 0.0, 1.0  # in-gap sub-interval of the segment
+        if c0 <= 0:
+            lo = max(lo, c0 / (c0 - c1))
+        elif c1 <= 0:
+            hi = min(hi, c0 / (c0 - c1))
+        if v0 <= 0:
+            lo = max(lo, v0 / (v0 - v1))
+        elif v1 <= 0:
+            hi = min(hi, v0 / (v0 - v1))
+        length = hi - lo
+        if length <= 0:
+            return 0.0
+        s = 0.0
+        for g in range(gl_x.size):
+            t = lo + 0.5 * (1.0 + gl_x[g]) * length
+            gc = c0 + (c1 - c0) * t
+            gv = v0 + (v1 - v0) * t
+            if gc <= 0 or gv <= 0:
+                continue
+            if two_band:
+                s += gl_w[g] * np.sqrt(gc * gv / (gc + gv))
+            else:
+                s += gl_w[g] * np.sqrt(gc)
+        return 0.5 * length * h * s
+
     @_nb.njit(cache=True, nogil=True)
     def _wkb_kernel(x, ec, ev, energies, mass_rel, two_band, gl_x, gl_w, connected_only):  # pragma: no cover
         nk, nx = ec.shape
@@ -129,34 +160,7 @@ if _nb is not None:
                 for i in range(nx - 1):
                     c0, c1 = ec[kk, i] - e, ec[kk, i + 1] - e
                     v0, v1 = e - ev[kk, i], e - ev[kk, i + 1]
-                    if (c0 <= 0 and c1 <= 0) or (v0 <= 0 and v1 <= 0):
-                        continue
-                    # in-gap sub-interval [lo, hi] of the segment (edges linear in t)
-                    lo, hi = 0.0, 1.0
-                    if c0 <= 0:
-                        lo = max(lo, c0 / (c0 - c1))
-                    elif c1 <= 0:
-                        hi = min(hi, c0 / (c0 - c1))
-                    if v0 <= 0:
-                        lo = max(lo, v0 / (v0 - v1))
-                    elif v1 <= 0:
-                        hi = min(hi, v0 / (v0 - v1))
-                    length = hi - lo
-                    if length <= 0:
-                        continue
-                    h = x[i + 1] - x[i]
-                    s = 0.0
-                    for g in range(gl_x.size):
-                        t = lo + 0.5 * (1.0 + gl_x[g]) * length
-                        gc = c0 + (c1 - c0) * t
-                        gv = v0 + (v1 - v0) * t
-                        if gc <= 0 or gv <= 0:
-                            continue
-                        if two_band:
-                            s += gl_w[g] * np.sqrt(gc * gv / (gc + gv))
-                        else:
-                            s += gl_w[g] * np.sqrt(gc)
-                    acc += 0.5 * length * h * s
+                    acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], two_band, gl_x, gl_w)
                 out[kk, ie] = 2.0 * scale * acc
         return out
 
@@ -206,32 +210,7 @@ if _nb is not None:
                 for i in range(nx - 1):
                     c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
                     v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
-                    if (c0 <= 0 and c1 <= 0) or (v0 <= 0 and v1 <= 0):
-                        continue
-                    lo, hi = 0.0, 1.0
-                    if c0 <= 0:
-                        lo = max(lo, c0 / (c0 - c1))
-                    elif c1 <= 0:
-                        hi = min(hi, c0 / (c0 - c1))
-                    if v0 <= 0:
-                        lo = max(lo, v0 / (v0 - v1))
-                    elif v1 <= 0:
-                        hi = min(hi, v0 / (v0 - v1))
-                    length = hi - lo
-                    if length <= 0:
-                        continue
-                    s = 0.0
-                    for g in range(gl_x.size):
-                        t = lo + 0.5 * (1.0 + gl_x[g]) * length
-                        gc = c0 + (c1 - c0) * t
-                        gv = v0 + (v1 - v0) * t
-                        if gc <= 0 or gv <= 0:
-                            continue
-                        if two_band:
-                            s += gl_w[g] * np.sqrt(gc * gv / (gc + gv))
-                        else:
-                            s += gl_w[g] * np.sqrt(gc)
-                    acc += 0.5 * length * (x[i + 1] - x[i]) * s
+                    acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], two_band, gl_x, gl_w)
                 out[kk, ie] = 2.0 * scale * acc
         return out
 
