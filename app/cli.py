@@ -83,7 +83,6 @@ def _warn(design) -> list[str]:
 
 def load_design(path: str | None, overrides: list[str]):
     """Design from a JSON file (or the default) with name=value overrides."""
-    from physics.design import Design
 
     data: dict[str, Any] = {}
     if path:
@@ -101,6 +100,14 @@ def load_design(path: str | None, overrides: list[str]):
             data = data["design"]
         if not isinstance(data, dict):
             raise UsageError(f"--design: {path!r} must hold a JSON object")
+    return apply_overrides(data, overrides)
+
+
+def apply_overrides(data: dict[str, Any], overrides: list[str]):
+    """A Design from a field dictionary with `--set name=value` overrides applied."""
+    from physics.design import Design
+
+    data = dict(data)
     for item in overrides:
         if "=" not in item:
             raise UsageError(f"--set: expected name=value, got {item!r}")

@@ -122,19 +122,9 @@ def _export_settings(a):
 
 def _override(design, overrides: list[str]):
     """A design with `--set name=value` overrides, parsed as `sub60 bands` does."""
-    from app.cli import parse_value
-    from physics.design import Design
+    from app.cli import apply_overrides
 
-    data = design.to_dict()
-    for item in overrides:
-        if "=" not in item:
-            raise UsageError(f"--set: expected name=value, got {item!r}")
-        key, value = item.split("=", 1)
-        data[key.strip()] = parse_value(value.strip())
-    try:
-        return Design.from_dict(data)
-    except ValueError as exc:
-        raise UsageError(str(exc)) from None
+    return apply_overrides(design.to_dict(), overrides)
 
 
 def _exists_check(path: Path, force: bool, option: str) -> None:
