@@ -73,7 +73,7 @@ def parse_value(text: str) -> Any:
 
 
 def _warn(design) -> list[str]:
-    from physics.simulate import design_warnings
+    from sub60.physics.simulate import design_warnings
 
     notes = list(design_warnings(design))
     for n in notes:
@@ -105,7 +105,7 @@ def load_design(path: str | None, overrides: list[str]):
 
 def apply_overrides(data: dict[str, Any], overrides: list[str]):
     """A Design from a field dictionary with `--set name=value` overrides applied."""
-    from physics.design import Design
+    from sub60.physics.design import Design
 
     data = dict(data)
     for item in overrides:
@@ -171,7 +171,7 @@ def _single(values: np.ndarray, name: str) -> float:
 
 
 def _solve(fn, *args):
-    from physics.poisson import SolverError
+    from sub60.physics.poisson import SolverError
 
     try:
         return fn(*args)
@@ -182,7 +182,7 @@ def _solve(fn, *args):
 
 
 def cmd_bands(a) -> str:
-    from physics.simulate import solve_bias
+    from sub60.physics.simulate import solve_bias
 
     d = load_design(a.design, a.set)
     bp = _solve(solve_bias, d, _single(parse_sweep(a.vg, "vg"), "vg"),
@@ -199,7 +199,7 @@ def cmd_bands(a) -> str:
 
 
 def cmd_transfer(a) -> str:
-    from physics.simulate import transfer_curve
+    from sub60.physics.simulate import transfer_curve
 
     d = load_design(a.design, a.set)
     vg = parse_sweep(a.vg, "vg")
@@ -222,7 +222,7 @@ def cmd_transfer(a) -> str:
 
 
 def cmd_output(a) -> str:
-    from physics.simulate import output_curve
+    from sub60.physics.simulate import output_curve
 
     d = load_design(a.design, a.set)
     vgs = parse_sweep(a.vg, "vg")
@@ -238,7 +238,7 @@ def cmd_output(a) -> str:
 
 
 def cmd_serve(a) -> str:
-    from app.server import serve
+    from sub60.app.server import serve
 
     serve(port=a.port, host=a.host, show=a.show)
     return ""
@@ -270,7 +270,7 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--ioff", type=float, default=1e-3, help="Ioff target [uA/um]")
     t.add_argument("--vdd", type=float, default=0.3, help="supply for Ion = Id(Voff + Vdd) [V]")
     common(sub.add_parser("output", help="output curves Id-Vd"), "0.3", "0:0.5:11")
-    from app.snapshot_cli import add_snapshot_parser
+    from sub60.app.snapshot_cli import add_snapshot_parser
 
     add_snapshot_parser(sub)
     return p
@@ -287,7 +287,7 @@ def main(argv: list[str] | None = None) -> int:
                     "serve": cmd_serve}
         status = 0
         if a.command == "snapshot":
-            from app.snapshot_cli import run_snapshot
+            from sub60.app.snapshot_cli import run_snapshot
 
             out, status = run_snapshot(a)
         else:

@@ -16,7 +16,7 @@ from collections.abc import Callable, Sequence
 
 import panel as pn
 
-from app.pinning import (
+from sub60.app.pinning import (
     MAX_PINS,
     ComparisonRow,
     Pin,

@@ -23,15 +23,15 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from physics.design import Design
-from physics.materials import DIELECTRICS, eot_nm
-from physics.metrics import thermionic_limit_mV_per_dec
-from physics.simulate import BiasPoint, OutputCurve, TransferCurve
+from sub60.physics.design import Design
+from sub60.physics.materials import DIELECTRICS, eot_nm
+from sub60.physics.metrics import thermionic_limit_mV_per_dec
+from sub60.physics.simulate import BiasPoint, OutputCurve, TransferCurve
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
-    from app.snapshot import SnapshotResults
+    from sub60.app.snapshot import SnapshotResults
 
 #: Static figure size: inches and dots per inch -> pixels (width, height).
 FIGURE_SIZE_IN = (8.0, 5.0)

@@ -29,6 +29,7 @@ from __future__ import annotations
 import asyncio
 import datetime as _dt
 import functools
+import importlib.resources
 import io
 import logging
 import math
@@ -44,17 +45,17 @@ from bokeh.models import CustomJSTickFormatter
 from panel.io.document import hold
 from panel.io.state import set_curdoc
 
-from app.compare_panes import UPLOAD_LIMIT_BYTES, ComparisonPanel, SnapshotControls
-from app.pinning import Pin, PinBoard, PinError, comparison_rows
-from app.plots import ExplorerFigures, metrics_html
-from app.sharing import (
+from sub60.app.compare_panes import UPLOAD_LIMIT_BYTES, ComparisonPanel, SnapshotControls
+from sub60.app.pinning import Pin, PinBoard, PinError, comparison_rows
+from sub60.app.plots import ExplorerFigures, metrics_html
+from sub60.app.sharing import (
     LINKED_PARAMETERS,
     query_from_state,
     settings_from_state,
     state_updates,
     updates_from_query,
 )
-from app.snapshot import (
+from sub60.app.snapshot import (
     ModelSettings,
     SnapshotError,
     SnapshotSettings,
@@ -64,15 +65,15 @@ from app.snapshot import (
     list_presets,
     verify_snapshot,
 )
-from app.state import (
+from sub60.app.state import (
     COMPUTED_PARAMETERS,
     DESIGN_PARAMETERS,
     ExplorerState,
     label_of,
 )
-from physics.materials import check_tunnelling_material, eot_nm, get_semiconductor
-from physics.poisson import SolverError
-from physics.structure import gate_dielectric
+from sub60.physics.materials import check_tunnelling_material, eot_nm, get_semiconductor
+from sub60.physics.poisson import SolverError
+from sub60.physics.structure import gate_dielectric
 
 #: Sweep points solved at once across all sessions (one per core): sweeps of many
 #: sessions interleave point by point, and single bias points never wait for them.
@@ -80,7 +81,7 @@ SWEEP_SLOTS = threading.BoundedSemaphore(2)
 
 log = logging.getLogger("sub60.app")
 
-ASSETS = Path(__file__).resolve().parent.parent / "assets"
+ASSETS = Path(str(importlib.resources.files("sub60.assets")))
 CAUTION = ("Design-exploration model with stated approximations (semiclassical charge with "
            "confinement-shifted band edges, WKB tunnelling, ballistic transport, no traps) — "
            "not calibrated TCAD; decisions rest on local practice and measurement.")
@@ -140,7 +141,7 @@ class Explorer:
 
     def __init__(self, state: ExplorerState | None = None, simulator=None,
                  background: bool = True) -> None:
-        from physics.simulate import Simulator
+        from sub60.physics.simulate import Simulator
 
         self.state = state or ExplorerState()
         self.simulator = simulator or Simulator()
@@ -936,7 +937,7 @@ class Explorer:
     def _apply_settings(self, settings: SnapshotSettings, updates: dict) -> None:
         """Every control, the numerical model and the pinned designs of a snapshot, in
         one update of the state (one recomputation)."""
-        from physics.simulate import Simulator
+        from sub60.physics.simulate import Simulator
 
         m = settings.model
         new_model = (m.resolution, m.tunnelling_model) != (self.simulator.resolution,

@@ -17,12 +17,12 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 from string import ascii_uppercase
 
-from app.plots import PIN_COLOURS, format_current, format_ratio
-from app.snapshot import MAX_NAME_CHARS, MAX_PINNED, PinnedDesign, TransferSweep
-from physics.design import Design
-from physics.materials import eot_nm
-from physics.metrics import Metrics
-from physics.structure import gate_dielectric
+from sub60.app.plots import PIN_COLOURS, format_current, format_ratio
+from sub60.app.snapshot import MAX_NAME_CHARS, MAX_PINNED, PinnedDesign, TransferSweep
+from sub60.physics.design import Design
+from sub60.physics.materials import eot_nm
+from sub60.physics.metrics import Metrics
+from sub60.physics.structure import gate_dielectric
 
 MAX_PINS = MAX_PINNED
 MINUS = "\u2212"

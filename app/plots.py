@@ -40,8 +40,8 @@ from bokeh.models import (
 )
 from bokeh.plotting import figure
 
-from app.figures import COLOURS as _FIGURE_COLOURS
-from physics.metrics import thermionic_limit_mV_per_dec
+from sub60.app.figures import COLOURS as _FIGURE_COLOURS
+from sub60.physics.metrics import thermionic_limit_mV_per_dec
 
 
 def _ramp(stops: tuple[tuple[int, int, int], ...], n: int) -> list[str]:

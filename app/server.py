@@ -13,7 +13,7 @@ import sys
 
 import panel as pn
 
-from app.layout import TITLE, create_app
+from sub60.app.layout import TITLE, create_app
 
 _LOOPBACK_NAMES = {"localhost", "localhost.localdomain", "ip6-localhost"}
 

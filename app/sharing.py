@@ -21,7 +21,7 @@ import math
 from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 
-from app.snapshot import (
+from sub60.app.snapshot import (
     BiasSettings,
     MetricSettings,
     ModelSettings,
@@ -31,7 +31,7 @@ from app.snapshot import (
     SnapshotSettings,
     TransferSweep,
 )
-from app.state import CHANNEL_DOPING_FLOOR_CM3, DESIGN_PARAMETERS, ExplorerState, label_of
+from sub60.app.state import CHANNEL_DOPING_FLOOR_CM3, DESIGN_PARAMETERS, ExplorerState, label_of
 
 # ---------------------------------------------------------------------- snapshots
 

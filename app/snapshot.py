@@ -46,6 +46,7 @@ from __future__ import annotations
 import dataclasses
 import datetime as _dt
 import importlib.metadata
+import importlib.resources
 import io
 import json
 import math
@@ -60,9 +61,9 @@ from typing import Any
 
 import numpy as np
 
-from physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
-from physics.metrics import Metrics
-from physics.simulate import BiasPoint, OutputCurve, Simulator, TransferCurve
+from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
+from sub60.physics.metrics import Metrics
+from sub60.physics.simulate import BiasPoint, OutputCurve, Simulator, TransferCurve
 
 # ---------------------------------------------------------------------- constants
 SCHEMA_NAME = "sub60.snapshot"
@@ -102,7 +103,7 @@ MODEL_CAUTION = ("sub60 is a design-exploration model (semiclassical charge with
                  "no traps), not calibrated TCAD: its numbers do not replace calibrated device "
                  "simulation or measurements.")
 
-PRESET_DIR = Path(__file__).resolve().parent.parent / "assets" / "presets"
+PRESET_DIR = Path(str(importlib.resources.files("sub60.assets"))) / "presets"
 
 
 class SnapshotError(ValueError):
@@ -1074,7 +1075,7 @@ def stamp(settings: SnapshotSettings, results: SnapshotResults,
 def snapshot_members(results: SnapshotResults, created_utc: str | None = None
                      ) -> dict[str, bytes]:
     """File name -> content of every member of the snapshot (deterministic names)."""
-    from app import figures
+    from sub60.app import figures
 
     settings = stamp(results.settings, results, created_utc)
     results = dataclasses.replace(results, settings=settings)

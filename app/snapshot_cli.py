@@ -16,7 +16,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from app.cli import UsageError, load_design, parse_sweep
+from sub60.app.cli import UsageError, load_design, parse_sweep
 
 
 def add_snapshot_parser(sub) -> None:
@@ -48,7 +48,7 @@ def add_snapshot_parser(sub) -> None:
 
 def _read(path: str) -> bytes:
     """A snapshot file's bytes; SnapshotError when it is larger than any snapshot."""
-    from app.snapshot import MAX_SNAPSHOT_BYTES, SnapshotError
+    from sub60.app.snapshot import MAX_SNAPSHOT_BYTES, SnapshotError
 
     try:
         with open(path, "rb") as fh:
@@ -71,7 +71,7 @@ def _float(text: str | None, name: str) -> float | None:
 
 def _export_settings(a):
     """Settings of `snapshot export` from the options (UsageError for bad ones)."""
-    from app.snapshot import (
+    from sub60.app.snapshot import (
         MetricSettings,
         OutputSweep,
         SnapshotError,
@@ -122,7 +122,7 @@ def _export_settings(a):
 
 def _override(design, overrides: list[str]):
     """A design with `--set name=value` overrides, parsed as `sub60 bands` does."""
-    from app.cli import apply_overrides
+    from sub60.app.cli import apply_overrides
 
     return apply_overrides(design.to_dict(), overrides)
 
@@ -133,8 +133,8 @@ def _exists_check(path: Path, force: bool, option: str) -> None:
 
 
 def cmd_export(a) -> tuple[str, int]:
-    from app.snapshot import export_snapshot
-    from physics.poisson import SolverError
+    from sub60.app.snapshot import export_snapshot
+    from sub60.physics.poisson import SolverError
 
     out = Path(a.out)
     _exists_check(out, a.force, "--out")
@@ -151,7 +151,7 @@ def cmd_export(a) -> tuple[str, int]:
 
 
 def _import(path: str):
-    from app.snapshot import SnapshotError, import_snapshot
+    from sub60.app.snapshot import SnapshotError, import_snapshot
 
     try:
         return import_snapshot(_read(path)), None
@@ -160,8 +160,8 @@ def _import(path: str):
 
 
 def cmd_render(a) -> tuple[str, int]:
-    from app import figures
-    from app.snapshot import compute_results
+    from sub60.app import figures
+    from sub60.app.snapshot import compute_results
 
     got, problem = _import(a.snapshot)
     if problem:
@@ -185,7 +185,7 @@ def cmd_render(a) -> tuple[str, int]:
 
 
 def cmd_check(a) -> tuple[str, int]:
-    from app.snapshot import verify_snapshot
+    from sub60.app.snapshot import verify_snapshot
 
     got, problem = _import(a.snapshot)
     if problem:

@@ -18,8 +18,8 @@ from typing import Any
 import numpy as np
 import param
 
-from physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design
-from physics.materials import DIELECTRICS, SEMICONDUCTORS
+from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design
+from sub60.physics.materials import DIELECTRICS, SEMICONDUCTORS
 
 _DEFAULT = Design()
 

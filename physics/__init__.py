@@ -15,9 +15,9 @@ try:
 except ImportError:  # pragma: no cover - threadpoolctl is a declared dependency
     pass
 
-from physics.design import Design  # noqa: E402
-from physics.electrostatics import Electrostatics, solve_electrostatics  # noqa: E402
-from physics.simulate import (  # noqa: E402
+from sub60.physics.design import Design  # noqa: E402
+from sub60.physics.electrostatics import Electrostatics, solve_electrostatics  # noqa: E402
+from sub60.physics.simulate import (  # noqa: E402
     BiasPoint,
     Simulator,
     output_curve,

@@ -55,13 +55,13 @@ class FieldSpec:
 
 
 def _materials() -> tuple[str, ...]:
-    from physics.materials import SEMICONDUCTORS
+    from sub60.physics.materials import SEMICONDUCTORS
 
     return tuple(SEMICONDUCTORS)
 
 
 def _dielectrics() -> tuple[str, ...]:
-    from physics.materials import DIELECTRICS
+    from sub60.physics.materials import DIELECTRICS
 
     return tuple(DIELECTRICS) + ("custom",)
 

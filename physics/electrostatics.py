@@ -6,9 +6,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from physics.design import Design, check_bias
-from physics.poisson import SolverError, solve_poisson
-from physics.structure import DeviceFrame, build_frame, initial_guess, problem_at_bias
+from sub60.physics.design import Design, check_bias
+from sub60.physics.poisson import SolverError, solve_poisson
+from sub60.physics.structure import DeviceFrame, build_frame, initial_guess, problem_at_bias
 
 
 @dataclass(frozen=True)

@@ -37,8 +37,8 @@ import scipy.constants as sc
 import scipy.linalg as sla
 import scipy.sparse as sp
 
-from physics.mesh import Mesh
-from physics.statistics import fermi_half_and_minus_half, inverse_fermi_half
+from sub60.physics.mesh import Mesh
+from sub60.physics.statistics import fermi_half_and_minus_half, inverse_fermi_half
 
 # charge term of the residual = QE * (control area [nm^2]) * density [cm^-3] -> [V]:
 # q/eps0 [V m] -> [V nm] (x 1e9), and cm^-3 -> nm^-3 (x 1e-21)

@@ -19,15 +19,15 @@ from functools import lru_cache
 
 import numpy as np
 
-from physics.design import Design, check_bias
-from physics.electrostatics import Electrostatics, solve_electrostatics
-from physics.materials import check_tunnelling_material, get_semiconductor
-from physics.metrics import Metrics, figures_of_merit, point_swing_mV_per_dec
-from physics.poisson import SolverError
-from physics.statistics import inverse_fermi_half
-from physics.structure import band_parameters
-from physics.subbands import device_subbands
-from physics.transport import (
+from sub60.physics.design import Design, check_bias
+from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
+from sub60.physics.materials import check_tunnelling_material, get_semiconductor
+from sub60.physics.metrics import Metrics, figures_of_merit, point_swing_mV_per_dec
+from sub60.physics.poisson import SolverError
+from sub60.physics.statistics import inverse_fermi_half
+from sub60.physics.structure import band_parameters
+from sub60.physics.subbands import device_subbands
+from sub60.physics.transport import (
     BandProfile,
     Spectrum,
     band_to_band,

@@ -27,17 +27,17 @@ from functools import lru_cache
 import numpy as np
 import scipy.constants as sc
 
-from physics.design import Design
-from physics.materials import get_dielectric, get_semiconductor
-from physics.mesh import Mesh, graded_axis, layered_y_axis
-from physics.poisson import BandParameters, PoissonOperator, PoissonProblem, neutral_potential
+from sub60.physics.design import Design
+from sub60.physics.materials import get_dielectric, get_semiconductor
+from sub60.physics.mesh import Mesh, graded_axis, layered_y_axis
+from sub60.physics.poisson import BandParameters, PoissonOperator, PoissonProblem, neutral_potential
 
 BOX_PERMITTIVITY = 3.9  # buried oxide is SiO2 (Robertson 2004, Table 1)
 
 
 def gate_dielectric(design: Design):
     """The gate dielectric record of a design (custom permittivity honoured)."""
-    from physics.materials import custom_dielectric
+    from sub60.physics.materials import custom_dielectric
 
     if design.oxide == "custom":
         return custom_dielectric(design.oxide_permittivity)
@@ -140,7 +140,7 @@ def _frame(design: Design, resolution: float, quantum_correction: bool) -> Devic
     mesh = build_mesh(design, resolution)
     donors, acceptors = doping_profile(design, mesh.x_nm)
     if quantum_correction:
-        from physics.subbands import device_subbands
+        from sub60.physics.subbands import device_subbands
 
         sb = device_subbands(design)
         bands = band_parameters(design, sb.conduction_shift_eV, sb.valence_shift_eV)

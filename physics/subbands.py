@@ -23,9 +23,9 @@ from functools import lru_cache
 
 import numpy as np
 
-from physics.confinement import solve_subbands, subband_weights
-from physics.design import Design
-from physics.materials import get_dielectric, get_semiconductor
+from sub60.physics.confinement import solve_subbands, subband_weights
+from sub60.physics.design import Design
+from sub60.physics.materials import get_dielectric, get_semiconductor
 
 N_CONDUCTION = 2
 N_HEAVY = 2
@@ -97,7 +97,7 @@ def _weights_cached(sb: DeviceSubbands, y_nodes: tuple[float, ...], kind: str) -
     bands = sb.conduction if kind == "conduction" else sb.valence
     rows = []
     for s in bands:
-        from physics.confinement import Subbands
+        from sub60.physics.confinement import Subbands
 
         tmp = Subbands(energies_eV=np.array([s.energy_eV]),
                        wavefunctions=np.sqrt(s.density)[None, :], y_nm=s.y_nm)
@@ -109,7 +109,7 @@ def _stack(design: Design):
     """Bottom dielectric, body, top dielectric and the body's y position in the mesh."""
     top = (get_dielectric(design.oxide) if design.oxide != "custom" else None)
     if top is None:
-        from physics.materials import custom_dielectric
+        from sub60.physics.materials import custom_dielectric
 
         top = custom_dielectric(design.oxide_permittivity)
     bottom = top if design.gate_layout == "double" else get_dielectric("SiO2")

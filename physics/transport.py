@@ -30,8 +30,8 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.constants as sc
 
-from physics.statistics import fermi_half
-from physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent_transverse
+from sub60.physics.statistics import fermi_half
+from sub60.physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent_transverse
 
 G0_S = 2 * sc.e**2 / sc.h  # conductance quantum 2e^2/h [S]
 N_K = 6  # Gauss-Legendre nodes of the transverse-k integral (per energy; 2e-4 rel. vs 40)

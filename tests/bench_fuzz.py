@@ -30,8 +30,8 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from physics.design import Design  # noqa: E402
-from physics.simulate import Simulator  # noqa: E402
+from sub60.physics.design import Design  # noqa: E402
+from sub60.physics.simulate import Simulator  # noqa: E402
 from tests.physics.test_fuzz import (  # noqa: E402
     RandomSource,
     draw_bias,

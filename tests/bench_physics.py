@@ -20,10 +20,10 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spl
 
-from physics.design import Design
-from physics.electrostatics import solve_electrostatics
-from physics.simulate import Simulator
-from physics.structure import build_frame, problem_at_bias
+from sub60.physics.design import Design
+from sub60.physics.electrostatics import solve_electrostatics
+from sub60.physics.simulate import Simulator
+from sub60.physics.structure import build_frame, problem_at_bias
 
 
 def median_ms(samples: list[float]) -> float:
@@ -49,7 +49,7 @@ def bench_electrostatics(repeats: int) -> None:
     # the same Jacobian as a sparse matrix, factorised and solved by SuperLU
     prob = problem_at_bias(frame, 0.22, 0.3)
     _, _, dn, dp = prob.bands.densities(es2.psi_V, es2.efn_eV[:, None], es2.efp_eV[:, None])
-    from physics.poisson import QE_V_NM2_CM3
+    from sub60.physics.poisson import QE_V_NM2_CM3
 
     dq = ((dn - dp) * frame.operator.area_semi * QE_V_NM2_CM3).ravel()
     fixed = frame.operator.fixed

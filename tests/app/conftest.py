@@ -101,10 +101,10 @@ def wait_for_port(port: int, proc: subprocess.Popen, timeout_s: float = 90.0) ->
 
 
 def start_server(port: int) -> subprocess.Popen:
-    """`python -m app serve` on 127.0.0.1:port, one BLAS thread, output captured."""
+    """`python -m sub60.app serve` on 127.0.0.1:port, one BLAS thread, output captured."""
     env = dict(os.environ, OPENBLAS_NUM_THREADS="1", OMP_NUM_THREADS="1",
                PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
-    proc = subprocess.Popen([sys.executable, "-m", "app", "serve", "--port", str(port),
+    proc = subprocess.Popen([sys.executable, "-m", "sub60.app", "serve", "--port", str(port),
                              "--host", "127.0.0.1"], cwd=ROOT, env=env,
                             stdout=subprocess.PIPE, stderr=subprocess.STDOUT)
     try:

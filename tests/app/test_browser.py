@@ -1,6 +1,6 @@
 """Browser tests: drive the served explorer in headless Chromium as a user would.
 
-The server runs as a subprocess (`python -m app serve`) on a free 127.0.0.1 port. Every
+The server runs as a subprocess (`python -m sub60.app serve`) on a free 127.0.0.1 port. Every
 wait is on the page's Bokeh document (``page.wait_for_function``), never a fixed sleep.
 The numbers read back from the page are checked against the physics package called
 directly with the same settings (the reference the page must reproduce); the tolerance
@@ -16,8 +16,8 @@ from urllib.parse import urlsplit
 import numpy as np
 import pytest
 
-from physics.design import Design
-from physics.simulate import Simulator
+from sub60.physics.design import Design
+from sub60.physics.simulate import Simulator
 from tests.app.conftest import open_app
 
 pytestmark = pytest.mark.browser

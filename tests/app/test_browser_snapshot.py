@@ -18,7 +18,7 @@ from urllib.parse import parse_qs, urlsplit
 import numpy as np
 import pytest
 
-from app.snapshot import PRESET_DIR, import_snapshot
+from sub60.app.snapshot import PRESET_DIR, import_snapshot
 from tests.app.conftest import open_app
 
 pytestmark = pytest.mark.browser

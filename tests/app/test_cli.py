@@ -21,9 +21,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from app.cli import main
-from physics.design import Design
-from physics.simulate import Simulator
+from sub60.app.cli import main
+from sub60.physics.design import Design
+from sub60.physics.simulate import Simulator
 
 ROOT = Path(__file__).resolve().parents[2]
 
@@ -100,7 +100,7 @@ def test_bands_json_matches_solve_bias(capsys):
 
 def test_bands_via_subprocess_matches_solve_bias():
     """The real entry point in a separate interpreter: exit 0, JSON on stdout."""
-    proc = subprocess.run([sys.executable, "-m", "app.cli", "bands", "--vg", "0.25", "--vd", "0.3"],
+    proc = subprocess.run([sys.executable, "-m", "sub60.app.cli", "bands", "--vg", "0.25", "--vd", "0.3"],
                           cwd=ROOT, capture_output=True, text=True, timeout=120)
     assert proc.returncode == 0, proc.stderr
     rec = json.loads(proc.stdout)
@@ -302,7 +302,7 @@ def test_usage_error_exits_2_with_one_line(capsys, tmp_path, argv, culprit):
 ], ids=["unknown field", "binary design file"])
 def test_usage_error_in_a_real_process(tmp_path, argv, culprit):
     """Exit status and stderr as a shell sees them: 2, one line, no traceback."""
-    proc = subprocess.run([sys.executable, "-m", "app.cli", *expand(argv, bad_files(tmp_path))],
+    proc = subprocess.run([sys.executable, "-m", "sub60.app.cli", *expand(argv, bad_files(tmp_path))],
                           cwd=ROOT, capture_output=True, text=True, timeout=120)
     assert proc.returncode == 2
     assert proc.stdout == ""

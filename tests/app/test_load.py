@@ -17,8 +17,8 @@ import urllib.request
 import numpy as np
 import pytest
 
-from physics.design import Design
-from physics.simulate import Simulator
+from sub60.physics.design import Design
+from sub60.physics.simulate import Simulator
 from tests.app.conftest import JS_HELPERS, VIEWPORT
 
 pytestmark = pytest.mark.browser

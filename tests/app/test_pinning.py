@@ -16,9 +16,9 @@ import re
 import numpy as np
 import pytest
 
-from app.compare_panes import UPLOAD_LIMIT_BYTES
-from app.layout import Explorer
-from app.pinning import (
+from sub60.app.compare_panes import UPLOAD_LIMIT_BYTES
+from sub60.app.layout import Explorer
+from sub60.app.pinning import (
     MAX_PINS,
     METRIC_COLUMNS,
     PIN_COLOURS,
@@ -26,7 +26,7 @@ from app.pinning import (
     PinError,
     difference_text,
 )
-from app.sharing import (
+from sub60.app.sharing import (
     LINKED_PARAMETERS,
     QUERY_KEYS,
     query_from_state,
@@ -34,16 +34,16 @@ from app.sharing import (
     state_updates,
     updates_from_query,
 )
-from app.snapshot import (
+from sub60.app.snapshot import (
     MAX_NAME_CHARS,
     SnapshotError,
     TransferSweep,
     import_snapshot,
     list_presets,
 )
-from app.state import COMPUTED_PARAMETERS, ExplorerState
-from physics.design import Design
-from physics.simulate import Simulator
+from sub60.app.state import COMPUTED_PARAMETERS, ExplorerState
+from sub60.physics.design import Design
+from sub60.physics.simulate import Simulator
 
 POINTS = 11  # short sweeps keep these tests quick
 SWEEP = TransferSweep(-0.4, 0.6, POINTS, 0.3)
@@ -290,7 +290,7 @@ def test_a_file_that_cannot_be_used_leaves_the_page_unchanged(monkeypatch):
     assert not e.import_bytes(b'{"schema": "sub60.snapshot", "schema_version": 99}', "new.json")
     assert "new.json not opened" in e.error_text and "future schema version" in e.error_text
     calls = []
-    monkeypatch.setattr("app.layout.import_snapshot", lambda *a, **k: calls.append(a))
+    monkeypatch.setattr("sub60.app.layout.import_snapshot", lambda *a, **k: calls.append(a))
     assert not e.import_bytes(b"PK" + bytes(UPLOAD_LIMIT_BYTES), "big.zip")
     assert calls == [], "a file over the limit must be refused before it is parsed"
     assert "over the page's limit of 10 MB" in e.error_text

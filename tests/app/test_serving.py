@@ -11,7 +11,7 @@ from urllib.parse import urlsplit
 
 import pytest
 
-from app import cli, server
+from sub60.app import cli, server
 
 ROOT = Path(__file__).resolve().parents[2]
 

@@ -30,9 +30,9 @@ import numpy as np
 import pytest
 from scipy import constants
 
-from app import figures
-from app.cli import main
-from app.snapshot import (
+from sub60.app import figures
+from sub60.app.cli import main
+from sub60.app.snapshot import (
     METRIC_REL_TOL,
     MODEL_CAUTION,
     OutputSweep,
@@ -46,9 +46,9 @@ from app.snapshot import (
     load_preset,
     verify_snapshot,
 )
-from physics.design import Design
-from physics.metrics import Metrics
-from physics.simulate import Simulator
+from sub60.physics.design import Design
+from sub60.physics.metrics import Metrics
+from sub60.physics.simulate import Simulator
 
 CREATED = "2024-05-01T12:00:00Z"
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
@@ -211,7 +211,7 @@ def test_captions_state_the_key_settings():
 def test_transfer_reference_is_the_thermionic_limit():
     """The reference line of the transfer figure has the slope (ln 10) kT/q from
     scipy.constants, and its legend says so."""
-    from app.snapshot import compute_results
+    from sub60.app.snapshot import compute_results
 
     quick = SnapshotSettings(transfer_sweep=TransferSweep(-0.3, 0.5, 9, 0.3),
                              output_sweep=OutputSweep((0.3,), 0.0, 0.3, 3))
@@ -358,7 +358,7 @@ def test_high_on_current_preset_delivers_more_on_current():
 
 
 def test_presets_fall_back_gracefully(monkeypatch, tmp_path):
-    import app.snapshot as snapshot
+    import sub60.app.snapshot as snapshot
 
     monkeypatch.setattr(snapshot, "PRESET_DIR", tmp_path / "absent")
     assert list_presets() == {}

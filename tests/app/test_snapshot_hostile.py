@@ -26,7 +26,7 @@ import zipfile
 
 import pytest
 
-from app.snapshot import (
+from sub60.app.snapshot import (
     MAX_MEMBERS,
     MAX_SETTINGS_BYTES,
     MAX_SNAPSHOT_BYTES,
@@ -36,8 +36,8 @@ from app.snapshot import (
     SnapshotSettings,
     import_snapshot,
 )
-from physics.design import Design
-from physics.metrics import Metrics
+from sub60.physics.design import Design
+from sub60.physics.metrics import Metrics
 
 
 def valid_doc() -> dict:
@@ -276,7 +276,7 @@ def test_hostile_file_is_refused(no_writes, name, factory, fragments):
 
 
 def test_settings_made_in_code_are_validated_too():
-    from app.snapshot import TransferSweep
+    from sub60.app.snapshot import TransferSweep
 
     with pytest.raises(SnapshotError, match=r"transfer_sweep\.vg_points: 2 outside"):
         SnapshotSettings(transfer_sweep=TransferSweep(vg_points=2))

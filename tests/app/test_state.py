@@ -14,19 +14,19 @@ import numpy as np
 import pytest
 import scipy.constants as sc
 
-from app.layout import CAUTION, Explorer
-from app.plots import format_current, metrics_html, uniform_map, window_outline
-from app.server import allowed_origins, is_loopback, loopback_warning
-from app.state import (
+from sub60.app.layout import CAUTION, Explorer
+from sub60.app.plots import format_current, metrics_html, uniform_map, window_outline
+from sub60.app.server import allowed_origins, is_loopback, loopback_warning
+from sub60.app.state import (
     COMPUTED_PARAMETERS,
     DESIGN_PARAMETERS,
     ExplorerState,
     label_of,
 )
-from physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design
-from physics.metrics import figures_of_merit
-from physics.poisson import SolverError
-from physics.simulate import Simulator
+from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design
+from sub60.physics.metrics import figures_of_merit
+from sub60.physics.poisson import SolverError
+from sub60.physics.simulate import Simulator
 
 VG_SWEEP = np.linspace(-0.4, 0.6, 41)  # default sweep of the state [V]
 

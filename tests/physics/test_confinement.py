@@ -15,7 +15,7 @@ import pytest
 from scipy import constants
 from scipy.optimize import brentq
 
-from physics.confinement import Subbands, solve_subbands, subband_weights, well_subbands
+from sub60.physics.confinement import Subbands, solve_subbands, subband_weights, well_subbands
 
 # hbar^2 / (2 m0) [eV nm^2] recomputed here from scipy.constants (CODATA, exact SI).
 C_EV_NM2 = constants.hbar**2 / (2.0 * constants.m_e) / constants.e * 1e18

@@ -11,12 +11,12 @@ import pytest
 import scipy.constants as sc
 from scipy.optimize import brentq
 
-from physics.design import Design
-from physics.electrostatics import solve_electrostatics
-from physics.materials import get_semiconductor
-from physics.mesh import Mesh, graded_axis
-from physics.poisson import BandParameters, PoissonProblem, neutral_potential, solve_poisson
-from physics.structure import band_parameters
+from sub60.physics.design import Design
+from sub60.physics.electrostatics import solve_electrostatics
+from sub60.physics.materials import get_semiconductor
+from sub60.physics.mesh import Mesh, graded_axis
+from sub60.physics.poisson import BandParameters, PoissonProblem, neutral_potential, solve_poisson
+from sub60.physics.structure import band_parameters
 
 
 # ----------------------------------------------------------------- helpers
@@ -175,7 +175,7 @@ def test_scale_length_frank_taur_wong(layout):
                channel_doping_cm3=1e14, doping_gradient_nm_per_dec=0.0, gate_layout=layout,
                buried_oxide_thickness_nm=4.0, gate_workfunction_eV=4.9)
     es = solve_electrostatics(d, 0.0, 0.0, quantum_correction=False)
-    from physics.materials import get_dielectric
+    from sub60.physics.materials import get_dielectric
 
     eps_s, eps_ox = get_semiconductor("GaAs").permittivity, get_dielectric("HfO2").permittivity
     if layout == "double":
@@ -220,7 +220,7 @@ def test_bias_out_of_range_and_convergence_reporting():
 
 def test_nonconvergence_raises_with_history():
     """A Newton run that cannot converge (1 step allowed) raises with its history."""
-    from physics.poisson import SolverError
+    from sub60.physics.poisson import SolverError
 
     with pytest.raises(SolverError, match="residual history"):
         solve_electrostatics(Design(gate_length_nm=31.0), 0.3, 0.3, max_iter=1)

@@ -49,11 +49,11 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
-from physics.materials import DIELECTRICS, SEMICONDUCTORS
-from physics.poisson import SolverError
-from physics.simulate import BiasPoint, Simulator
-from physics.subbands import BARRIER_NM, device_subbands
+from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
+from sub60.physics.materials import DIELECTRICS, SEMICONDUCTORS
+from sub60.physics.poisson import SolverError
+from sub60.physics.simulate import BiasPoint, Simulator
+from sub60.physics.subbands import BARRIER_NM, device_subbands
 
 MATERIALS = tuple(SEMICONDUCTORS)
 OXIDES = tuple(DIELECTRICS) + ("custom",)

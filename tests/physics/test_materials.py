@@ -15,7 +15,7 @@ import numpy as np
 import pytest
 from scipy import constants
 
-from physics.materials import (
+from sub60.physics.materials import (
     DIELECTRICS,
     SEMICONDUCTORS,
     Dielectric,

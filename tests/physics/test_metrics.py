@@ -21,7 +21,7 @@ from hypothesis import strategies as st
 from scipy import constants
 from scipy.optimize import brentq
 
-from physics.metrics import (
+from sub60.physics.metrics import (
     Metric,
     Metrics,
     figures_of_merit,

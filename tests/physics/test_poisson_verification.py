@@ -31,8 +31,8 @@ from skfem import (
 )
 from skfem.helpers import dot, grad
 
-from physics.mesh import Mesh
-from physics.poisson import QE_V_NM2_CM3, BandParameters, PoissonProblem, solve_poisson
+from sub60.physics.mesh import Mesh
+from sub60.physics.poisson import QE_V_NM2_CM3, BandParameters, PoissonProblem, solve_poisson
 
 # any positive numbers: the charge model is unused with carriers=False
 _BANDS = BandParameters(chi_eV=4.9, eg_eV=0.35, nc_cm3=1e17, nv_cm3=1e19, kT_eV=0.0259)

@@ -17,7 +17,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from physics.statistics import (
+from sub60.physics.statistics import (
     fermi_half,
     fermi_half_and_minus_half,
     fermi_minus_half,

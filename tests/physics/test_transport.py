@@ -18,9 +18,9 @@ import scipy.constants as sc
 from scipy import integrate
 from scipy.special import expit
 
-from physics.design import Design
-from physics.simulate import Simulator
-from physics.transport import (
+from sub60.physics.design import Design
+from sub60.physics.simulate import Simulator
+from sub60.physics.transport import (
     G0_S,
     BandProfile,
     band_to_band,

@@ -17,7 +17,7 @@ import scipy.constants as sc
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from physics.tunneling import MODELS, kappa_per_nm, wkb_exponent, wkb_exponent_fast
+from sub60.physics.tunneling import MODELS, kappa_per_nm, wkb_exponent, wkb_exponent_fast
 
 # InAs worked example, REFERENCES §1 [derived]: m* = 0.026 m0, Eg = 0.354 eV, F = 1 MV/cm.
 M_INAS = 0.026
@@ -207,7 +207,7 @@ def test_transverse_kernel_matches_numpy_reference_per_energy():
     """The production kernel (transverse k per energy, compiled) against the numpy
     reference `wkb_exponent` applied one energy at a time with the shifted edges
     (the same WKB integral, REFERENCES §1); agreement to 1e-10 relative."""
-    from physics.tunneling import wkb_exponent, wkb_exponent_transverse
+    from sub60.physics.tunneling import wkb_exponent, wkb_exponent_transverse
 
     rng = np.random.default_rng(3)
     x = np.cumsum(rng.uniform(0.1, 0.4, 120))
