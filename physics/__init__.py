@@ -1,29 +1,48 @@
 """sub60 physics: electrostatics, confinement, band-to-band tunnelling and current of
-thin-body tunnel FETs and their MOSFET twins. Pure numpy/scipy; no UI imports.
+thin-body tunnel FETs and their MOSFET twins. Pure numpy/scipy/numba; no UI imports.
 
-The banded LAPACK solvers used by the Poisson Newton loop are small (bandwidth ~25)
-and run slower and erratically with several BLAS threads on two cores, so the BLAS
-thread pool is limited to one thread when this package is imported.
+A design-exploration model with stated approximations, not calibrated TCAD.
+
+Importing this package has no side effect on the process and loads almost nothing: the
+public names below are loaded on first use (PEP 562). BLAS is limited to one thread
+only while a solve runs (`sub60.physics._threads`).
 """
 
-import scipy.linalg  # noqa: F401  (load every BLAS library before limiting them)
+import importlib as _importlib
 
-try:
-    from threadpoolctl import threadpool_limits
+#: Public name -> submodule that defines it.
+_API: dict[str, str] = {
+    "BiasPoint": "simulate",
+    "Design": "design",
+    "Electrostatics": "electrostatics",
+    "Metric": "metrics",
+    "Metrics": "metrics",
+    "OutputCurve": "simulate",
+    "Simulator": "simulate",
+    "SolverError": "poisson",
+    "Spectrum": "transport",
+    "TUNNELLING_MODELS": "tunneling",
+    "TransferCurve": "simulate",
+    "dielectrics": "materials",
+    "figures_of_merit": "metrics",
+    "output_curve": "simulate",
+    "semiconductors": "materials",
+    "solve_bias": "simulate",
+    "solve_electrostatics": "electrostatics",
+    "transfer_curve": "simulate",
+}
 
-    threadpool_limits(limits=1, user_api="blas")
-except ImportError:  # pragma: no cover - threadpoolctl is a declared dependency
-    pass
+__all__ = sorted(_API)
 
-from sub60.physics.design import Design  # noqa: E402
-from sub60.physics.electrostatics import Electrostatics, solve_electrostatics  # noqa: E402
-from sub60.physics.simulate import (  # noqa: E402
-    BiasPoint,
-    Simulator,
-    output_curve,
-    solve_bias,
-    transfer_curve,
-)
 
-__all__ = ["BiasPoint", "Design", "Electrostatics", "Simulator", "output_curve", "solve_bias",
-           "solve_electrostatics", "transfer_curve"]
+def __getattr__(name: str) -> object:
+    module = _API.get(name)
+    if module is None:
+        raise AttributeError(f"module 'sub60.physics' has no attribute {name!r}")
+    value = getattr(_importlib.import_module(f"sub60.physics.{module}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return list(__all__)

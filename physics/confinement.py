@@ -41,12 +41,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import constants
 from scipy.linalg import eigh_tridiagonal
-from scipy.optimize import brentq
 
-#: hbar^2 / (2 m0) [eV nm^2], from the exact SI constants.
-HBAR2_OVER_2M0_EV_NM2: float = constants.hbar**2 / (2.0 * constants.m_e) / constants.e * 1e18
+from sub60.physics.constants import HBAR2_2M0_EV_NM2
 
 # The two-band mass factor 1 + alpha (E - V) is floored so that the mass stays positive
 # far below the local band edge (beyond the opposite band edge the two-band model no
@@ -178,7 +175,7 @@ class _Discretisation:
         else:
             factor = 1.0 + self.a_cell * (energy_eV - self.v_cell)
             mass = self.m_cell * np.maximum(factor, _MIN_MASS_FACTOR)
-        t = HBAR2_OVER_2M0_EV_NM2 / (mass * self.d)  # flux coupling of each cell [eV nm]
+        t = HBAR2_2M0_EV_NM2 / (mass * self.d)  # flux coupling of each cell [eV nm]
         diag = (t[1:] + t[:-1] + self.potential_term) * (self.inv_sqrt_h**2)
         off = -t[1:-1] * self.off_scale
         return diag, off
@@ -231,6 +228,8 @@ def _nonparabolic_energy(disc: _Discretisation, index: int, start_eV: float) -> 
     if g0 * g1 > 0.0:  # only through round-off of a near-converged bracket
         return e1 if abs(g1) < abs(g0) else e0
     lo, hi = (e0, e1) if e0 < e1 else (e1, e0)
+    from scipy.optimize import brentq  # loaded on first use: scipy.optimize is slow to import
+
     return float(brentq(g, lo, hi, xtol=_ENERGY_TOL_EV, rtol=4 * np.finfo(float).eps))
 
 

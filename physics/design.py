@@ -26,9 +26,12 @@ import json
 import math
 import numbers
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
+
+if TYPE_CHECKING:
+    from sub60.physics.materials import Dielectric
 
 # Bias ranges accepted by the solvers [V]. Common practice for low-voltage logic, no source.
 VG_RANGE_V: tuple[float, float] = (-1.5, 2.0)
@@ -202,6 +205,30 @@ class Design:
     def gate_end_nm(self) -> float:
         """Drain-side edge of the gate (aligned with the drain junction) [nm]."""
         return self.drain_junction_nm
+
+    # ------------------------------------------------------------------ gate stack
+    @property
+    def gate_dielectric(self) -> Dielectric:
+        """The gate dielectric record: the named one, or a custom one of
+        `oxide_permittivity` (see `sub60.physics.materials.custom_dielectric`)."""
+        from sub60.physics.materials import custom_dielectric, get_dielectric
+
+        if self.oxide == "custom":
+            return custom_dielectric(self.oxide_permittivity)
+        return get_dielectric(self.oxide)
+
+    @property
+    def gate_permittivity(self) -> float:
+        """Relative permittivity of the gate dielectric [-] (custom value honoured)."""
+        return self.gate_dielectric.permittivity
+
+    @property
+    def eot_nm(self) -> float:
+        """Equivalent oxide thickness of the gate dielectric [nm]:
+        EOT = t_ox * eps_SiO2 / eps_ox (`sub60.physics.materials.eot_nm`)."""
+        from sub60.physics.materials import eot_nm
+
+        return float(eot_nm(self.oxide_thickness_nm, self.gate_permittivity))
 
     def twin(self) -> Design:
         """The MOSFET twin: the same design with an n+ source of the same doping."""

@@ -92,7 +92,7 @@ def solve_electrostatics(
     try:
         sol = solve_poisson(problem, start, frame.operator, max_iter=max_iter, max_step_V=max_step_V)
     except SolverError as exc:
-        raise SolverError(f"electrostatics at Vg = {vg_V:g} V, Vd = {vd_V:g} V: {exc}",
+        raise SolverError(f"electrostatics at Vg = {vg_V:g} V, Vd = {vd_V:g} V: {exc.summary}",
                           exc.history) from None
     j = frame.body_j
     psi_mid = sol.psi_V[:, j]

@@ -37,7 +37,13 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import numpy.typing as npt
-from scipy import constants
+
+from sub60.physics.constants import (
+    BOLTZMANN_J_PER_K,
+    ELECTRON_MASS_KG,
+    HBAR_J_S,
+    thermal_energy_eV,
+)
 
 FloatOrArray = float | np.ndarray
 
@@ -132,8 +138,8 @@ def effective_density_of_states_cm3(
         N [cm^-3].
     """
     t = _temperature(temperature_K, allow_zero=False)
-    per_m3 = 2.0 * (dos_mass * constants.m_e * constants.k * t
-                    / (2.0 * math.pi * constants.hbar**2)) ** 1.5
+    per_m3 = 2.0 * (dos_mass * ELECTRON_MASS_KG * BOLTZMANN_J_PER_K * t
+                    / (2.0 * math.pi * HBAR_J_S**2)) ** 1.5
     n = per_m3 * 1e-6
     return float(n) if np.ndim(n) == 0 else n
 
@@ -159,10 +165,6 @@ def _temperature(temperature_K: npt.ArrayLike, allow_zero: bool) -> np.ndarray:
         bound = ">= 0" if allow_zero else "> 0"
         raise ValueError(f"temperature_K must be finite and {bound} K; got {temperature_K!r}")
     return t
-
-
-def _thermal_voltage_V(temperature_K: np.ndarray) -> np.ndarray:
-    return constants.k * temperature_K / constants.e
 
 
 # --- semiconductors ------------------------------------------------------------------
@@ -324,7 +326,7 @@ class Semiconductor:
         """
         nc, nv = self.effective_dos_cm3(temperature_K)
         t = _temperature(temperature_K, allow_zero=False)
-        ni = np.sqrt(nc * nv) * np.exp(-self.bandgap_eV(t) / (2.0 * _thermal_voltage_V(t)))
+        ni = np.sqrt(nc * nv) * np.exp(-self.bandgap_eV(t) / (2.0 * thermal_energy_eV(t)))
         return float(ni) if np.ndim(ni) == 0 else ni
 
 
@@ -463,6 +465,18 @@ GE = Semiconductor(
 SEMICONDUCTORS: dict[str, Semiconductor] = {
     record.name: record for record in (INAS, INGAAS, GASB, INSB, GAAS, SI, GE)
 }
+
+
+def semiconductors() -> dict[str, Semiconductor]:
+    """The body semiconductors sub60 knows, by name (a new dictionary each call).
+
+    Returns
+    -------
+    dict of str to Semiconductor
+        each record's ``sources`` maps every field to the citation of its value (see
+        the module docstring for the references and conventions).
+    """
+    return dict(SEMICONDUCTORS)
 
 
 def get_semiconductor(name: str) -> Semiconductor:
@@ -605,10 +619,26 @@ ZRO2 = _oxide("ZrO2", 25.0, 5.8, 1.5)
 #: Dielectric records by name (a custom dielectric comes from `custom_dielectric`).
 DIELECTRICS: dict[str, Dielectric] = {d.name: d for d in (SIO2, AL2O3, HFO2, ZRO2)}
 
+#: The buried oxide under a single-gate body (a key of DIELECTRICS).
+BURIED_OXIDE = "SiO2"
+
 #: Accepted range of a custom dielectric's relative permittivity [-].
 CUSTOM_PERMITTIVITY_RANGE: tuple[float, float] = (1.0, 100.0)
 _CUSTOM_GAP_EV = 6.0  # assumption: a generic high-k barrier, near HfO2/ZrO2
 _CUSTOM_AFFINITY_EV = 2.0  # assumption: between HfO2 (2.65) and Al2O3 (1.25)
+
+
+def dielectrics() -> dict[str, Dielectric]:
+    """The named gate dielectrics, by name (a new dictionary each call).
+
+    Returns
+    -------
+    dict of str to Dielectric
+        each record's ``sources`` maps every field to the citation of its value
+        (Robertson 2004, Table 1, for the permittivities, gaps and band offsets). A
+        dielectric of any other permittivity comes from `custom_dielectric`.
+    """
+    return dict(DIELECTRICS)
 
 
 def get_dielectric(name: str) -> Dielectric:

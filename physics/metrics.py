@@ -35,7 +35,8 @@ from typing import ClassVar
 
 import numpy as np
 from numpy.typing import ArrayLike
-from scipy import constants
+
+from sub60.physics.constants import BOLTZMANN_J_PER_K, ELEMENTARY_CHARGE_C
 
 #: Default constant-current threshold criterion [µA/µm] (100 nA/µm); common practice, no
 #: source.
@@ -71,7 +72,7 @@ def thermionic_limit_mV_per_dec(temperature_K: float) -> float:
     """
     if not (math.isfinite(temperature_K) and temperature_K > 0.0):
         raise ValueError(f"temperature must be finite and positive [K], got {temperature_K!r}")
-    return math.log(10.0) * constants.k * temperature_K / constants.e * 1e3
+    return math.log(10.0) * BOLTZMANN_J_PER_K * temperature_K / ELEMENTARY_CHARGE_C * 1e3
 
 
 def _log10_current(id_uA_per_um: np.ndarray) -> np.ndarray:

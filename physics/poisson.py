@@ -30,28 +30,50 @@ solution.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
-import scipy.constants as sc
 import scipy.linalg as sla
 import scipy.sparse as sp
 
+from sub60.physics._threads import single_blas_thread
+from sub60.physics.constants import QE_V_NM2_CM3
 from sub60.physics.mesh import Mesh
 from sub60.physics.statistics import fermi_half_and_minus_half, inverse_fermi_half
 
-# charge term of the residual = QE * (control area [nm^2]) * density [cm^-3] -> [V]:
-# q/eps0 [V m] -> [V nm] (x 1e9), and cm^-3 -> nm^-3 (x 1e-21)
-QE_V_NM2_CM3 = sc.e / sc.epsilon_0 * 1e9 * 1e-21
+# charge term of the residual = QE_V_NM2_CM3 * (control area [nm^2]) * density [cm^-3] -> [V]
 
 
 class SolverError(RuntimeError):
-    """A solve that did not converge; carries the residual history."""
+    """A solve that did not converge.
 
-    def __init__(self, message: str, history: list[float]):
-        hist = ", ".join(f"{r:.2e}" for r in history[-8:])
-        super().__init__(f"{message}; residual history [V]: {hist}")
-        self.history = history
+    Attributes
+    ----------
+    summary : str
+        what failed, in one sentence, without the history (for messages; re-wrap with
+        ``SolverError(f"context: {exc.summary}", exc.history)`` so the history is not
+        repeated).
+    history : tuple of float
+        largest Newton update of each step [V], oldest first (empty when not a Newton
+        failure).
+
+    ``str(exc)`` is the summary followed once by the last 8 entries of the history.
+    """
+
+    def __init__(self, summary: str, history: Sequence[float] = ()):
+        self.summary = str(summary)
+        self.history = tuple(float(r) for r in history)
+        super().__init__(self._message())
+
+    def _message(self) -> str:
+        if not self.history:
+            return self.summary
+        hist = ", ".join(f"{r:.2e}" for r in self.history[-8:])
+        return f"{self.summary}; residual history [V]: {hist}"
+
+    def __reduce__(self):  # picklable across processes (e.g. Dask workers)
+        return (type(self), (self.summary, self.history))
 
 
 @dataclass(frozen=True)
@@ -245,7 +267,18 @@ def solve_poisson(
     ------
     SolverError
         when the iteration does not converge, with the residual history.
+
+    Notes
+    -----
+    BLAS is limited to one thread during the solve (`sub60.physics._threads`).
     """
+    with single_blas_thread():
+        return _newton(problem, initial_psi_V, operator, tol_V, max_iter, max_step_V)
+
+
+def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: PoissonOperator | None,
+            tol_V: float, max_iter: int, max_step_V: float) -> PoissonSolution:
+    """The damped Newton loop of `solve_poisson`."""
     mesh = problem.mesh
     nx, ny = mesh.nx, mesh.ny
     op = operator or PoissonOperator(mesh, problem.dirichlet)

@@ -19,6 +19,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from sub60.physics._threads import single_blas_thread
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
 from sub60.physics.materials import check_tunnelling_material, get_semiconductor
@@ -223,10 +224,11 @@ class Simulator:
                 self._cache.move_to_end(key)
                 return hit
             start = initial or self._last.get(design)
-        t0 = time.perf_counter()
-        es, notes = self._electrostatics(design, vg_V, vd_V, start)
-        t1 = time.perf_counter()
-        bp = bias_point_from_electrostatics(es, self.model)
+        with single_blas_thread():
+            t0 = time.perf_counter()
+            es, notes = self._electrostatics(design, vg_V, vd_V, start)
+            t1 = time.perf_counter()
+            bp = bias_point_from_electrostatics(es, self.model)
         bp.timings_s["poisson"] = t1 - t0
         if notes:
             bp = dataclasses.replace(bp, solver_notes=notes)
@@ -279,8 +281,8 @@ class Simulator:
                                       max_step_V=0.1)
             return es, (f"finer grid ({1.5 * res:g}x) with heavier damping",)
         except SolverError as exc:
-            raise SolverError(f"{first}; bias ramp, heavier damping and a finer grid also failed",
-                              exc.history) from None
+            raise SolverError(f"{first.summary}; bias ramp, heavier damping and a finer grid "
+                              "also failed", exc.history) from None
 
     def transfer_curve(
         self, design: Design, vg_V: np.ndarray, vd_V: float, temperature_K: float | None = None,
@@ -334,9 +336,9 @@ def _check_finite(bp: BiasPoint) -> None:
               "spectral current": bp.spectrum.current_density}
     for name, arr in arrays.items():
         if not np.all(np.isfinite(arr)):
-            raise SolverError(f"non-finite {name} at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V", [])
+            raise SolverError(f"non-finite {name} at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V")
     if not np.isfinite(bp.current_uA_per_um):
-        raise SolverError(f"non-finite current at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V", [])
+        raise SolverError(f"non-finite current at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V")
 
 
 def _predict(points: list[BiasPoint], v: float, terminal: str) -> Electrostatics | None:

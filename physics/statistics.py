@@ -11,10 +11,10 @@ so is F_j. In a parabolic band the electron density is n = N_c F_{1/2}(eta).
 How the integrals are evaluated (relative error ~1e-10 on [-40, 80]; see the tests):
 
 * -40 <= eta <= 25: a cubic spline of ln F_j on a uniform table with step 1/40. The
-  table is computed at import by the trapezoidal rule after the substitution t = x^2,
-  which turns the integrand into an even function of x, analytic in a strip around the
-  real axis, on which the trapezoidal rule converges geometrically (Trefethen &
-  Weideman, SIAM Rev. 56, 385 (2014)).
+  table is computed on first use (not at import) by the trapezoidal rule after the
+  substitution t = x^2, which turns the integrand into an even function of x, analytic
+  in a strip around the real axis, on which the trapezoidal rule converges
+  geometrically (Trefethen & Weideman, SIAM Rev. 56, 385 (2014)).
 * eta < -40: F_j = exp(eta), the first term of the series
   sum_k (-1)^(k+1) exp(k eta) / k^(j+1) of -Li_{j+1}(-exp(eta)) (DLMF §25.12); the
   second term is below 2e-18 relative.
@@ -30,10 +30,10 @@ and an exponential), because these functions sit inside Newton loops on whole gr
 from __future__ import annotations
 
 import math
+import threading
 
 import numpy as np
 import numpy.typing as npt
-from scipy.interpolate import CubicSpline
 from scipy.special import expit, gamma, zeta
 
 ArrayLike = npt.ArrayLike
@@ -76,6 +76,8 @@ def _log_spline_table(order: float) -> np.ndarray:
     """
     n_intervals = round((_ETA_HIGH - _ETA_LOW) * _STEPS_PER_UNIT)
     nodes = np.linspace(_ETA_LOW, _ETA_HIGH, n_intervals + 1)
+    from scipy.interpolate import CubicSpline  # loaded with the first table, not at import
+
     log_values = np.log(_quadrature(nodes, order))
     c3, c2, c1, c0 = CubicSpline(nodes, log_values, bc_type="not-a-knot").c
     h = 1.0 / _STEPS_PER_UNIT
@@ -97,7 +99,7 @@ def _sommerfeld_coefficients(order: float) -> np.ndarray:
 
 
 class _FermiIntegral:
-    """One order j: its spline table and Sommerfeld coefficients, built once at import."""
+    """One order j: its spline table and Sommerfeld coefficients (built once, on first use)."""
 
     def __init__(self, order: float) -> None:
         self.order = order
@@ -145,8 +147,20 @@ class _TablePosition:
         self.high = eta > _ETA_HIGH
 
 
-_F_HALF = _FermiIntegral(0.5)
-_F_MINUS_HALF = _FermiIntegral(-0.5)
+_F_HALF: _FermiIntegral | None = None
+_F_MINUS_HALF: _FermiIntegral | None = None
+_TABLE_LOCK = threading.Lock()
+
+
+def _orders() -> tuple[_FermiIntegral, _FermiIntegral]:
+    """F_1/2 and F_-1/2, their tables built on the first call (thread-safe)."""
+    global _F_HALF, _F_MINUS_HALF
+    if _F_MINUS_HALF is None:
+        with _TABLE_LOCK:
+            if _F_MINUS_HALF is None:
+                _F_HALF = _FermiIntegral(0.5)
+                _F_MINUS_HALF = _FermiIntegral(-0.5)  # assigned last: the flag of "built"
+    return _F_HALF, _F_MINUS_HALF
 
 
 def _as_array(values: ArrayLike) -> tuple[np.ndarray, bool]:
@@ -177,7 +191,7 @@ def fermi_half(eta: ArrayLike) -> FloatOrArray:
     and positive on [-700, 1e4], zero below about -745 (underflow). NaN in, NaN out.
     """
     x, scalar = _as_array(eta)
-    out = _F_HALF.evaluate(_TablePosition(x))
+    out = _orders()[0].evaluate(_TablePosition(x))
     return float(out[0]) if scalar else out
 
 
@@ -199,7 +213,7 @@ def fermi_minus_half(eta: ArrayLike) -> FloatOrArray:
         Tends to exp(eta) for eta -> -inf and to eta^(1/2)/Gamma(3/2) for eta -> +inf.
     """
     x, scalar = _as_array(eta)
-    out = _F_MINUS_HALF.evaluate(_TablePosition(x))
+    out = _orders()[1].evaluate(_TablePosition(x))
     return float(out[0]) if scalar else out
 
 
@@ -222,8 +236,9 @@ def fermi_half_and_minus_half(eta: ArrayLike) -> tuple[FloatOrArray, FloatOrArra
     """
     x, scalar = _as_array(eta)
     grid = _TablePosition(x)
-    half = _F_HALF.evaluate(grid)
-    minus_half = _F_MINUS_HALF.evaluate(grid)
+    f_half, f_minus_half = _orders()
+    half = f_half.evaluate(grid)
+    minus_half = f_minus_half.evaluate(grid)
     if scalar:
         return float(half[0]), float(minus_half[0])
     return half, minus_half

@@ -25,28 +25,18 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 
 import numpy as np
-import scipy.constants as sc
 
+from sub60.physics.constants import thermal_energy_eV
 from sub60.physics.design import Design
-from sub60.physics.materials import get_dielectric, get_semiconductor
+from sub60.physics.materials import BURIED_OXIDE, Dielectric, get_dielectric, get_semiconductor
 from sub60.physics.mesh import Mesh, graded_axis, layered_y_axis
 from sub60.physics.poisson import BandParameters, PoissonOperator, PoissonProblem, neutral_potential
 
-BOX_PERMITTIVITY = 3.9  # buried oxide is SiO2 (Robertson 2004, Table 1)
 
-
-def gate_dielectric(design: Design):
-    """The gate dielectric record of a design (custom permittivity honoured)."""
-    from sub60.physics.materials import custom_dielectric
-
-    if design.oxide == "custom":
-        return custom_dielectric(design.oxide_permittivity)
-    return get_dielectric(design.oxide)
-
-
-def thermal_energy_eV(temperature_K: float) -> float:
-    """kT/q [eV] with exact SI constants (scipy.constants)."""
-    return sc.k * temperature_K / sc.e
+def gate_dielectric(design: Design) -> Dielectric:
+    """The gate dielectric record of a design; the same as ``design.gate_dielectric``
+    (kept as a function for existing callers)."""
+    return design.gate_dielectric
 
 
 def build_mesh(design: Design, resolution: float = 1.0) -> Mesh:
@@ -65,12 +55,12 @@ def build_mesh(design: Design, resolution: float = 1.0) -> Mesh:
     x = graded_axis(design.total_length_nm, [xj1, xj2, design.gate_start_nm], refine,
                     h_max_nm=2.0 / r, growth=0.15)
     sc_rec = get_semiconductor(design.material)
-    eps_ox = gate_dielectric(design).permittivity
+    eps_ox = design.gate_permittivity
     tox, ts = design.oxide_thickness_nm, design.body_thickness_nm
     h_ox = min(0.4, tox / 3)
     h_body = min(0.5, ts / 10)
     bottom = ((tox, eps_ox, False) if design.gate_layout == "double"
-              else (design.buried_oxide_thickness_nm, BOX_PERMITTIVITY, False))
+              else (design.buried_oxide_thickness_nm, get_dielectric(BURIED_OXIDE).permittivity, False))
     layers = [bottom, (ts, sc_rec.permittivity, True), (tox, eps_ox, False)]
     h_bottom = h_ox if design.gate_layout == "double" else min(0.5, h_body * 1.5)
     y, eps, semi, _ = layered_y_axis(layers, [h_bottom, h_body, h_ox], resolution=r)

@@ -25,7 +25,7 @@ import numpy as np
 
 from sub60.physics.confinement import solve_subbands, subband_weights
 from sub60.physics.design import Design
-from sub60.physics.materials import get_dielectric, get_semiconductor
+from sub60.physics.materials import BURIED_OXIDE, get_dielectric, get_semiconductor
 
 N_CONDUCTION = 2
 N_HEAVY = 2
@@ -107,12 +107,8 @@ def _weights_cached(sb: DeviceSubbands, y_nodes: tuple[float, ...], kind: str) -
 
 def _stack(design: Design):
     """Bottom dielectric, body, top dielectric and the body's y position in the mesh."""
-    top = (get_dielectric(design.oxide) if design.oxide != "custom" else None)
-    if top is None:
-        from sub60.physics.materials import custom_dielectric
-
-        top = custom_dielectric(design.oxide_permittivity)
-    bottom = top if design.gate_layout == "double" else get_dielectric("SiO2")
+    top = design.gate_dielectric
+    bottom = top if design.gate_layout == "double" else get_dielectric(BURIED_OXIDE)
     y0 = design.oxide_thickness_nm if design.gate_layout == "double" \
         else design.buried_oxide_thickness_nm
     return bottom, top, y0

@@ -28,12 +28,18 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.constants as sc
 
+from sub60.physics.constants import (
+    ELECTRON_MASS_KG,
+    ELEMENTARY_CHARGE_C,
+    G0_S,
+    HBAR2_2M0_EV_NM2,
+    HBAR_J_S,
+    PLANCK_J_S,
+)
 from sub60.physics.statistics import fermi_half
-from sub60.physics.tunneling import HBAR2_2M0_EV_NM2, wkb_exponent_transverse
+from sub60.physics.tunneling import wkb_exponent_transverse
 
-G0_S = 2 * sc.e**2 / sc.h  # conductance quantum 2e^2/h [S]
 N_K = 6  # Gauss-Legendre nodes of the transverse-k integral (per energy; 2e-4 rel. vs 40)
 N_E = 48  # energies of each pair's current integral, over where it flows
 N_E_SCAN = 100  # energies of the k = 0 scan and of the reported spectrum
@@ -80,9 +86,10 @@ def thermionic_current(
         raise ValueError(f"kind: {kind!r} unknown; allowed 'conduction', 'valence'")
     total = 0.0
     for prof in profiles:
-        m = prof.mass * sc.m_e
-        kT = kT_eV * sc.e
-        pref = 2 * sc.e / sc.h * kT * np.sqrt(2 * m * kT) / (2 * np.sqrt(np.pi) * sc.hbar)
+        m = prof.mass * ELECTRON_MASS_KG
+        kT = kT_eV * ELEMENTARY_CHARGE_C
+        pref = 2 * ELEMENTARY_CHARGE_C / PLANCK_J_S * kT * np.sqrt(2 * m * kT) \
+            / (2 * np.sqrt(np.pi) * HBAR_J_S)
         if kind == "conduction":
             top = float(np.max(prof.edge_eV))
             total += pref * (fermi_half((efs_eV - top) / kT_eV) - fermi_half((efd_eV - top) / kT_eV))

@@ -23,12 +23,13 @@ integrated with 3-point Gauss–Legendre.
 from __future__ import annotations
 
 import numpy as np
-import scipy.constants as sc
 
-# hbar^2 / (2 m0) [eV nm^2]
-HBAR2_2M0_EV_NM2 = sc.hbar**2 / (2 * sc.m_e) / sc.e * 1e18
+from sub60.physics.constants import HBAR2_2M0_EV_NM2
+
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(3)
-MODELS = ("two-band", "one-band")
+#: The imaginary wave-vector models, eqs. (1) and (2): the names every caller uses.
+TUNNELLING_MODELS: tuple[str, ...] = ("two-band", "one-band")
+MODELS = TUNNELLING_MODELS  # older name, kept for existing callers
 
 
 def kappa_per_nm(
@@ -51,7 +52,7 @@ def kappa_per_nm(
     elif model == "one-band":
         arg = gc
     else:
-        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {MODELS}")
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
     return np.where(inside, np.sqrt(np.abs(arg) * mass_rel / HBAR2_2M0_EV_NM2), 0.0)
 
 
@@ -82,8 +83,8 @@ def wkb_exponent(
     -------
     (..., nE) WKB exponent (T = exp(-exponent)).
     """
-    if model not in MODELS:
-        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {MODELS}")
+    if model not in TUNNELLING_MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
     x = np.asarray(x_nm, float)
     h = np.diff(x)
     e = np.asarray(energy_eV, float)[:, None]
@@ -104,115 +105,6 @@ def wkb_exponent(
         kap = kappa_per_nm(e, c0 + (c1 - c0) * t, v0 + (v1 - v0) * t, mass_rel, model)
         total += np.sum(np.where(active, wi * 0.5 * length * h * kap, 0.0), axis=-1)
     return 2.0 * total
-
-
-try:  # compiled kernel (numba); the numpy version above is the reference it is tested against
-    import numba as _nb
-except ImportError:  # pragma: no cover - numba is a declared dependency
-    _nb = None
-
-if _nb is not None:
-
-    @_nb.njit(cache=True, nogil=True, inline="always")
-    def _segment_integral(c0, c1, v0, v1, h, two_band, gl_x, gl_w):  # pragma: no cover
-        """int kappa dx / sqrt(2m/hbar^2) over the in-gap part of one segment, where
-        c = E_c - E and v = E - E_v are linear between c0, c1 and v0, v1 [eV^1/2 nm]."""
-        if (c0 <= 0 and c1 <= 0) or (v0 <= 0 and v1 <= 0):
-            return 0.0
-        lo, hi = 0.0, 1.0  # in-gap sub-interval of the segment
-        if c0 <= 0:
-            lo = max(lo, c0 / (c0 - c1))
-        elif c1 <= 0:
-            hi = min(hi, c0 / (c0 - c1))
-        if v0 <= 0:
-            lo = max(lo, v0 / (v0 - v1))
-        elif v1 <= 0:
-            hi = min(hi, v0 / (v0 - v1))
-        length = hi - lo
-        if length <= 0:
-            return 0.0
-        s = 0.0
-        for g in range(gl_x.size):
-            t = lo + 0.5 * (1.0 + gl_x[g]) * length
-            gc = c0 + (c1 - c0) * t
-            gv = v0 + (v1 - v0) * t
-            if gc <= 0 or gv <= 0:
-                continue
-            if two_band:
-                s += gl_w[g] * np.sqrt(gc * gv / (gc + gv))
-            else:
-                s += gl_w[g] * np.sqrt(gc)
-        return 0.5 * length * h * s
-
-    @_nb.njit(cache=True, nogil=True)
-    def _wkb_kernel(x, ec, ev, energies, mass_rel, two_band, gl_x, gl_w, connected_only):  # pragma: no cover
-        nk, nx = ec.shape
-        ne = energies.size
-        out = np.zeros((nk, ne))
-        scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
-        for kk in range(nk):
-            for ie in range(ne):
-                e = energies[ie]
-                if connected_only and (e >= ev[kk, 0] or e <= ec[kk, nx - 1]):
-                    out[kk, ie] = np.inf  # no path from source valence to drain conduction
-                    continue
-                acc = 0.0
-                for i in range(nx - 1):
-                    c0, c1 = ec[kk, i] - e, ec[kk, i + 1] - e
-                    v0, v1 = e - ev[kk, i], e - ev[kk, i + 1]
-                    acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], two_band, gl_x, gl_w)
-                out[kk, ie] = 2.0 * scale * acc
-        return out
-
-
-def wkb_exponent_fast(
-    x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray, energy_eV: np.ndarray,
-    mass_rel: float, model: str = "two-band", connected_only: bool = False,
-) -> np.ndarray:
-    """Same as `wkb_exponent` for (nk, nx) edge arrays, compiled (numba) when available.
-
-    With ``connected_only`` the exponent is +inf (T = 0) for energies that do not lie
-    below the valence edge at the path's start and above the conduction edge at its end.
-    """
-    if model not in MODELS:
-        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {MODELS}")
-    ec = np.atleast_2d(np.asarray(ec_eV, float))
-    ev = np.atleast_2d(np.asarray(ev_eV, float))
-    if _nb is None:
-        out = wkb_exponent(x_nm, ec, ev, energy_eV, mass_rel, model)
-        if connected_only:
-            e = np.asarray(energy_eV, float)[None, :]
-            out = np.where((e < ev[:, :1]) & (e > ec[:, -1:]), out, np.inf)
-        return out
-    return _wkb_kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
-                       np.ascontiguousarray(ev), np.ascontiguousarray(energy_eV, float),
-                       float(mass_rel), model == "two-band", _GL_X, _GL_W, bool(connected_only))
-
-
-if _nb is not None:
-
-    @_nb.njit(cache=True, nogil=True)
-    def _wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
-                               gl_x, gl_w):  # pragma: no cover
-        nk, ne = kvals.shape
-        nx = x.size
-        out = np.empty((nk, ne))
-        scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
-        for kk in range(nk):
-            for ie in range(ne):
-                e = energies[ie]
-                up = a * kvals[kk, ie] ** 2
-                down = b * kvals[kk, ie] ** 2
-                if e >= ev[0] - down or e <= ec[nx - 1] + up:
-                    out[kk, ie] = np.inf
-                    continue
-                acc = 0.0
-                for i in range(nx - 1):
-                    c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
-                    v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
-                    acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], two_band, gl_x, gl_w)
-                out[kk, ie] = 2.0 * scale * acc
-        return out
 
 
 def wkb_exponent_transverse(
@@ -236,18 +128,18 @@ def wkb_exponent_transverse(
     -------
     (nk, nE) exponent.
     """
-    if model not in MODELS:
-        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {MODELS}")
+    if model not in TUNNELLING_MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
     kv = np.atleast_2d(np.asarray(k_per_nm, float))
     e = np.asarray(energy_eV, float)
     ec = np.asarray(ec_eV, float)
     ev = np.asarray(ev_eV, float)
-    if _nb is not None:
-        return _wkb_transverse_kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
-                                      np.ascontiguousarray(ev), float(up_eV_nm2),
-                                      float(down_eV_nm2), np.ascontiguousarray(kv),
-                                      np.ascontiguousarray(e), float(mass_rel),
-                                      model == "two-band", _GL_X, _GL_W)
+    kernel = _compiled_kernel()
+    if kernel is not None:
+        return kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
+                      np.ascontiguousarray(ev), float(up_eV_nm2), float(down_eV_nm2),
+                      np.ascontiguousarray(kv), np.ascontiguousarray(e), float(mass_rel),
+                      model == "two-band", _GL_X, _GL_W)
     out = np.empty(kv.shape)  # reference path: one energy at a time
     for kk in range(kv.shape[0]):
         for ie in range(e.size):
@@ -258,3 +150,20 @@ def wkb_exponent_transverse(
             else:
                 out[kk, ie] = wkb_exponent(x_nm, ec_k, ev_k, e[ie:ie + 1], mass_rel, model)[0]
     return out
+
+
+def _compiled_kernel():
+    """The numba kernel of `wkb_exponent_transverse`, compiled on first use (so that
+    importing this module does not load numba); None when numba is missing."""
+    global _KERNEL
+    if _KERNEL is None:
+        try:
+            from sub60.physics._wkb_compiled import wkb_transverse_kernel
+        except ImportError:  # pragma: no cover - numba is a declared dependency
+            _KERNEL = False
+        else:
+            _KERNEL = wkb_transverse_kernel
+    return _KERNEL or None
+
+
+_KERNEL = None

@@ -6,36 +6,36 @@ A design-exploration model with stated approximations, not calibrated TCAD.
 The public API is that of `sub60.physics`, re-exported here and loaded on first use,
 so ``import sub60`` is cheap and changes nothing in the process (no thread limits)::
 
+    import numpy as np
     import sub60
     design = sub60.Design(body_thickness_nm=5.0)
-    curve = sub60.transfer_curve(design, vg=(-0.3, 0.6, 46), vd=0.3)
+    curve = sub60.transfer_curve(design, np.linspace(-0.3, 0.6, 46), vd_V=0.3)
     print(curve.metrics)
 
 The browser app is `sub60.app` (``sub60 serve`` on the command line).
 """
 
-from __future__ import annotations
-
-import importlib
-import importlib.metadata
-from typing import Any
+import importlib as _importlib
+import importlib.metadata as _metadata
 
 try:
-    __version__ = importlib.metadata.version("sub60")
-except importlib.metadata.PackageNotFoundError:  # pragma: no cover - run from a bare checkout
+    __version__ = _metadata.version("sub60")
+except _metadata.PackageNotFoundError:  # pragma: no cover - run from a bare checkout
     __version__ = "unknown"
 
-#: Names re-exported from sub60.physics (loaded lazily, PEP 562).
-_PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "Metrics", "OutputCurve", "Simulator",
-                "SolverError", "TransferCurve", "dielectrics", "output_curve", "semiconductors",
+#: Names re-exported from sub60.physics (loaded lazily, PEP 562); the same list as
+#: ``sub60.physics.__all__`` (a test keeps them in sync).
+_PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "Metric", "Metrics", "OutputCurve",
+                "Simulator", "SolverError", "Spectrum", "TUNNELLING_MODELS", "TransferCurve",
+                "dielectrics", "figures_of_merit", "output_curve", "semiconductors",
                 "solve_bias", "solve_electrostatics", "transfer_curve")
 
 __all__ = ["__version__", *_PHYSICS_API]
 
 
-def __getattr__(name: str) -> Any:
+def __getattr__(name: str) -> object:
     if name in _PHYSICS_API:
-        return getattr(importlib.import_module("sub60.physics"), name)
+        return getattr(_importlib.import_module("sub60.physics"), name)
     raise AttributeError(f"module 'sub60' has no attribute {name!r}")
 
 

@@ -1,0 +1,70 @@
+"""Compiled (numba) kernel of `sub60.physics.tunneling.wkb_exponent_transverse`.
+
+Imported on the first tunnelling calculation, not with the package, because loading
+numba takes ~0.2 s. The plain-numpy `wkb_exponent` is the reference it is tested
+against (tests/physics/test_tunneling.py).
+"""
+
+from __future__ import annotations
+
+import numba as _nb
+import numpy as np
+
+from sub60.physics.constants import HBAR2_2M0_EV_NM2
+
+
+@_nb.njit(cache=True, nogil=True, inline="always")
+def _segment_integral(c0, c1, v0, v1, h, two_band, gl_x, gl_w):  # pragma: no cover
+    """int kappa dx / sqrt(2m/hbar^2) over the in-gap part of one segment, where
+    c = E_c - E and v = E - E_v are linear between c0, c1 and v0, v1 [eV^1/2 nm]."""
+    if (c0 <= 0 and c1 <= 0) or (v0 <= 0 and v1 <= 0):
+        return 0.0
+    lo, hi = 0.0, 1.0  # in-gap sub-interval of the segment
+    if c0 <= 0:
+        lo = max(lo, c0 / (c0 - c1))
+    elif c1 <= 0:
+        hi = min(hi, c0 / (c0 - c1))
+    if v0 <= 0:
+        lo = max(lo, v0 / (v0 - v1))
+    elif v1 <= 0:
+        hi = min(hi, v0 / (v0 - v1))
+    length = hi - lo
+    if length <= 0:
+        return 0.0
+    s = 0.0
+    for g in range(gl_x.size):
+        t = lo + 0.5 * (1.0 + gl_x[g]) * length
+        gc = c0 + (c1 - c0) * t
+        gv = v0 + (v1 - v0) * t
+        if gc <= 0 or gv <= 0:
+            continue
+        if two_band:
+            s += gl_w[g] * np.sqrt(gc * gv / (gc + gv))
+        else:
+            s += gl_w[g] * np.sqrt(gc)
+    return 0.5 * length * h * s
+
+
+@_nb.njit(cache=True, nogil=True)
+def wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
+                          gl_x, gl_w):  # pragma: no cover
+    """(nk, nE) WKB exponents; see `wkb_exponent_transverse` for the arguments."""
+    nk, ne = kvals.shape
+    nx = x.size
+    out = np.empty((nk, ne))
+    scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
+    for kk in range(nk):
+        for ie in range(ne):
+            e = energies[ie]
+            up = a * kvals[kk, ie] ** 2
+            down = b * kvals[kk, ie] ** 2
+            if e >= ev[0] - down or e <= ec[nx - 1] + up:
+                out[kk, ie] = np.inf
+                continue
+            acc = 0.0
+            for i in range(nx - 1):
+                c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
+                v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
+                acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], two_band, gl_x, gl_w)
+            out[kk, ie] = 2.0 * scale * acc
+    return out
