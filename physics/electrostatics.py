@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sub60.physics._cache import array_bytes
 from sub60.physics.design import Design, check_bias
 from sub60.physics.poisson import SolverError, solve_poisson
 from sub60.physics.structure import DeviceFrame, build_frame, initial_guess, problem_at_bias
@@ -22,8 +23,9 @@ class Electrostatics:
     x_nm, y_nm : grid [nm]
     psi_V : (nx, ny) electrostatic potential (vacuum level at -q psi) [V]
     n_cm3, p_cm3 : (nx, ny) electron and hole densities, zero in the dielectrics [cm^-3]
-    ec_eV, ev_eV : (nx,) conduction and valence band edges on the body mid-plane, bulk
-        (no confinement shift), source Fermi level at 0 [eV]
+    bulk_ec_eV, bulk_ev_eV : (nx,) bulk conduction and valence band edges on the body
+        mid-plane (no confinement shift), source Fermi level at 0 [eV]; the subband
+        edges the carriers see are `BiasPoint.subband_ec_eV` / `subband_ev_eV`
     efn_eV, efp_eV : (nx,) electron and hole quasi-Fermi levels [eV]
     iterations : Newton steps; residual_V : final scaled residual [V];
     history : largest Newton update of each step [V]
@@ -38,14 +40,35 @@ class Electrostatics:
     psi_V: np.ndarray
     n_cm3: np.ndarray
     p_cm3: np.ndarray
-    ec_eV: np.ndarray
-    ev_eV: np.ndarray
+    bulk_ec_eV: np.ndarray
+    bulk_ev_eV: np.ndarray
     efn_eV: np.ndarray
     efp_eV: np.ndarray
     iterations: int
     residual_V: float
     history: tuple[float, ...]
     frame: DeviceFrame
+
+    @property
+    def ec_eV(self) -> np.ndarray:
+        """Older name of `bulk_ec_eV` (the bulk edge, not a subband) [eV]."""
+        return self.bulk_ec_eV
+
+    @property
+    def ev_eV(self) -> np.ndarray:
+        """Older name of `bulk_ev_eV` (the bulk edge, not a subband) [eV]."""
+        return self.bulk_ev_eV
+
+    @property
+    def nbytes(self) -> int:
+        """Bytes of this solution's own arrays (the shared `frame` not counted) [B]."""
+        return array_bytes(self.psi_V, self.n_cm3, self.p_cm3, self.bulk_ec_eV,
+                           self.bulk_ev_eV, self.efn_eV, self.efp_eV)
+
+    def __repr__(self) -> str:
+        return (f"Electrostatics({self.design.material}, Vg = {self.vg_V:g} V, "
+                f"Vd = {self.vd_V:g} V, {self.x_nm.size} x {self.y_nm.size} nodes, "
+                f"{self.iterations} Newton steps)")
 
     @property
     def ec_map_eV(self) -> np.ndarray:
@@ -83,11 +106,13 @@ def solve_electrostatics(
         when Newton does not converge (with the residual history).
     """
     vg_V, vd_V = check_bias(vg_V, vd_V)
-    frame = build_frame(design, resolution, quantum_correction)
-    problem = problem_at_bias(frame, vg_V, vd_V)
-    if initial is not None and initial.frame is frame:
+    if initial is not None and initial.frame.built_for(design, resolution, quantum_correction):
+        frame = initial.frame  # continue on the same structure, cached or not
+        problem = problem_at_bias(frame, vg_V, vd_V)
         start = initial.psi_V
     else:
+        frame = build_frame(design, resolution, quantum_correction)
+        problem = problem_at_bias(frame, vg_V, vd_V)
         start = initial_guess(frame, problem)
     try:
         sol = solve_poisson(problem, start, frame.operator, max_iter=max_iter, max_step_V=max_step_V)
@@ -100,6 +125,6 @@ def solve_electrostatics(
     ec = -b.chi_eV - psi_mid
     return Electrostatics(
         design=design, vg_V=vg_V, vd_V=vd_V, x_nm=frame.mesh.x_nm, y_nm=frame.mesh.y_nm,
-        psi_V=sol.psi_V, n_cm3=sol.n_cm3, p_cm3=sol.p_cm3, ec_eV=ec, ev_eV=ec - b.eg_eV,
+        psi_V=sol.psi_V, n_cm3=sol.n_cm3, p_cm3=sol.p_cm3, bulk_ec_eV=ec, bulk_ev_eV=ec - b.eg_eV,
         efn_eV=sol.efn_eV, efp_eV=sol.efp_eV, iterations=sol.iterations,
         residual_V=sol.residual_V, history=tuple(sol.history), frame=frame)

@@ -31,7 +31,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import ClassVar
+from typing import Any, ClassVar
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -204,6 +204,9 @@ class Metric:
             raise ValueError(f"a metric value must be finite, got {self.value!r}")
         object.__setattr__(self, "value", value)
 
+    def __str__(self) -> str:
+        return "n/a" if self.value is None else f"{self.value:.4g} {self.unit}"
+
 
 def _missing(unit: str, reason: str) -> Metric:
     return Metric(None, unit, reason)
@@ -276,6 +279,35 @@ class Metrics:
     def reasons(self) -> dict[str, str | None]:
         """Each figure of merit by name: why it is undefined, or None when it has a value."""
         return {name: getattr(self, name).reason for name in self.METRIC_NAMES}
+
+    #: Names of the extraction settings, in `columns` after the figures of merit.
+    SETTING_NAMES: ClassVar[tuple[str, ...]] = (
+        "ioff_target_uA_per_um", "vdd_V", "ith_uA_per_um", "temperature_K")
+
+    def columns(self) -> dict[str, np.ndarray]:
+        """One row: each figure of merit (`METRIC_NAMES`, NaN when undefined; the reason
+        is in `reasons`), then the settings (`SETTING_NAMES`), as 1-element columns."""
+        out = {name: np.array([np.nan if v is None else v])
+               for name, v in self.to_dict().items()}
+        for name in self.SETTING_NAMES:
+            out[name] = np.array([float(getattr(self, name))])
+        return out
+
+    def to_table(self) -> Any:
+        """`columns` as a one-row pandas DataFrame (a dict of numpy columns without
+        pandas); tables of several curves concatenate row by row."""
+        from sub60.physics.tables import table
+
+        return table(self.columns())
+
+    def summary(self) -> str:
+        """SS_min, I60, Voff and Ion in one short line."""
+        return (f"SS_min {self.ss_min_mV_per_dec}, I60 {self.i60_uA_per_um}, "
+                f"Voff {self.voff_V}, Ion {self.ion_uA_per_um}")
+
+    def __repr__(self) -> str:
+        return f"Metrics({self.summary()}; Ioff target {self.ioff_target_uA_per_um:g} uA/um, " \
+               f"Vdd {self.vdd_V:g} V, {self.temperature_K:g} K)"
 
 
 def _fmt(x: float) -> str:

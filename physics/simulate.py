@@ -4,6 +4,17 @@
 terminal with continuation from point to point. A `Simulator` keeps a cache of solved
 points and the last solution of each design (for warm starts); the module-level
 functions use a shared default one. Separate sessions should own separate simulators.
+
+Memory: the cache of solved points is a thread-safe LRU bounded by the bytes of the
+arrays it holds (``cache_bytes``, default `DEFAULT_CACHE_BYTES` = 64 MiB, the device
+structures its points refer to counted once each); the warm starts keep the last
+solution of at most 16 designs. The shared default simulator of the module-level
+functions has the same bound; `cache_info()` reports its occupancy and `clear_cache()`
+empties it. Device structures are also cached process-wide (`structure.build_frame`,
+`structure.FRAME_CACHE_BYTES`).
+
+Results print short (``repr``) and export tables (``to_table()``: columns with units in
+their names, a pandas DataFrame when pandas is installed; see `sub60.physics.tables`).
 """
 
 from __future__ import annotations
@@ -13,12 +24,14 @@ import dataclasses
 import threading
 import time
 from collections import OrderedDict
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 
+from sub60.physics._cache import ByteLRU, CacheInfo, array_bytes
 from sub60.physics._threads import single_blas_thread
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
@@ -28,6 +41,7 @@ from sub60.physics.poisson import SolverError
 from sub60.physics.statistics import inverse_fermi_half
 from sub60.physics.structure import band_parameters
 from sub60.physics.subbands import device_subbands
+from sub60.physics.tables import table
 from sub60.physics.transport import (
     BandProfile,
     Spectrum,
@@ -35,6 +49,15 @@ from sub60.physics.transport import (
     thermionic_current,
     tunnel_window,
 )
+from sub60.physics.tunneling import TUNNELLING_MODELS
+
+#: Default memory budget of a Simulator's cache of solved bias points [B].
+DEFAULT_CACHE_BYTES = 64 * 2**20
+
+
+def _design_label(d: Design) -> str:
+    kind = "tunnel FET" if d.source_type == "p" else "MOSFET twin"
+    return f"{d.material} {kind}"
 
 
 @dataclass(frozen=True)
@@ -48,7 +71,9 @@ class BiasPoint:
     conduction_eV : (n_c, nx) conduction subband edges, lowest first [eV]
     valence_eV : (n_v, nx) valence subband edges, highest first [eV]
     conduction_labels, valence_labels : subband names ("C1", "HH1", "LH1", ...)
-    ec_eV, ev_eV : (nx,) lowest conduction / highest valence subband edge [eV]
+    subband_ec_eV, subband_ev_eV : (nx,) lowest conduction / highest valence subband edge
+        [eV] (``ec_eV`` / ``ev_eV`` are older names of the same; the bulk edges, without
+        confinement, are ``electrostatics.bulk_ec_eV`` / ``bulk_ev_eV``)
     efs_eV, efd_eV : source and drain Fermi levels [eV]
     window_eV : (e_min, e_max) tunnel window, or None when closed [eV]
     spectrum : band-to-band J(E) and T(E)
@@ -80,17 +105,78 @@ class BiasPoint:
     solver_notes: tuple[str, ...] = ()
 
     @property
-    def ec_eV(self) -> np.ndarray:
+    def subband_ec_eV(self) -> np.ndarray:
+        """(nx,) lowest conduction subband edge along x [eV]."""
         return self.conduction_eV.min(axis=0)
 
     @property
-    def ev_eV(self) -> np.ndarray:
+    def subband_ev_eV(self) -> np.ndarray:
+        """(nx,) highest valence subband edge along x [eV]."""
         return self.valence_eV.max(axis=0)
 
     @property
+    def ec_eV(self) -> np.ndarray:
+        """Older name of `subband_ec_eV` (lowest conduction subband, not the bulk edge)."""
+        return self.subband_ec_eV
+
+    @property
+    def ev_eV(self) -> np.ndarray:
+        """Older name of `subband_ev_eV` (highest valence subband, not the bulk edge)."""
+        return self.subband_ev_eV
+
+    @property
     def current_uA_per_um(self) -> float:
+        """Total drain current per width: band-to-band plus thermionic [uA/um]."""
         return self.btbt_uA_per_um + self.electron_thermionic_uA_per_um \
             + self.hole_thermionic_uA_per_um
+
+    @property
+    def nbytes(self) -> int:
+        """Bytes of this point's own arrays (the shared device structure not counted) [B]."""
+        s = self.spectrum
+        return self.electrostatics.nbytes + array_bytes(
+            self.conduction_eV, self.valence_eV, s.energy_eV, s.current_density, s.transmission)
+
+    def __repr__(self) -> str:
+        w = "closed" if self.window_eV is None else \
+            f"{self.window_eV[0]:.3f} to {self.window_eV[1]:.3f} eV"
+        return (f"BiasPoint({_design_label(self.design)}, Vg = {self.vg_V:g} V, "
+                f"Vd = {self.vd_V:g} V, Id = {self.current_uA_per_um:.4g} uA/um, "
+                f"window {w}, {self.x_nm.size} nodes along x)")
+
+    def band_columns(self, edges_only: bool = False) -> dict[str, np.ndarray]:
+        """Band profiles along x as numpy columns.
+
+        Parameters
+        ----------
+        edges_only : bool
+            False: ``x_nm``, one ``<label>_eV`` column per subband (``C1_eV``, ``C2_eV``,
+            ``HH1_eV``, ...), ``efs_eV`` and ``efd_eV`` (the names of a snapshot's
+            bands.csv). True: ``x_nm``, ``ec_eV``, ``ev_eV``: the lowest conduction and
+            highest valence subband edges (the names of ``sub60 bands --format csv``).
+        """
+        x = np.asarray(self.x_nm, float)
+        if edges_only:
+            return {"x_nm": x, "ec_eV": np.asarray(self.subband_ec_eV, float),
+                    "ev_eV": np.asarray(self.subband_ev_eV, float)}
+        out = {"x_nm": x}
+        for lab, row in zip(self.conduction_labels, np.asarray(self.conduction_eV, float),
+                            strict=True):
+            out[f"{lab}_eV"] = row
+        for lab, row in zip(self.valence_labels, np.asarray(self.valence_eV, float), strict=True):
+            out[f"{lab}_eV"] = row
+        out["efs_eV"] = np.full(x.shape, float(self.efs_eV))
+        out["efd_eV"] = np.full(x.shape, float(self.efd_eV))
+        return out
+
+    def to_table(self, edges_only: bool = False) -> Any:
+        """`band_columns` as a pandas DataFrame (a dict of numpy columns without pandas)."""
+        return table(self.band_columns(edges_only))
+
+    def spectrum_table(self) -> Any:
+        """Spectral band-to-band current J(E) and transmission T(E, k = 0):
+        energy_eV, current_density_uA_per_um_per_eV, transmission_1 (DataFrame or dict)."""
+        return table(self.spectrum.columns())
 
 
 @dataclass(frozen=True)
@@ -106,6 +192,25 @@ class TransferCurve:
     ss_mV_per_dec: np.ndarray
     metrics: Metrics
 
+    def columns(self) -> dict[str, np.ndarray]:
+        """vg_V, id_uA_per_um, ss_mV_per_dec (point swing), btbt_uA_per_um and
+        thermionic_uA_per_um as numpy columns."""
+        return {"vg_V": np.asarray(self.vg_V, float),
+                "id_uA_per_um": np.asarray(self.id_uA_per_um, float),
+                "ss_mV_per_dec": np.asarray(self.ss_mV_per_dec, float),
+                "btbt_uA_per_um": np.asarray(self.btbt_uA_per_um, float),
+                "thermionic_uA_per_um": np.asarray(self.thermionic_uA_per_um, float)}
+
+    def to_table(self) -> Any:
+        """`columns` as a pandas DataFrame (a dict of numpy columns without pandas)."""
+        return table(self.columns())
+
+    def __repr__(self) -> str:
+        v = self.vg_V
+        span = f"Vg = {v[0]:g} to {v[-1]:g} V ({v.size} points)" if v.size else "no points"
+        return (f"TransferCurve({_design_label(self.design)}, {span}, Vd = {self.vd_V:g} V, "
+                f"{self.metrics.summary()})")
+
 
 @dataclass(frozen=True)
 class OutputCurve:
@@ -115,6 +220,43 @@ class OutputCurve:
     vg_V: float
     vd_V: np.ndarray
     id_uA_per_um: np.ndarray
+
+    def columns(self) -> dict[str, np.ndarray]:
+        """vd_V and id_uA_per_um as numpy columns (`output_columns` puts several gate
+        voltages side by side)."""
+        return {"vd_V": np.asarray(self.vd_V, float),
+                "id_uA_per_um": np.asarray(self.id_uA_per_um, float)}
+
+    def to_table(self) -> Any:
+        """`columns` as a pandas DataFrame (a dict of numpy columns without pandas)."""
+        return table(self.columns())
+
+    def __repr__(self) -> str:
+        v = self.vd_V
+        span = f"Vd = {v[0]:g} to {v[-1]:g} V ({v.size} points)" if v.size else "no points"
+        last = f", Id = {self.id_uA_per_um[-1]:.4g} uA/um at the last point" if v.size else ""
+        return f"OutputCurve({_design_label(self.design)}, Vg = {self.vg_V:g} V, {span}{last})"
+
+
+def output_columns(curves: Sequence[OutputCurve]) -> dict[str, np.ndarray]:
+    """Output curves of one drain sweep side by side: vd_V, then one
+    ``id_uA_per_um_at_vg_<Vg>_V`` column per curve (the names of a snapshot's
+    output.csv and of ``sub60 output --format csv``)."""
+    if not curves:
+        raise ValueError("curves: at least one output curve is needed")
+    vd = np.asarray(curves[0].vd_V, float)
+    for c in curves[1:]:
+        if not np.array_equal(np.asarray(c.vd_V, float), vd):
+            raise ValueError("curves: every output curve must share the drain voltages")
+    out = {"vd_V": vd}
+    for c in curves:
+        out[f"id_uA_per_um_at_vg_{c.vg_V:g}_V"] = np.asarray(c.id_uA_per_um, float)
+    return out
+
+
+def output_table(curves: Sequence[OutputCurve]) -> Any:
+    """`output_columns` as a pandas DataFrame (a dict of numpy columns without pandas)."""
+    return table(output_columns(curves))
 
 
 def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") -> BiasPoint:
@@ -201,28 +343,58 @@ class Simulator:
 
     Parameters
     ----------
-    resolution : grid refinement factor [-]; model : tunnelling model;
-    cache_size : bias points kept.
+    resolution : float
+        grid refinement factor [-].
+    model : str
+        tunnelling model, one of `TUNNELLING_MODELS`.
+    cache_bytes : int
+        memory budget of the cache of solved bias points [B]: the bytes of their arrays
+        plus, once each, those of the device structures they refer to; least recently
+        used points are dropped first (0: no cache).
+
+    Notes
+    -----
+    Besides the cache, the last solution of at most 16 designs is kept for warm starts.
     """
 
-    def __init__(self, resolution: float = 1.0, model: str = "two-band", cache_size: int = 512):
+    def __init__(self, resolution: float = 1.0, model: str = "two-band",
+                 cache_bytes: int = DEFAULT_CACHE_BYTES):
+        if model not in TUNNELLING_MODELS:
+            raise ValueError(f"model: {model!r} unknown; allowed "
+                             + ", ".join(repr(m) for m in TUNNELLING_MODELS))
         self.resolution = float(resolution)
         self.model = model
-        self._cache: OrderedDict[tuple, BiasPoint] = OrderedDict()
-        self._last: dict[Design, Electrostatics] = {}
-        self._size = cache_size
+        self._cache: ByteLRU[BiasPoint] = ByteLRU(
+            cache_bytes, lambda bp: bp.nbytes,
+            lambda bp: (id(bp.electrostatics.frame), bp.electrostatics.frame.nbytes))
+        self._last: OrderedDict[Design, Electrostatics] = OrderedDict()
         self._lock = threading.RLock()
+
+    def __repr__(self) -> str:
+        info = self._cache.info()
+        return (f"Simulator(resolution={self.resolution:g}, model={self.model!r}, "
+                f"{info.entries} points cached, {info.nbytes / 2**20:.1f} of "
+                f"{info.max_bytes / 2**20:.0f} MiB)")
+
+    def cache_info(self) -> CacheInfo:
+        """Occupancy of the cache of solved points: entries, bytes, budget, hits, misses."""
+        return self._cache.info()
+
+    def clear_cache(self) -> None:
+        """Drop the cached points and the warm starts."""
+        with self._lock:
+            self._cache.clear()
+            self._last.clear()
 
     def solve_bias(self, design: Design, vg_V: float, vd_V: float,
                    initial: Electrostatics | None = None) -> BiasPoint:
         """One bias point; cached; warm-started from the design's last solution."""
         vg_V, vd_V = check_bias(vg_V, vd_V)
         key = (design, vg_V, vd_V)
+        hit = self._cache.get(key)
+        if hit is not None:
+            return hit
         with self._lock:
-            hit = self._cache.get(key)
-            if hit is not None:
-                self._cache.move_to_end(key)
-                return hit
             start = initial or self._last.get(design)
         with single_blas_thread():
             t0 = time.perf_counter()
@@ -237,9 +409,7 @@ class Simulator:
             self._last[design] = es
             if len(self._last) > 16:
                 self._last.pop(next(iter(self._last)))
-            self._cache[key] = bp
-            while len(self._cache) > self._size:
-                self._cache.popitem(last=False)
+        self._cache.put(key, bp)
         return bp
 
     def _electrostatics(self, design: Design, vg_V: float, vd_V: float,
@@ -285,7 +455,7 @@ class Simulator:
                               "also failed", exc.history) from None
 
     def transfer_curve(
-        self, design: Design, vg_V: np.ndarray, vd_V: float, temperature_K: float | None = None,
+        self, design: Design, vg_V: np.ndarray, vd_V: float,
         ioff_target_uA_per_um: float = 1e-3, vdd_V: float = 0.3,
         progress: Callable[[int, int], None] | None = None,
         cancelled: Callable[[], bool] | None = None,
@@ -293,6 +463,8 @@ class Simulator:
     ) -> TransferCurve:
         """Id-Vg at fixed V_d with continuation along V_g, and its figures of merit.
 
+        The temperature is the design's (``design.temperature_K``); ``ioff_target_uA_per_um``
+        [uA/um] and ``vdd_V`` [V] set the figures of merit (`figures_of_merit`).
         progress(i, n) is called after each point; cancelled() before each point (True
         stops the sweep with InterruptedError); with ``slots`` each point is solved while
         holding one slot of that semaphore, so that many concurrent sweeps share the
@@ -363,15 +535,28 @@ _default = Simulator()
 
 
 def solve_bias(design: Design, vg_V: float, vd_V: float) -> BiasPoint:
-    """One bias point of a design (shared default simulator)."""
+    """One bias point of a design at gate and drain voltages [V] (shared default
+    simulator; its cache is bounded by `DEFAULT_CACHE_BYTES`, see `cache_info`)."""
     return _default.solve_bias(design, vg_V, vd_V)
 
 
-def transfer_curve(design: Design, vg_V: np.ndarray, vd_V: float, **kw) -> TransferCurve:
-    """Id-Vg sweep of a design (shared default simulator)."""
+def transfer_curve(design: Design, vg_V: np.ndarray, vd_V: float, **kw: Any) -> TransferCurve:
+    """Id-Vg sweep of a design at gate voltages [V] and a drain voltage [V] (shared default
+    simulator; keywords as `Simulator.transfer_curve`)."""
     return _default.transfer_curve(design, vg_V, vd_V, **kw)
 
 
 def output_curve(design: Design, vg_V: float, vd_V: np.ndarray) -> OutputCurve:
-    """Id-Vd sweep of a design (shared default simulator)."""
+    """Id-Vd sweep of a design at a gate voltage [V] and drain voltages [V] (shared
+    default simulator)."""
     return _default.output_curve(design, vg_V, vd_V)
+
+
+def cache_info() -> CacheInfo:
+    """Occupancy of the shared default simulator's cache (entries, bytes, budget)."""
+    return _default.cache_info()
+
+
+def clear_cache() -> None:
+    """Empty the shared default simulator's cache and warm starts."""
+    _default.clear_cache()

@@ -22,10 +22,10 @@ source potential: a floating-body hole build-up is not modelled).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from functools import lru_cache
 
 import numpy as np
 
+from sub60.physics._cache import ByteLRU, array_bytes
 from sub60.physics.constants import thermal_energy_eV
 from sub60.physics.design import Design
 from sub60.physics.materials import BURIED_OXIDE, Dielectric, get_dielectric, get_semiconductor
@@ -114,18 +114,54 @@ class DeviceFrame:
     operator: PoissonOperator
     body_j: int  # index of the body mid-plane row
     contact_cache: dict = field(default_factory=dict, compare=False)  # V_d -> end potentials
+    resolution: float = 1.0  # grid refinement factor it was built with [-]
+    quantum_correction: bool = True  # charge band edges shifted by the lowest subbands
+
+    def built_for(self, design: Design, resolution: float, quantum_correction: bool) -> bool:
+        """True if this frame is the structure of these arguments of `build_frame`."""
+        return (self.design == design and self.resolution == float(resolution)
+                and self.quantum_correction == bool(quantum_correction))
 
     @property
     def dirichlet(self) -> np.ndarray:
         return self.gate_nodes | self.back_nodes | self.contact_nodes
 
+    @property
+    def nbytes(self) -> int:
+        """Bytes of the frame's arrays (mesh, doping, masks, operator) [B]."""
+        m, op = self.mesh, self.operator
+        return array_bytes(m.x_nm, m.y_nm, m.cell_permittivity, m.cell_semiconductor,
+                           self.donors_cm3, self.acceptors_cm3, self.gate_nodes,
+                           self.back_nodes, self.contact_nodes, op.area_semi, op.fixed,
+                           op.banded, op.matrix.data, op.matrix.indices, op.matrix.indptr)
+
+    def __repr__(self) -> str:
+        return (f"DeviceFrame({self.design.material}, {self.mesh.nx} x {self.mesh.ny} nodes, "
+                f"{self.nbytes / 2**20:.1f} MiB)")
+
+
+#: Memory budget of the process-wide cache of device structures (`build_frame`) [B]. The
+#: default design's structure takes 1.0 MiB; the largest designs on fine grids take over
+#: 100 MiB and are then not cached (a solution still continues from its own structure).
+FRAME_CACHE_BYTES = 128 * 2**20
+_FRAMES: ByteLRU[DeviceFrame] = ByteLRU(FRAME_CACHE_BYTES, lambda f: f.nbytes)
+
 
 def build_frame(design: Design, resolution: float = 1.0, quantum_correction: bool = True) -> DeviceFrame:
-    """Mesh, doping, charge model and boundary masks of a design (cached)."""
-    return _frame(design, float(resolution), bool(quantum_correction))
+    """Mesh, doping, charge model and boundary masks of a design.
+
+    Cached process-wide in a thread-safe LRU bounded by the bytes of the frames' arrays
+    (`FRAME_CACHE_BYTES`); a solution continues from another only when both share the
+    same cached frame object.
+    """
+    key = (design, float(resolution), bool(quantum_correction))
+    frame = _FRAMES.get(key)
+    if frame is None:
+        frame = _frame(*key)
+        _FRAMES.put(key, frame)
+    return frame
 
 
-@lru_cache(maxsize=32)
 def _frame(design: Design, resolution: float, quantum_correction: bool) -> DeviceFrame:
     mesh = build_mesh(design, resolution)
     donors, acceptors = doping_profile(design, mesh.x_nm)
@@ -153,7 +189,8 @@ def _frame(design: Design, resolution: float, quantum_correction: bool) -> Devic
     y_lo, y_hi = mesh.body_bounds_nm()
     body_j = int(np.argmin(np.abs(mesh.y_nm - 0.5 * (y_lo + y_hi))))
     op = PoissonOperator(mesh, gate | back | contact)
-    return DeviceFrame(design, mesh, donors, acceptors, bands, gate, back, contact, op, body_j)
+    return DeviceFrame(design, mesh, donors, acceptors, bands, gate, back, contact, op, body_j,
+                       resolution=resolution, quantum_correction=quantum_correction)
 
 
 def quasi_fermi_levels(design: Design, x_nm: np.ndarray, vd_V: float) -> tuple[np.ndarray, np.ndarray]:

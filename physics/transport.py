@@ -73,6 +73,23 @@ class Spectrum:
     transmission: np.ndarray
     current_uA_per_um: float
 
+    def columns(self) -> dict[str, np.ndarray]:
+        """energy_eV, current_density_uA_per_um_per_eV and transmission_1 (T(E, k = 0))
+        as numpy columns (the names of a snapshot's spectrum.csv)."""
+        return {"energy_eV": np.asarray(self.energy_eV, float),
+                "current_density_uA_per_um_per_eV": np.asarray(self.current_density, float),
+                "transmission_1": np.asarray(self.transmission, float)}
+
+    def to_table(self):
+        """`columns` as a pandas DataFrame (a dict without pandas)."""
+        from sub60.physics.tables import table
+
+        return table(self.columns())
+
+    def __repr__(self) -> str:
+        return (f"Spectrum({self.energy_eV.size} energies, "
+                f"{self.current_uA_per_um:.4g} uA/um)")
+
 
 def thermionic_current(
     profiles: list[BandProfile], kind: str, efs_eV: float, efd_eV: float, kT_eV: float

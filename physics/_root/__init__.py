@@ -27,8 +27,9 @@ except _metadata.PackageNotFoundError:  # pragma: no cover - run from a bare che
 #: ``sub60.physics.__all__`` (a test keeps them in sync).
 _PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "Metric", "Metrics", "OutputCurve",
                 "Simulator", "SolverError", "Spectrum", "TUNNELLING_MODELS", "TransferCurve",
-                "dielectrics", "figures_of_merit", "output_curve", "semiconductors",
-                "solve_bias", "solve_electrostatics", "transfer_curve")
+                "cache_info", "clear_cache", "csv_text", "dielectrics", "figures_of_merit",
+                "output_curve", "output_table", "semiconductors", "solve_bias",
+                "solve_electrostatics", "transfer_curve")
 
 __all__ = ["__version__", *_PHYSICS_API]
 
