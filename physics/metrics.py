@@ -363,7 +363,7 @@ def _forward_branch_crossing(
     return found
 
 
-def _i60(vg: np.ndarray, log_id: np.ndarray, slope: np.ndarray, temperature_K: float) -> Metric:
+def _i60(log_id: np.ndarray, slope: np.ndarray, temperature_K: float) -> Metric:
     """I60 from the samples with a known local slope (see :func:`figures_of_merit`)."""
     limit = thermionic_limit_mV_per_dec(temperature_K)
     limit_slope = 1e3 / limit
@@ -530,7 +530,7 @@ def figures_of_merit(
     return Metrics(
         ss_min_mV_per_dec=ss_min,
         ss_avg4_mV_per_dec=ss_avg4,
-        i60_uA_per_um=_i60(vg, log_all, slope_all, temperature_K),
+        i60_uA_per_um=_i60(log_all, slope_all, temperature_K),
         ioff_uA_per_um=Metric(float(ioff_target_uA_per_um), _UNIT_CURRENT),
         voff_V=voff,
         ion_uA_per_um=ion,

@@ -154,6 +154,9 @@ class PoissonProblem:
     [eV]; carriers : False for a fixed-charge (linear) problem; split_efn : if set,
     (efs, efd, x_lo, x_hi): electrons take efs up to the conduction-band maximum
     between x_lo and x_hi and efd beyond it (top-of-barrier split for the MOSFET twin).
+    extra_charge_cm3 : optional (nx, ny) fixed charge added to the doping at semiconductor
+    nodes [cm^-3] (a manufactured source: how the solver is verified, see
+    tests/physics/test_poisson_verification.py).
     """
 
     mesh: Mesh

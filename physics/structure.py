@@ -193,7 +193,7 @@ def _frame(design: Design, resolution: float, quantum_correction: bool) -> Devic
                        resolution=resolution, quantum_correction=quantum_correction)
 
 
-def quasi_fermi_levels(design: Design, x_nm: np.ndarray, vd_V: float) -> tuple[np.ndarray, np.ndarray]:
+def quasi_fermi_levels(x_nm: np.ndarray, vd_V: float) -> tuple[np.ndarray, np.ndarray]:
     """Electron and hole quasi-Fermi levels along x for the tunnel FET [eV].
 
     Holes: source level 0; electrons: drain level -q V_d (the MOSFET twin's split is
@@ -211,7 +211,7 @@ def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProb
     efs, efd = 0.0, -vd_V
     split = None
     if d.source_type == "p":
-        efn, efp = quasi_fermi_levels(d, x, vd_V)
+        efn, efp = quasi_fermi_levels(x, vd_V)
     else:
         # electrons from the source up to the barrier top in the gated channel
         efn = np.where(x <= d.source_junction_nm, efs, efd)

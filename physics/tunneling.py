@@ -29,7 +29,6 @@ from sub60.physics.constants import HBAR2_2M0_EV_NM2
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(3)
 #: The imaginary wave-vector models, eqs. (1) and (2): the names every caller uses.
 TUNNELLING_MODELS: tuple[str, ...] = ("two-band", "one-band")
-MODELS = TUNNELLING_MODELS  # older name, kept for existing callers
 
 
 def kappa_per_nm(

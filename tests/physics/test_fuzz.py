@@ -22,6 +22,12 @@ Invariants checked on every converged case (`invariant_violations`):
   is at least the bulk gap E_g (confinement energies are positive, so confinement only
   widens the gap; e.g. Davies, The Physics of Low-dimensional Semiconductors, 1998,
   ch. 4 — from memory);
+- every subband edge lies in the range its first-order definition allows: E_n(x) =
+  E_n0 + <E(x, y)>_n is E_n0 plus a mean of the bulk edge E(x, y) with non-negative
+  weights |phi_n(y)|^2 that sum to one, so it lies between E_n0 + min_y E(x, y) and
+  E_n0 + max_y E(x, y) over the weights' support (the body and `BARRIER_NM` on each
+  side); first-order perturbation theory, Davies, The Physics of Low-dimensional
+  Semiconductors, 1998, ch. 6 — from memory; a weighted mean lies between the extremes;
 - the current follows the sign of V_d, I_d V_d >= 0 (for a ballistic channel every
   energy carries current from the higher to the lower Fermi level; Datta 1995 —
   from memory), with |I_d| < 1e-12 uA/um treated as zero;
@@ -220,6 +226,30 @@ def transverse_variation_eV(bp: BiasPoint) -> np.ndarray:
     return ec.max(axis=1) - ec.min(axis=1)
 
 
+def subband_range_violations(bp: BiasPoint) -> list[tuple[str, str]]:
+    """Subband edges outside [E_n0 + min_y E, E_n0 + max_y E] over the support of their
+    weights (module docstring), as ("subband range", text) pairs."""
+    es = bp.electrostatics
+    lo, hi = es.frame.mesh.body_bounds_nm()
+    rows = (es.y_nm >= lo - BARRIER_NM) & (es.y_nm <= hi + BARRIER_NM)
+    ec = es.ec_map_eV[:, rows]
+    ev = ec - es.frame.bands.eg_eV
+    sb = device_subbands(bp.design)
+    out = []
+    for label, edge, e0, bulk in (
+            [(s.label, bp.conduction_eV[i], s.energy_eV, ec) for i, s in enumerate(sb.conduction)]
+            + [(s.label, bp.valence_eV[i], -s.energy_eV, ev) for i, s in enumerate(sb.valence)]):
+        low, high = e0 + bulk.min(axis=1), e0 + bulk.max(axis=1)
+        slack = GAP_TOLERANCE_EV * (1.0 + np.abs(edge))
+        off = np.maximum(low - edge, edge - high)
+        if np.max(off - slack) > 0:
+            i = int(np.argmax(off - slack))
+            out.append(("subband range", f"{label} edge {edge[i]:.6f} eV outside "
+                                         f"[{low[i]:.6f}, {high[i]:.6f}] eV at x = "
+                                         f"{bp.x_nm[i]:.2f} nm"))
+    return out
+
+
 def gap_shortfall_eV(bp: BiasPoint) -> np.ndarray:
     """(nx,) bulk gap minus (lowest conduction - highest valence subband edge) [eV];
     positive where the subband gap is narrower than the bulk gap."""
@@ -245,7 +275,8 @@ def invariant_violations(bp: BiasPoint) -> list[tuple[str, str]]:
     arrays = {
         "psi_V": es.psi_V, "n_cm3": es.n_cm3, "p_cm3": es.p_cm3, "efn_eV": es.efn_eV,
         "efp_eV": es.efp_eV, "conduction_eV": bp.conduction_eV, "valence_eV": bp.valence_eV,
-        "ec_eV": bp.ec_eV, "ev_eV": bp.ev_eV, "es.ec_eV": es.ec_eV, "es.ev_eV": es.ev_eV,
+        "subband_ec_eV": bp.subband_ec_eV, "subband_ev_eV": bp.subband_ev_eV,
+        "bulk_ec_eV": es.bulk_ec_eV, "bulk_ev_eV": es.bulk_ev_eV,
         "bands": np.array([bands.eg_eV, bands.dec_eV, bands.dev_eV, bands.kT_eV]),
         "spectrum.energy_eV": bp.spectrum.energy_eV,
         "spectrum.current_density": bp.spectrum.current_density,
@@ -295,11 +326,7 @@ def invariant_violations(bp: BiasPoint) -> list[tuple[str, str]]:
                                  f"E_g + confinement - spread = "
                                  f"{bands.eg_eV + confinement - spread[i]:.6f} eV at x = "
                                  f"{bp.x_nm[i]:.2f} nm"))
-    lowest = bp.conduction_eV.min(axis=0)
-    if np.any(bp.ec_eV != lowest):
-        i = int(np.argmax(bp.ec_eV - lowest))
-        out.append(("ec not lowest", f"ec_eV {bp.ec_eV[i]:.6f} eV is not the lowest conduction "
-                                     f"subband edge {lowest[i]:.6f} eV at x = {bp.x_nm[i]:.2f} nm"))
+    out.extend(subband_range_violations(bp))
     i_d = bp.current_uA_per_um
     if abs(i_d) >= ZERO_CURRENT_UA_PER_UM and i_d * vd < 0:
         out.append(("current sign", f"current {i_d:g} uA/um against Vd = {vd:g} V (btbt "
@@ -509,9 +536,15 @@ STRONG_ACCUMULATION = {
 }
 
 
-def test_ec_is_the_lowest_conduction_subband_under_strong_bending():
+def test_subband_edges_stay_in_their_first_order_range_under_strong_bending():
+    """Strong accumulation (E_c varies by 0.8 eV across the body): each subband edge is
+    still E_n0 plus a mean of the bulk edge over its |phi|^2, so it lies between
+    E_n0 + min_y E and E_n0 + max_y E (first-order perturbation theory, Davies 1998,
+    ch. 6 — from memory; see the module docstring), and the model warns that the
+    first-order edges are unreliable."""
     bp = Simulator().solve_bias(Design(**STRONG_ACCUMULATION), 0.0, 0.0)
-    np.testing.assert_array_equal(bp.ec_eV, bp.conduction_eV.min(axis=0))
+    assert subband_range_violations(bp) == []
+    assert any("first-order subband edges are unreliable" in w for w in bp.warnings)
 
 
 def test_degenerate_drain_contact_is_charge_neutral():
