@@ -9,6 +9,9 @@
 2. Pipeline: a 41-point transfer curve of the default design (fresh simulator each
    time) with the split Poisson / confinement / tunnelling+current, and one warm bias
    point with its current.
+3. Thread limit: the cost of the scoped one-BLAS-thread limit the solver takes around
+   each solve (cached threadpoolctl controller), beside a fresh
+   ``threadpoolctl.threadpool_limits`` context, and its ratio to a warm solve.
 """
 
 from __future__ import annotations
@@ -106,12 +109,42 @@ def bench_pipeline(repeats: int) -> None:
           f"(Id = {bp.current_uA_per_um:.3g} uA/um)")
 
 
+def bench_thread_limit(repeats: int) -> None:
+    from threadpoolctl import threadpool_limits
+
+    from sub60.physics._threads import single_blas_thread
+
+    def cost(make) -> float:
+        samples = []
+        for _ in range(20 * repeats):
+            t = time.perf_counter()
+            with make():
+                pass
+            samples.append(time.perf_counter() - t)
+        return median_ms(samples)
+
+    scoped = cost(single_blas_thread)
+    fresh = cost(lambda: threadpool_limits(1, "blas"))
+    d = Design()
+    es0 = solve_electrostatics(d, 0.2, 0.3)
+    warm = []
+    for _ in range(repeats):
+        t = time.perf_counter()
+        solve_electrostatics(d, 0.22, 0.3, initial=es0)
+        warm.append(time.perf_counter() - t)
+    print("Thread limit (one BLAS thread during a solve)")
+    print(f"  scoped limit (cached controller): median {1e3 * scoped:.1f} us; fresh "
+          f"threadpool_limits context: median {1e3 * fresh:.1f} us; scoped / warm solve = "
+          f"{scoped / median_ms(warm):.4f}")
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=15)
     a = ap.parse_args()
     bench_electrostatics(a.repeats)
     bench_pipeline(a.repeats)
+    bench_thread_limit(a.repeats)
 
 
 if __name__ == "__main__":
