@@ -21,12 +21,13 @@ from __future__ import annotations
 
 import math
 from collections.abc import Mapping, Sequence
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from numpy.typing import ArrayLike
 
-from sub60.physics.simulate import BiasPoint, OutputCurve, TransferCurve
+if TYPE_CHECKING:
+    from sub60.physics.simulate import BiasPoint, OutputCurve, TransferCurve
 
 Table = dict[str, np.ndarray]
 
