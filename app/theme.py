@@ -39,6 +39,8 @@ PALETTE: dict[str, str | tuple[str, ...]] = {
     "grid": "#e9ecef",
     "junction": "#9aa0a6",
     "target": "#868e96",
+    "target_text": "#6c757d",
+    "gate_bar": "#adb5bd",
     "frame": "#ced4da",
 }
 
