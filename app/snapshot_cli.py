@@ -7,8 +7,9 @@
     sub60 snapshot check  SNAP.zip
 
 Exit status: 0 fine; 1 the file's content is wrong or its figures of merit differ on
-recomputation (same sub60 version); 2 a bad option, a missing or unreadable file, or an
-output that exists already (without --force).
+recomputation (same sub60 version); 2 a bad option, a missing or unreadable file, an
+output that exists already (without --force), or a solve that fails (one line, its
+`short_error`). Shares its argument handling with `sub60` through `app.cli_common`.
 """
 
 from __future__ import annotations
@@ -170,7 +171,7 @@ def cmd_render(a) -> tuple[str, int]:
     clash = [n for n in names if (out / n).exists()]
     if clash and not a.force:
         raise UsageError(f"--out: {str(out / clash[0])!r} exists; use --force to overwrite")
-    contents = figures.static_figures(compute_results(settings))
+    contents = figures.static_figures(solve(compute_results, settings))
     try:
         out.mkdir(parents=True, exist_ok=True)
         for name, content in contents.items():
@@ -187,7 +188,7 @@ def cmd_check(a) -> tuple[str, int]:
     if problem:
         return problem, 1
     settings, report = got
-    report.differences = verify_snapshot(settings)
+    report.differences = solve(verify_snapshot, settings)
     report.verified = True
     lines = [f"{a.snapshot}: " + report.lines()[0]] + report.lines()[1:]
     bad = bool(report.differences) and report.version_matches
