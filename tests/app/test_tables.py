@@ -49,8 +49,9 @@ def test_cli_and_snapshot_write_the_same_bands_and_transfer_columns(capsys):
     cli_bands = rows(capsys.readouterr().out)
     snap_bands = rows(bands_csv(bp).decode())
     assert cli_bands[0] == snap_bands[0]
+    # two independent solves (the CLI's may start warm): equal to 1 ueV, as in test_cli
     np.testing.assert_allclose(np.array(cli_bands[1:], float), np.array(snap_bands[1:], float),
-                               rtol=1e-9, atol=1e-12)
+                               rtol=0, atol=1e-6)
 
     main(["transfer", "--vg", "0:0.2:3", "--vd", "0.3", "--twin", "--format", "csv"])
     cli_transfer = rows(capsys.readouterr().out)
