@@ -5,6 +5,14 @@
     sub60 transfer [--design FILE.json] [--set ...] --vg START:STOP:N --vd V [--twin]
     sub60 output   [--design FILE.json] [--set ...] --vg V --vd START:STOP:N
 
+With ``--format csv`` the curves are written by the one table writer of sub60
+(`app.tables`), with the column names of the snapshot files: ``bands`` gives ``x_nm``, one
+``<subband>_eV`` column per subband (C1 ..., HH1, LH1 ...), ``efs_eV``, ``efd_eV``;
+``transfer`` gives ``vg_V``, ``design_id_uA_per_um``, ``design_ss_mV_per_dec`` (and with
+``--twin`` ``twin_id_uA_per_um``, ``twin_ss_mV_per_dec``); ``output`` gives ``vd_V`` and
+``id_uA_per_um_at_vg_<Vg>_V``. Scalars (bias, Fermi levels, figures of merit) come first
+as ``# name = value`` lines.
+
 A bad option or design value exits with status 2 and a one-line message naming it.
 """
 
@@ -17,106 +25,29 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 os.environ.setdefault("OMP_NUM_THREADS", "1")
 
 import argparse  # noqa: E402
-import csv
-import io
 import json
 import math
-import re
 import sys
-from typing import Any
 
 import numpy as np
 
+from sub60.app.cli_common import (
+    Parser,
+    UsageError,
+    apply_overrides,
+    load_design,
+    parse_sweep,
+    parse_value,
+    single_voltage,
+    solve,
+    warn_design,
+)
+from sub60.app.snapshot_cli import add_snapshot_parser, run_snapshot
+from sub60.app.tables import bands_table, csv_text, output_table, transfer_table
 
-class UsageError(Exception):
-    """A bad option or value: reported in one line, exit status 2."""
-
-
-class _Parser(argparse.ArgumentParser):
-    def __init__(self, *args, **kwargs):
-        super().__init__(*args, **kwargs)
-        # let "--vg -0.2:0.6:41" read the sweep as a value, not as an option
-        self._negative_number_matcher = re.compile(r"^-(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?(:.*)?$")
-
-    def error(self, message: str) -> None:  # one line, status 2, no usage dump
-        raise UsageError(message)
-
-
-def parse_sweep(text: str, name: str) -> np.ndarray:
-    """'V' or 'START:STOP:N' -> voltages [V]."""
-    parts = text.split(":")
-    try:
-        if len(parts) == 1:
-            values = np.array([float(parts[0])])
-        elif len(parts) == 3:
-            n = int(parts[2])
-            if not 1 <= n <= 2001:
-                raise UsageError(f"--{name}: N = {n} outside [1, 2001]")
-            values = np.linspace(float(parts[0]), float(parts[1]), n)
-        else:
-            raise ValueError
-    except ValueError:
-        raise UsageError(f"--{name}: expected V or START:STOP:N, got {text!r}") from None
-    if not np.all(np.isfinite(values)):
-        raise UsageError(f"--{name}: values must be finite, got {text!r}")
-    return values
-
-
-def parse_value(text: str) -> Any:
-    """Value of a --set override: number, 'none', or text."""
-    if text.lower() in ("none", "null"):
-        return None
-    try:
-        return float(text)
-    except ValueError:
-        return text
-
-
-def _warn(design) -> list[str]:
-    from sub60.physics.simulate import design_warnings
-
-    notes = list(design_warnings(design))
-    for n in notes:
-        print(f"sub60: warning: {n}", file=sys.stderr)
-    return notes
-
-
-def load_design(path: str | None, overrides: list[str]):
-    """Design from a JSON file (or the default) with name=value overrides."""
-
-    data: dict[str, Any] = {}
-    if path:
-        try:
-            with open(path, encoding="utf-8") as fh:
-                data = json.load(fh)
-        except OSError as exc:
-            raise UsageError(f"--design: cannot read {path!r} ({exc.strerror})") from None
-        except UnicodeDecodeError:
-            raise UsageError(f"--design: {path!r} is not UTF-8 text") from None
-        except json.JSONDecodeError as exc:
-            raise UsageError(f"--design: {path!r} is not valid JSON ({exc.msg}, line {exc.lineno})") \
-                from None
-        if isinstance(data, dict) and "design" in data and isinstance(data["design"], dict):
-            data = data["design"]
-        if not isinstance(data, dict):
-            raise UsageError(f"--design: {path!r} must hold a JSON object")
-    return apply_overrides(data, overrides)
-
-
-def apply_overrides(data: dict[str, Any], overrides: list[str]):
-    """A Design from a field dictionary with `--set name=value` overrides applied."""
-    from sub60.physics.design import Design
-
-    data = dict(data)
-    for item in overrides:
-        if "=" not in item:
-            raise UsageError(f"--set: expected name=value, got {item!r}")
-        key, value = item.split("=", 1)
-        data[key.strip()] = parse_value(value.strip())
-    try:
-        return Design.from_dict(data)
-    except ValueError as exc:
-        raise UsageError(str(exc)) from None
+#: Names kept importable here for older callers (they live in `app.cli_common`).
+__all__ = ["UsageError", "apply_overrides", "build_parser", "load_design", "main",
+           "parse_sweep", "parse_value"]
 
 
 def _clean(values) -> list:
@@ -125,13 +56,9 @@ def _clean(values) -> list:
 
 
 def _metrics_dict(tc) -> tuple[dict, dict]:
-    m = tc.metrics
-    names = {"ss_min_mV_per_dec": m.ss_min_mV_per_dec, "ss_avg4_mV_per_dec": m.ss_avg4_mV_per_dec,
-             "i60_uA_per_um": m.i60_uA_per_um, "ioff_uA_per_um": m.ioff_uA_per_um,
-             "voff_V": m.voff_V, "ion_uA_per_um": m.ion_uA_per_um, "ion_ioff": m.ion_ioff,
-             "vth_V": m.vth_V}
-    values = {k: v.value for k, v in names.items()}
-    notes = {k: v.reason for k, v in names.items() if v.value is None}
+    """Figures of merit by `Metrics.METRIC_NAMES`, and the reason of each undefined one."""
+    values = tc.metrics.to_dict()
+    notes = {k: r for k, r in tc.metrics.reasons().items() if values[k] is None}
     return values, notes
 
 
@@ -152,49 +79,20 @@ def bands_record(bp) -> dict:
             "current_uA_per_um": bp.current_uA_per_um}
 
 
-def _csv(header: list[str], columns: list, comments: dict | None = None) -> str:
-    buf = io.StringIO()
-    for k, v in (comments or {}).items():
-        buf.write(f"# {k} = {'' if v is None else v}\n")
-    w = csv.writer(buf, lineterminator="\n")
-    w.writerow(header)
-    for row in zip(*columns, strict=True):
-        w.writerow(["" if (isinstance(x, float) and not math.isfinite(x)) else f"{x:.10g}"
-                    for x in row])
-    return buf.getvalue()
-
-
-def _single(values: np.ndarray, name: str) -> float:
-    if values.size != 1:
-        raise UsageError(f"--{name}: this command takes one voltage, got a sweep of {values.size}")
-    return float(values[0])
-
-
-def _solve(fn, *args):
-    from sub60.physics.poisson import SolverError
-
-    try:
-        return fn(*args)
-    except ValueError as exc:
-        raise UsageError(str(exc)) from None
-    except SolverError as exc:
-        raise UsageError(f"solver: {exc}") from None
-
-
 def cmd_bands(a) -> str:
     from sub60.physics.simulate import solve_bias
 
     d = load_design(a.design, a.set)
-    bp = _solve(solve_bias, d, _single(parse_sweep(a.vg, "vg"), "vg"),
-                _single(parse_sweep(a.vd, "vd"), "vd"))
-    rec = {"design": d.to_dict(), **bands_record(bp), "warnings": _warn(d)}
+    bp = solve(solve_bias, d, single_voltage(parse_sweep(a.vg, "vg"), "vg"),
+                single_voltage(parse_sweep(a.vd, "vd"), "vd"))
+    rec = {"design": d.to_dict(), **bands_record(bp), "warnings": warn_design(d)}
     if a.format == "csv":
         w = rec["window"]
-        return _csv(["x_nm", "ec_eV", "ev_eV"], [bp.x_nm, bp.ec_eV, bp.ev_eV],
-                    {"vg_V": bp.vg_V, "vd_V": bp.vd_V, "efs_eV": bp.efs_eV, "efd_eV": bp.efd_eV,
-                     "window_e_min_eV": None if w is None else w["e_min_eV"],
-                     "window_e_max_eV": None if w is None else w["e_max_eV"],
-                     "current_uA_per_um": rec["current_uA_per_um"]})
+        return csv_text(bands_table(bp),
+                        {"vg_V": bp.vg_V, "vd_V": bp.vd_V, "efs_eV": bp.efs_eV, "efd_eV": bp.efd_eV,
+                         "window_e_min_eV": None if w is None else w["e_min_eV"],
+                         "window_e_max_eV": None if w is None else w["e_max_eV"],
+                         "current_uA_per_um": rec["current_uA_per_um"]})
     return json.dumps(rec, indent=1)
 
 
@@ -203,21 +101,16 @@ def cmd_transfer(a) -> str:
 
     d = load_design(a.design, a.set)
     vg = parse_sweep(a.vg, "vg")
-    vd = _single(parse_sweep(a.vd, "vd"), "vd")
+    vd = single_voltage(parse_sweep(a.vd, "vd"), "vd")
     kw = {"ioff_target_uA_per_um": a.ioff, "vdd_V": a.vdd}
-    tc = _solve(lambda: transfer_curve(d, vg, vd, **kw))
-    rec = {"design": d.to_dict(), **transfer_record(tc), "warnings": _warn(d)}
+    tc = solve(lambda: transfer_curve(d, vg, vd, **kw))
+    rec = {"design": d.to_dict(), **transfer_record(tc), "warnings": warn_design(d)}
     twin = None
     if a.twin:
-        twin = _solve(lambda: transfer_curve(d.twin(), vg, vd, **kw))
+        twin = solve(lambda: transfer_curve(d.twin(), vg, vd, **kw))
         rec["twin"] = {"design": d.twin().to_dict(), **transfer_record(twin)}
     if a.format == "csv":
-        cols = [tc.vg_V, tc.id_uA_per_um, tc.ss_mV_per_dec]
-        head = ["vg_V", "id_uA_per_um", "ss_mV_per_dec"]
-        if twin is not None:
-            cols += [twin.id_uA_per_um, twin.ss_mV_per_dec]
-            head += ["twin_id_uA_per_um", "twin_ss_mV_per_dec"]
-        return _csv(head, cols, {"vd_V": vd, **rec["metrics"]})
+        return csv_text(transfer_table(tc, twin), {"vd_V": vd, **rec["metrics"]})
     return json.dumps(rec, indent=1)
 
 
@@ -227,10 +120,12 @@ def cmd_output(a) -> str:
     d = load_design(a.design, a.set)
     vgs = parse_sweep(a.vg, "vg")
     vd = parse_sweep(a.vd, "vd")
-    curves = [_solve(output_curve, d, float(v), vd) for v in vgs]
+    curves = [solve(output_curve, d, float(v), vd) for v in vgs]
     if a.format == "csv":
-        head = ["vd_V"] + [f"id_uA_per_um_at_vg_{v:g}_V" for v in vgs]
-        return _csv(head, [vd] + [c.id_uA_per_um for c in curves])
+        try:
+            return csv_text(output_table(curves))
+        except ValueError as exc:
+            raise UsageError(f"--vg: {exc}") from None
     ids = [_clean(c.id_uA_per_um) for c in curves]
     return json.dumps({"design": d.to_dict(), "vg_V": float(vgs[0]) if vgs.size == 1 else _clean(vgs),
                        "vd_V": _clean(vd), "id_uA_per_um": ids[0] if vgs.size == 1 else ids},
@@ -245,9 +140,9 @@ def cmd_serve(a) -> str:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    p = _Parser(prog="sub60", description="Explore thin-body tunnel FETs and their MOSFET twins: "
+    p = Parser(prog="sub60", description="Explore thin-body tunnel FETs and their MOSFET twins: "
                 "band diagrams, tunnel window, band-to-band current and transfer curves.")
-    sub = p.add_subparsers(dest="command", parser_class=_Parser)
+    sub = p.add_subparsers(dest="command", parser_class=Parser)
     s = sub.add_parser("serve", help="serve the browser explorer on 127.0.0.1")
     s.add_argument("--port", type=int, default=5006)
     s.add_argument("--host", default="127.0.0.1", help="address to listen on (default loopback)")
@@ -270,8 +165,6 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--ioff", type=float, default=1e-3, help="Ioff target [uA/um]")
     t.add_argument("--vdd", type=float, default=0.3, help="supply for Ion = Id(Voff + Vdd) [V]")
     common(sub.add_parser("output", help="output curves Id-Vd"), "0.3", "0:0.5:11")
-    from sub60.app.snapshot_cli import add_snapshot_parser
-
     add_snapshot_parser(sub)
     return p
 
@@ -287,8 +180,6 @@ def main(argv: list[str] | None = None) -> int:
                     "serve": cmd_serve}
         status = 0
         if a.command == "snapshot":
-            from sub60.app.snapshot_cli import run_snapshot
-
             out, status = run_snapshot(a)
         else:
             out = handlers[a.command](a)

@@ -9,29 +9,31 @@ gate length, EOT, source doping, drain voltage, temperature) and the model cauti
   with a reference slope of (ln 10)kT/q per decade;
 - ``output``   Id-Vd, one curve per gate voltage.
 
-Static figures are exactly `FIGURE_SIZE_PX` pixels (PNG) and scalable (SVG). The page is
-`bokeh.embed.file_html` with the Bokeh library inlined, so it opens without a network.
-This module never imports the explorer's UI modules.
+Static figures are exactly `FIGURE_SIZE_PX` pixels (PNG) and scalable (SVG); the same
+plots as one interactive offline page are in `app.figures_page`. This is the export
+figures layer: it reads the results (`app.snapshot_check.SnapshotResults`), never the
+snapshot writer or the explorer's UI modules; colours come from `app.theme`.
 """
 
 from __future__ import annotations
 
-import html
 import io
 from collections.abc import Sequence
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from sub60.app.theme import PALETTE, output_ramp
 from sub60.physics.design import Design
-from sub60.physics.materials import DIELECTRICS, eot_nm
+from sub60.physics.materials import eot_nm
 from sub60.physics.metrics import thermionic_limit_mV_per_dec
 from sub60.physics.simulate import BiasPoint, OutputCurve, TransferCurve
+from sub60.physics.structure import gate_dielectric
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
-    from sub60.app.snapshot import SnapshotResults
+    from sub60.app.snapshot_check import SnapshotResults
 
 #: Static figure size: inches and dots per inch -> pixels (width, height).
 FIGURE_SIZE_IN = (8.0, 5.0)
@@ -40,30 +42,15 @@ FIGURE_SIZE_PX = (round(FIGURE_SIZE_IN[0] * FIGURE_DPI), round(FIGURE_SIZE_IN[1]
 FIGURE_NAMES = ("bands", "spectrum", "transfer", "output")
 FORMATS = ("png", "svg")
 
-# The explorer's own look: blue family for conduction, brick for valence, teal for the
-# tunnel FET, ochre for its MOSFET twin.
-COLOURS = {
-    "conduction": ("#1f4e8c", "#6f95c9", "#9fb9dd", "#c3d3ea"),
-    "valence": ("#a33a26", "#d98a72", "#c7643f", "#e6b3a3", "#b8553c", "#f0cfc4"),
-    "fermi": "#303030",
-    "window": "#f2b43c",
-    "gate": "#e3eaf1",
-    "design": "#0e7a70",
-    "twin": "#b07a10",
-    "pinned": ("#5a5f8c", "#8c5a7d", "#4f7f3a", "#7a6a55", "#3f6f8f", "#8f3f4f", "#6a6a6a",
-               "#2f5f4f"),
-    "limit": "#444444",
-    "marker": "#d1341b",
-}
+#: The palette of the explorer (`app.theme.PALETTE`), by its historical name here.
+COLOURS = PALETTE
 _T_FLOOR = 1e-30  # transmissions below this are left out of the log axis [-]
 
 
 # ---------------------------------------------------------------------- captions
 def gate_permittivity(design: Design) -> float:
     """Relative permittivity of the design's gate dielectric [-]."""
-    if design.oxide == "custom":
-        return float(design.oxide_permittivity)
-    return DIELECTRICS[design.oxide].permittivity
+    return float(gate_dielectric(design).permittivity)
 
 
 def caption_text(design: Design, vd_V: float, vg_V: float | Sequence[float] | None = None,
@@ -104,7 +91,8 @@ def _safe(label: str) -> str:
     return label.replace("$", r"\$").lstrip("_") or "?"
 
 
-def _positive(values: np.ndarray) -> np.ndarray:
+def positive_only(values: np.ndarray) -> np.ndarray:
+    """A copy for a log axis: non-positive and non-finite values become NaN."""
     v = np.asarray(values, float).copy()
     v[~(np.isfinite(v) & (v > 0))] = np.nan
     return v
@@ -118,8 +106,8 @@ def _figure(caption: str, width: float = 0.86) -> tuple[Figure, object]:
     fig = Figure(figsize=FIGURE_SIZE_IN, dpi=FIGURE_DPI)
     FigureCanvasAgg(fig)
     ax = fig.add_axes((0.1, 0.22, width, 0.70))
-    fig.text(0.01, 0.015, caption, fontsize=7.5, ha="left", va="bottom", color="#2b2f33")
-    ax.grid(True, color="#e9ecef", linewidth=0.8)
+    fig.text(0.01, 0.015, caption, fontsize=7.5, ha="left", va="bottom", color=COLOURS["text"])
+    ax.grid(True, color=COLOURS["grid"], linewidth=0.8)
     ax.set_axisbelow(True)
     return fig, ax
 
@@ -131,7 +119,7 @@ def band_figure(bp: BiasPoint, caption: str) -> Figure:
     x = np.asarray(bp.x_nm, float)
     ax.axvspan(d.gate_start_nm, d.gate_end_nm, color=COLOURS["gate"], zorder=0, label="gate")
     for xj in (d.source_junction_nm, d.drain_junction_nm):
-        ax.axvline(xj, color="#9aa0a6", linestyle=":", linewidth=0.8)
+        ax.axvline(xj, color=COLOURS["junction"], linestyle=":", linewidth=0.8)
     if bp.window_eV is not None:
         lo, hi = bp.window_eV
         ax.axhspan(lo, hi, color=COLOURS["window"], alpha=0.35, zorder=0.5,
@@ -167,7 +155,7 @@ def spectrum_figure(bp: BiasPoint, caption: str) -> Figure:
         ax.plot(e, np.asarray(s.current_density, float), color=COLOURS["design"], linewidth=1.8,
                 label="J(E)")
         ax2 = ax.twinx()
-        t = _positive(s.transmission)
+        t = positive_only(s.transmission)
         t[t < _T_FLOOR] = np.nan
         if np.any(np.isfinite(t)):
             ax2.semilogy(e, t, color=COLOURS["limit"], linestyle="--", linewidth=1.0,
@@ -185,14 +173,15 @@ def spectrum_figure(bp: BiasPoint, caption: str) -> Figure:
     return fig
 
 
-def _anchor(curves: Sequence[tuple[str, TransferCurve]]) -> tuple[float, float] | None:
+def reference_anchor(curves: Sequence[tuple[str, TransferCurve]]
+                     ) -> tuple[float, float] | None:
     """Point the thermionic reference passes through: (Voff, Ioff) of the first curve
     that has one, else the lowest current of the first curve [V, uA/um]."""
     for _, c in curves:
         m = c.metrics
         if m.voff_V.value is not None:
             return m.voff_V.value, m.ioff_target_uA_per_um
-    i = _positive(curves[0][1].id_uA_per_um)
+    i = positive_only(curves[0][1].id_uA_per_um)
     if not np.any(np.isfinite(i)):
         return None
     k = int(np.nanargmin(i))
@@ -223,7 +212,7 @@ def transfer_figure(curves: Sequence[tuple[str, TransferCurve]], caption: str) -
     styles += [(":", c, 1.6) for c in COLOURS["pinned"]]
     currents = []
     for (label, c), (ls, colour, lw) in zip(curves, styles, strict=False):
-        i = _positive(c.id_uA_per_um)
+        i = positive_only(c.id_uA_per_um)
         currents.append(i)
         ax.semilogy(c.vg_V, i, linestyle=ls, color=colour, linewidth=lw,
                     label=_safe(_transfer_label(label, c)))
@@ -235,13 +224,13 @@ def transfer_figure(curves: Sequence[tuple[str, TransferCurve]], caption: str) -
     if np.any(np.isfinite(allc)):
         ylo, yhi = np.nanmin(allc) / 3, np.nanmax(allc) * 3
         ax.set_ylim(ylo, yhi)
-        anchor = _anchor(curves)
+        anchor = reference_anchor(curves)
         if anchor is not None:
             vg = np.array([main.vg_V[0], main.vg_V[-1]], float)
             ref = anchor[1] * 10.0 ** ((vg - anchor[0]) * 1e3 / limit)
             ax.semilogy(vg, ref, color=COLOURS["limit"], linestyle=(0, (1, 2)), linewidth=1.0,
                         label=f"(ln 10)kT/q = {limit:.1f} mV/dec at {temperature:g} K")
-        ax.axhline(m.ioff_target_uA_per_um, color="#9aa0a6", linewidth=0.8,
+        ax.axhline(m.ioff_target_uA_per_um, color=COLOURS["junction"], linewidth=0.8,
                    label=f"Ioff target {m.ioff_target_uA_per_um:.3g} \u00b5A/\u00b5m")
         if m.voff_V.value is not None and m.ion_uA_per_um.value is not None:
             ax.plot([m.voff_V.value + m.vdd_V], [m.ion_uA_per_um.value], "o",
@@ -258,20 +247,10 @@ def transfer_figure(curves: Sequence[tuple[str, TransferCurve]], caption: str) -
     return fig
 
 
-def _ramp(n: int) -> list[str]:
-    """n teal shades, light to dark (the explorer's output-curve ramp)."""
-    stops = np.array([[0x9c, 0xd3, 0xcb], [0x0b, 0x4f, 0x47]], float)
-    out = []
-    for f in np.linspace(0.0, 1.0, n) if n > 1 else [1.0]:
-        rgb = stops[0] + f * (stops[1] - stops[0])
-        out.append("#" + "".join(f"{round(c):02x}" for c in rgb))
-    return out
-
-
 def output_figure(curves: Sequence[OutputCurve], caption: str) -> Figure:
     """Id-Vd, one curve per gate voltage."""
     fig, ax = _figure(caption)
-    for c, colour in zip(curves, _ramp(len(curves)), strict=True):
+    for c, colour in zip(curves, output_ramp(len(curves)), strict=True):
         ax.plot(c.vd_V, c.id_uA_per_um, color=colour, linewidth=1.8, marker=".", markersize=4,
                 label=f"Vg = {c.vg_V:g} V")
     ax.set_xlabel("drain voltage Vd (V)")
@@ -282,7 +261,8 @@ def output_figure(curves: Sequence[OutputCurve], caption: str) -> Figure:
     return fig
 
 
-def _curves(results: SnapshotResults) -> list[tuple[str, TransferCurve]]:
+def labelled_curves(results: SnapshotResults) -> list[tuple[str, TransferCurve]]:
+    """The transfer curves of a snapshot with their legend labels: design, twin, pins."""
     s = results.settings
     kind = "tunnel FET" if s.design.source_type == "p" else "MOSFET"
     out = [(f"design ({s.design.source_type}+ source, {kind})", results.transfer),
@@ -299,7 +279,7 @@ def figures_of(results: SnapshotResults) -> dict[str, Figure]:
     out = {
         "bands": band_figure(bp, caption_text(s.design, bp.vd_V, bp.vg_V, v)),
         "spectrum": spectrum_figure(bp, caption_text(s.design, bp.vd_V, bp.vg_V, v)),
-        "transfer": transfer_figure(_curves(results),
+        "transfer": transfer_figure(labelled_curves(results),
                                     caption_text(s.design, s.transfer_sweep.vd_V, None, v)),
     }
     if results.output:
@@ -330,93 +310,3 @@ def static_figures(results: SnapshotResults) -> dict[str, bytes]:
         for fmt in FORMATS:
             out[f"{name}.{fmt}"] = render(fig, fmt)
     return out
-
-
-# ---------------------------------------------------------------------- Bokeh page
-def interactive_page(results: SnapshotResults) -> str:
-    """One standalone HTML page of the four plots; Bokeh inlined, no network needed."""
-    from bokeh.embed import file_html
-    from bokeh.layouts import column, gridplot
-    from bokeh.models import BoxAnnotation, Div, HoverTool, Span
-    from bokeh.plotting import figure
-    from bokeh.resources import INLINE
-
-    s = results.settings
-    bp = results.bias_point
-    d = s.design
-    size = {"width": 560, "height": 360, "tools": "pan,box_zoom,wheel_zoom,reset,save"}
-
-    bands = figure(title=f"Band diagram at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V",
-                   x_axis_label="x (nm)", y_axis_label="energy (eV)", **size)
-    bands.add_layout(BoxAnnotation(left=d.gate_start_nm, right=d.gate_end_nm,
-                                   fill_color=COLOURS["gate"], fill_alpha=0.6, level="underlay"))
-    if bp.window_eV is not None:
-        bands.add_layout(BoxAnnotation(bottom=bp.window_eV[0], top=bp.window_eV[1],
-                                       fill_color=COLOURS["window"], fill_alpha=0.3))
-    x = np.asarray(bp.x_nm, float)
-    for i, (lab, edge) in enumerate(zip(bp.conduction_labels, bp.conduction_eV, strict=True)):
-        bands.line(x, np.asarray(edge, float), color=COLOURS["conduction"][min(i, 3)],
-                   line_width=2 if i == 0 else 1, legend_label=lab)
-    for i, (lab, edge) in enumerate(zip(bp.valence_labels, bp.valence_eV, strict=True)):
-        bands.line(x, np.asarray(edge, float), color=COLOURS["valence"][min(i, 5)],
-                   line_width=2 if i == 0 else 1, legend_label=lab)
-    bands.line([x[0], d.source_junction_nm], [bp.efs_eV] * 2, color=COLOURS["fermi"],
-               line_dash="dashed", legend_label="source Fermi level")
-    bands.line([d.drain_junction_nm, x[-1]], [bp.efd_eV] * 2, color=COLOURS["fermi"],
-               line_dash="dashdot", legend_label="drain Fermi level")
-
-    spec = figure(title="Tunnelling spectrum J(E)", x_axis_label="energy (eV)",
-                  y_axis_label="J(E) (µA/µm per eV)", **size)
-    e = np.asarray(bp.spectrum.energy_eV, float)
-    if e.size:
-        spec.line(e, np.asarray(bp.spectrum.current_density, float), color=COLOURS["design"],
-                  line_width=2, legend_label="J(E)")
-    if bp.window_eV is not None:
-        spec.add_layout(BoxAnnotation(left=bp.window_eV[0], right=bp.window_eV[1],
-                                      fill_color=COLOURS["window"], fill_alpha=0.3))
-
-    trans = figure(title=f"Transfer curves at Vd = {s.transfer_sweep.vd_V:g} V",
-                   x_axis_label="Vg (V)", y_axis_label="Id (µA/µm)", y_axis_type="log", **size)
-    colours = [COLOURS["design"], COLOURS["twin"], *COLOURS["pinned"]]
-    dashes = ["solid", "dashed"] + ["dotted"] * len(COLOURS["pinned"])
-    curves = _curves(results)
-    for (label, c), colour, dash in zip(curves, colours, dashes, strict=False):
-        i = _positive(c.id_uA_per_um)
-        keep = np.isfinite(i)
-        trans.line(np.asarray(c.vg_V, float)[keep], i[keep], color=colour, line_dash=dash,
-                   line_width=2, legend_label=label)
-    m = results.transfer.metrics
-    trans.add_layout(Span(location=m.ioff_target_uA_per_um, dimension="width",
-                          line_color="#9aa0a6", line_width=1))
-    anchor = _anchor(curves)
-    if anchor is not None:
-        limit = thermionic_limit_mV_per_dec(d.temperature_K)
-        vg = np.asarray(results.transfer.vg_V, float)
-        ref = anchor[1] * 10.0 ** ((vg - anchor[0]) * 1e3 / limit)
-        allc = np.concatenate([_positive(c.id_uA_per_um) for _, c in curves])
-        if np.any(np.isfinite(allc)):
-            keep = (ref >= np.nanmin(allc) / 3) & (ref <= np.nanmax(allc) * 3)
-            trans.line(vg[keep], ref[keep], color=COLOURS["limit"], line_dash="dotted",
-                       legend_label=f"(ln 10)kT/q = {limit:.1f} mV/dec")
-    trans.legend.location = "bottom_right"
-
-    out = figure(title="Output curves", x_axis_label="Vd (V)", y_axis_label="Id (µA/µm)", **size)
-    for c, colour in zip(results.output, _ramp(len(results.output)), strict=True):
-        out.line(np.asarray(c.vd_V, float), np.asarray(c.id_uA_per_um, float), color=colour,
-                 line_width=2, legend_label=f"Vg = {c.vg_V:g} V")
-    if results.output:
-        out.legend.location = "top_left"
-
-    for p in (bands, spec, trans, out):
-        p.add_tools(HoverTool(tooltips=[("x", "$x{0.000}"), ("y", "$y{0.000e}")]))
-        p.legend.label_text_font_size = "8pt"
-        p.legend.click_policy = "hide"
-
-    caption = caption_text(d, bp.vd_V, bp.vg_V, s.sub60_version).split("\n")
-    title = html.escape(s.title) if s.title else "sub60 snapshot"
-    header = Div(text=(f"<h2>{title}</h2><p>{html.escape(caption[0])}; band diagram at "
-                       f"{html.escape(caption[1])}</p>"
-                       f"<p><b>Caution:</b> {html.escape(caption[2])}. Created "
-                       f"{html.escape(str(s.created_utc))}.</p>"), width=1140)
-    page = column(header, gridplot([[bands, spec], [trans, out]], toolbar_location="right"))
-    return file_html(page, INLINE, title="sub60 snapshot")

@@ -17,8 +17,15 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 from string import ascii_uppercase
 
-from sub60.app.plots import PIN_COLOURS, format_current, format_ratio
-from sub60.app.snapshot import MAX_NAME_CHARS, MAX_PINNED, PinnedDesign, TransferSweep
+from sub60.app.snapshot_schema import MAX_NAME_CHARS, MAX_PINNED, PinnedDesign, TransferSweep
+from sub60.app.theme import (
+    COMPARISON_METRICS,
+    LARGER_IS_BETTER,
+    METRIC_HEADINGS,
+    PIN_COLOURS,
+    format_doping,
+    format_metric,
+)
 from sub60.physics.design import Design
 from sub60.physics.materials import eot_nm
 from sub60.physics.metrics import Metrics
@@ -145,15 +152,10 @@ SETTING_COLUMNS: tuple[tuple[str, str, str], ...] = (
     ("source_doping_cm3", "Source", "cm⁻³"),
     ("vd_V", "V<sub>d</sub>", "V"),
 )
-#: Figures of merit of the table: (metric name, heading, True when larger is better).
-METRIC_COLUMNS: tuple[tuple[str, str, bool], ...] = (
-    ("ss_min_mV_per_dec", "SS<sub>min</sub>", False),
-    ("ss_avg4_mV_per_dec", "SS<sub>avg</sub> (4 dec)", False),
-    ("i60_uA_per_um", "I<sub>60</sub>", True),
-    ("ion_uA_per_um", "I<sub>on</sub>", True),
-    ("ioff_uA_per_um", "I<sub>off</sub>", False),
-    ("ion_ioff", "I<sub>on</sub>/I<sub>off</sub>", True),
-)
+#: Figures of merit of the table: (metric name, heading, True when larger is better), from
+#: `app.theme` (names of `Metrics.METRIC_NAMES`).
+METRIC_COLUMNS: tuple[tuple[str, str, bool], ...] = tuple(
+    (name, METRIC_HEADINGS[name], LARGER_IS_BETTER[name]) for name in COMPARISON_METRICS)
 #: Quantities compared as differences (absolute, in their unit); the others as ratios.
 _ABSOLUTE = {"ss_min_mV_per_dec": "mV/dec", "ss_avg4_mV_per_dec": "mV/dec",
              "body_thickness_nm": "nm", "gate_length_nm": "nm", "eot_nm": "nm", "vd_V": "V"}
@@ -269,21 +271,11 @@ def _setting_text(key: str, value: float | str) -> str:
     if isinstance(value, str):
         return html.escape(value)
     if key == "source_doping_cm3":
-        mant, exp = f"{value:.2e}".split("e")
-        sup = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
-        return f"{float(mant):g}×10{str(int(exp)).translate(sup)}"
+        return format_doping(value)
     if key == "eot_nm":
         return f"{value:.2f} nm"
     unit = {"vd_V": "V"}.get(key, "nm")
     return f"{value:g} {unit}"
-
-
-def _metric_text(key: str, value: float) -> str:
-    if key.endswith("mV_per_dec"):
-        return f"{value:.1f} mV/dec"
-    if key == "ion_ioff":
-        return format_ratio(value)
-    return format_current(value)
 
 
 _ALL_COLUMNS = [k for k, _, _ in SETTING_COLUMNS] + [k for k, _, _ in METRIC_COLUMNS]
@@ -321,7 +313,7 @@ def comparison_cells_html(row: ComparisonRow) -> str:
                              f'data-value="" data-diff="" title="{tip}">—</span>')
                 continue
             value_attr = f"{v:.12g}"
-            text = _metric_text(k, v)
+            text = format_metric(k, v)
         diff = row.differences.get(k)
         sub = ""
         if row.key != "present":

@@ -7,8 +7,9 @@
     sub60 snapshot check  SNAP.zip
 
 Exit status: 0 fine; 1 the file's content is wrong or its figures of merit differ on
-recomputation (same sub60 version); 2 a bad option, a missing or unreadable file, or an
-output that exists already (without --force).
+recomputation (same sub60 version); 2 a bad option, a missing or unreadable file, an
+output that exists already (without --force), or a solve that fails (one line, its
+`short_error`). Shares its argument handling with `sub60` through `app.cli_common`.
 """
 
 from __future__ import annotations
@@ -16,7 +17,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from sub60.app.cli import UsageError, load_design, parse_sweep
+from sub60.app.cli_common import UsageError, apply_overrides, load_design, parse_sweep, solve
 
 
 def add_snapshot_parser(sub) -> None:
@@ -48,7 +49,8 @@ def add_snapshot_parser(sub) -> None:
 
 def _read(path: str) -> bytes:
     """A snapshot file's bytes; SnapshotError when it is larger than any snapshot."""
-    from sub60.app.snapshot import MAX_SNAPSHOT_BYTES, SnapshotError
+    from sub60.app.snapshot_fields import SnapshotError
+    from sub60.app.snapshot_reader import MAX_SNAPSHOT_BYTES
 
     try:
         with open(path, "rb") as fh:
@@ -71,13 +73,13 @@ def _float(text: str | None, name: str) -> float | None:
 
 def _export_settings(a):
     """Settings of `snapshot export` from the options (UsageError for bad ones)."""
-    from sub60.app.snapshot import (
+    from sub60.app.presets import load_preset
+    from sub60.app.snapshot_fields import SnapshotError
+    from sub60.app.snapshot_schema import (
         MetricSettings,
         OutputSweep,
-        SnapshotError,
         SnapshotSettings,
         TransferSweep,
-        load_preset,
     )
 
     try:
@@ -122,8 +124,6 @@ def _export_settings(a):
 
 def _override(design, overrides: list[str]):
     """A design with `--set name=value` overrides, parsed as `sub60 bands` does."""
-    from sub60.app.cli import apply_overrides
-
     return apply_overrides(design.to_dict(), overrides)
 
 
@@ -133,16 +133,12 @@ def _exists_check(path: Path, force: bool, option: str) -> None:
 
 
 def cmd_export(a) -> tuple[str, int]:
-    from sub60.app.snapshot import export_snapshot
-    from sub60.physics.poisson import SolverError
+    from sub60.app.snapshot_bundle import export_snapshot
 
     out = Path(a.out)
     _exists_check(out, a.force, "--out")
     settings = _export_settings(a)
-    try:
-        data = export_snapshot(settings)
-    except SolverError as exc:
-        raise UsageError(f"solver: {exc}") from None
+    data = solve(export_snapshot, settings)
     try:
         out.write_bytes(data)
     except OSError as exc:
@@ -151,7 +147,8 @@ def cmd_export(a) -> tuple[str, int]:
 
 
 def _import(path: str):
-    from sub60.app.snapshot import SnapshotError, import_snapshot
+    from sub60.app.snapshot_fields import SnapshotError
+    from sub60.app.snapshot_reader import import_snapshot
 
     try:
         return import_snapshot(_read(path)), None
@@ -161,7 +158,7 @@ def _import(path: str):
 
 def cmd_render(a) -> tuple[str, int]:
     from sub60.app import figures
-    from sub60.app.snapshot import compute_results
+    from sub60.app.snapshot_check import compute_results
 
     got, problem = _import(a.snapshot)
     if problem:
@@ -174,7 +171,7 @@ def cmd_render(a) -> tuple[str, int]:
     clash = [n for n in names if (out / n).exists()]
     if clash and not a.force:
         raise UsageError(f"--out: {str(out / clash[0])!r} exists; use --force to overwrite")
-    contents = figures.static_figures(compute_results(settings))
+    contents = figures.static_figures(solve(compute_results, settings))
     try:
         out.mkdir(parents=True, exist_ok=True)
         for name, content in contents.items():
@@ -185,13 +182,13 @@ def cmd_render(a) -> tuple[str, int]:
 
 
 def cmd_check(a) -> tuple[str, int]:
-    from sub60.app.snapshot import verify_snapshot
+    from sub60.app.snapshot_check import verify_snapshot
 
     got, problem = _import(a.snapshot)
     if problem:
         return problem, 1
     settings, report = got
-    report.differences = verify_snapshot(settings)
+    report.differences = solve(verify_snapshot, settings)
     report.verified = True
     lines = [f"{a.snapshot}: " + report.lines()[0]] + report.lines()[1:]
     bad = bool(report.differences) and report.version_matches

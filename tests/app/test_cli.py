@@ -113,11 +113,23 @@ def test_bands_csv_has_units_and_the_json_numbers(capsys):
     code, out, err = run(capsys, "bands", "--vg", "0.2", "--vd", "0.3", "--format", "csv")
     assert code == 0, err
     header, rows, comments = csv_of(out)
-    assert header == ["x_nm", "ec_eV", "ev_eV"]
+    # the column names of a snapshot's bands.csv: every subband edge, then the Fermi levels
+    bp = Simulator().solve_bias(Design(), 0.2, 0.3)
+    subbands = [f"{lab}_eV" for lab in (*bp.conduction_labels, *bp.valence_labels)]
+    assert header == ["x_nm", *subbands, "efs_eV", "efd_eV"]
     assert all(h.endswith(UNIT_SUFFIXES) for h in header)
     assert len(rows) == len(rec["x_nm"])
-    for col in header:  # printed to 10 significant digits
-        np.testing.assert_allclose([number(r[col]) for r in rows], rec[col], rtol=1e-9, atol=1e-12)
+
+    def column(name: str) -> np.ndarray:
+        return np.array([number(r[name]) for r in rows])
+
+    # printed to 10 significant digits; the JSON's edges are the extreme subbands
+    np.testing.assert_allclose(column("x_nm"), rec["x_nm"], rtol=1e-9, atol=1e-12)
+    conduction = np.array([column(f"{lab}_eV") for lab in bp.conduction_labels])
+    valence = np.array([column(f"{lab}_eV") for lab in bp.valence_labels])
+    np.testing.assert_allclose(conduction.min(axis=0), rec["ec_eV"], rtol=1e-9, atol=1e-9)
+    np.testing.assert_allclose(valence.max(axis=0), rec["ev_eV"], rtol=1e-9, atol=1e-9)
+    assert set(column("efs_eV")) == {rec["efs_eV"]} and set(column("efd_eV")) == {rec["efd_eV"]}
     assert float(comments["current_uA_per_um"]) == pytest.approx(rec["current_uA_per_um"],
                                                                    rel=1e-9)
 
@@ -157,12 +169,12 @@ def test_transfer_csv_with_twin(capsys):
                          "--format", "csv")
     assert code == 0, err
     header, rows, comments = csv_of(out)
-    assert header == ["vg_V", "id_uA_per_um", "ss_mV_per_dec", "twin_id_uA_per_um",
-                      "twin_ss_mV_per_dec"]
+    assert header == ["vg_V", "design_id_uA_per_um", "design_ss_mV_per_dec",
+                      "twin_id_uA_per_um", "twin_ss_mV_per_dec"]  # as a snapshot's transfer.csv
     assert all(h.endswith(UNIT_SUFFIXES) for h in header)
     assert len(rows) == 5
-    np.testing.assert_allclose([number(r["id_uA_per_um"]) for r in rows], rec["id_uA_per_um"],
-                               rtol=1e-9)
+    np.testing.assert_allclose([number(r["design_id_uA_per_um"]) for r in rows],
+                               rec["id_uA_per_um"], rtol=1e-9)
     np.testing.assert_allclose([number(r["twin_id_uA_per_um"]) for r in rows],
                                rec["twin"]["id_uA_per_um"], rtol=1e-9)
     assert set(comments) >= {"vd_V"} | METRIC_KEYS

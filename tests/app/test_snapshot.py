@@ -358,13 +358,13 @@ def test_high_on_current_preset_delivers_more_on_current():
 
 
 def test_presets_fall_back_gracefully(monkeypatch, tmp_path):
-    import sub60.app.snapshot as snapshot
+    import sub60.app.presets as presets
 
-    monkeypatch.setattr(snapshot, "PRESET_DIR", tmp_path / "absent")
+    monkeypatch.setattr(presets, "PRESET_DIR", tmp_path / "absent")
     assert list_presets() == {}
     with pytest.raises(SnapshotError, match="none found"):
         load_preset("low-power-switch")
-    monkeypatch.setattr(snapshot, "PRESET_DIR", tmp_path)
+    monkeypatch.setattr(presets, "PRESET_DIR", tmp_path)
     (tmp_path / "broken.json").write_text('{"schema": "sub60.snapshot", "schema_version": 1}')
     (tmp_path / "good.json").write_text(SnapshotSettings().to_json())
     with pytest.warns(UserWarning, match="broken"):

@@ -1,0 +1,141 @@
+"""The live page's plot style: its colour names (from `app.theme`), tools, figure and
+legend styling, and the display helpers that reshape physics output for the screen (a
+tunnel window outline, a uniform resampling of the 2D map, NaN for a log axis). They
+compute no physics.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from sub60.app.theme import PALETTE
+
+# The page's names for the palette entries of `app.theme.PALETTE` (no new colours).
+COLOURS: dict[str, str] = {
+    "conduction": PALETTE["conduction"][0],
+    "conduction_2": PALETTE["conduction"][1],
+    "valence": PALETTE["valence"][0],
+    "valence_2": PALETTE["valence"][1],
+    "valence_3": PALETTE["valence"][2],
+    "fermi": PALETTE["fermi"],
+    "window": PALETTE["window"],
+    "window_line": PALETTE["window_line"],
+    "window_text": PALETTE["window_text"],
+    "gate": PALETTE["gate"],
+    "tfet": PALETTE["design"],
+    "twin": PALETTE["twin"],
+    "transmission": PALETTE["transmission"],
+    "limit": PALETTE["limit"],
+    "marker": PALETTE["marker"],
+    "text": PALETTE["text"],
+    "muted_text": PALETTE["muted_text"],
+    "grid": PALETTE["grid"],
+    "target": PALETTE["target"],
+    "target_text": PALETTE["target_text"],
+    "gate_bar": PALETTE["gate_bar"],
+    "frame": PALETTE["frame"],
+}
+TOOLS = "pan,box_zoom,wheel_zoom,reset,save"
+T_FLOOR = 1e-30  # transmissions below this are drawn as gaps on the log axis [-]
+
+
+def style_figure(fig) -> None:
+    """The page's look of one Bokeh figure: toolbar, fonts, colours, grid."""
+    fig.toolbar.autohide = True
+    fig.toolbar.logo = None
+    fig.title.text_font_size = "13px"
+    fig.title.text_color = COLOURS["text"]
+    fig.title.text_font_style = "bold"
+    fig.background_fill_color = "#ffffff"
+    fig.border_fill_color = "#ffffff"
+    fig.outline_line_color = COLOURS["frame"]
+    for axis in (*fig.xaxis, *fig.yaxis):
+        axis.axis_label_text_font_size = "12px"
+        axis.axis_label_text_font_style = "normal"
+        axis.axis_label_text_color = COLOURS["text"]
+        axis.major_label_text_font_size = "11px"
+    fig.xgrid.grid_line_color = COLOURS["grid"]
+    fig.ygrid.grid_line_color = COLOURS["grid"]
+
+
+def style_legend(fig, location: str = "top_right") -> None:
+    """Place and style a figure's first legend (click to hide a curve)."""
+    if not fig.legend:
+        return
+    leg = fig.legend[0]
+    leg.location = location
+    leg.click_policy = "hide"
+    leg.background_fill_alpha = 0.75
+    leg.label_text_font_size = "11px"
+    leg.spacing = 0
+    leg.padding = 4
+    leg.margin = 4
+    leg.glyph_width = 18
+
+
+# ---------------------------------------------------------------------- display helpers
+def window_outline(x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray,
+                   window_eV: tuple[float, float] | None, n: int = 32
+                   ) -> tuple[list[float], list[float]]:
+    """Outline of the tunnel window in the band diagram [nm], [eV].
+
+    For each energy of the window, the region runs from the valence-side turning point
+    (where the valence edge falls below the energy) to the conduction-side turning point
+    (where the conduction edge first reaches it): the forbidden stretch an electron
+    crosses. Empty lists when the window is closed.
+    """
+    if window_eV is None:
+        return [], []
+    e_lo, e_hi = window_eV
+    pad = 1e-6 * max(e_hi - e_lo, 1e-9)
+    left: list[tuple[float, float]] = []
+    right: list[tuple[float, float]] = []
+    for e in np.linspace(e_lo + pad, e_hi - pad, n):
+        below = np.flatnonzero(ec_eV <= e)
+        if below.size == 0 or below[0] == 0:
+            continue
+        i = below[0]
+        x_c = _crossing(x_nm[i - 1], x_nm[i], ec_eV[i - 1], ec_eV[i], e)
+        above = np.flatnonzero(ev_eV[:i] >= e)
+        if above.size == 0:
+            continue
+        j = above[-1]
+        x_v = x_nm[j] if j + 1 >= x_nm.size else _crossing(x_nm[j], x_nm[j + 1], ev_eV[j],
+                                                            ev_eV[j + 1], e)
+        if x_c > x_v:
+            left.append((x_v, e))
+            right.append((x_c, e))
+    if len(left) < 2:
+        return [], []
+    pts = left + right[::-1]
+    return [float(p[0]) for p in pts], [float(p[1]) for p in pts]
+
+
+def _crossing(x0: float, x1: float, y0: float, y1: float, level: float) -> float:
+    if y1 == y0:
+        return float(x0)
+    return float(x0 + (level - y0) * (x1 - x0) / (y1 - y0))
+
+
+def uniform_map(x_nm: np.ndarray, y_nm: np.ndarray, values: np.ndarray, nx: int = 360,
+                ny: int = 80) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Bilinear resampling of a (nx, ny) map on a non-uniform tensor grid onto a uniform
+    one; returns (x, y, image) with image shaped (ny, nx) as Bokeh draws it."""
+    xu = np.linspace(x_nm[0], x_nm[-1], nx)
+    yu = np.linspace(y_nm[0], y_nm[-1], ny)
+    along_x = np.stack([np.interp(xu, x_nm, values[:, j]) for j in range(y_nm.size)], axis=1)
+    image = np.stack([np.interp(yu, y_nm, along_x[i]) for i in range(nx)], axis=1)
+    return xu, yu, image
+
+
+def positive_or_nan(values: np.ndarray, floor: float = 0.0) -> np.ndarray:
+    """Values for a log axis: non-positive (or below floor) and non-finite become NaN."""
+    v = np.asarray(values, float).copy()
+    v[~np.isfinite(v) | (v <= floor)] = np.nan
+    return v
+
+
+def rows_between(y_nm: np.ndarray, bounds: tuple[float, float]) -> np.ndarray:
+    """Indices of the grid lines y within [lo, hi] (with 1e-9 nm slack)."""
+    lo, hi = bounds
+    return np.flatnonzero((y_nm >= lo - 1e-9) & (y_nm <= hi + 1e-9))

@@ -1,0 +1,315 @@
+"""Live plots of one bias point: the band diagram, J(E) and T(E) beside it, the 2D map.
+
+Each builder makes its Bokeh figure(s) once, with named data sources, and `show` updates
+those sources in place from a `physics.simulate.BiasPoint`.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+
+import numpy as np
+from bokeh.core.properties import value
+from bokeh.models import (
+    BasicTickFormatter,
+    BoxAnnotation,
+    ColorBar,
+    ColumnDataSource,
+    FixedTicker,
+    HoverTool,
+    Label,
+    LegendItem,
+    LinearColorMapper,
+    Range1d,
+    Span,
+)
+from bokeh.plotting import figure
+
+from sub60.app.plot_style import (
+    COLOURS,
+    T_FLOOR,
+    TOOLS,
+    positive_or_nan,
+    rows_between,
+    uniform_map,
+    window_outline,
+)
+from sub60.app.theme import MAP_PALETTE, format_current
+
+
+class BandPlot:
+    """Band diagram along the channel: subband edges, Fermi levels, the tunnel window, the
+    gate and region labels. Subband lines are made when a label first appears;
+    ``on_new_line(glyph, width)`` is told of each (for the presentation line widths)."""
+
+    def __init__(self, x_range: Range1d, energy_range: Range1d,
+                 on_new_line: Callable[[object, float], None]) -> None:
+        self.energy_range = energy_range
+        self._on_new_line = on_new_line
+        #: Subband label -> its line renderer.
+        self.renderers: dict[str, object] = {}
+        f = figure(name="band_plot", title="Band diagram along the channel",
+                   x_axis_label="Position along transport x (nm)",
+                   y_axis_label="Energy (eV), source Fermi level at 0",
+                   x_range=x_range, y_range=energy_range, tools=TOOLS)
+        self.gate_box = BoxAnnotation(left=20, right=50, fill_color=COLOURS["gate"],
+                                      fill_alpha=0.6, line_alpha=0, level="underlay",
+                                      name="gate_box")
+        f.add_layout(self.gate_box)
+        self.region_labels = {}
+        for key in ("source", "gate", "drain"):
+            lab = Label(x=0, y=0, text=key, text_font_size="11px", text_baseline="top",
+                        text_color=COLOURS["muted_text"], text_align="center", y_offset=-4,
+                        name=f"{key}_label")
+            f.add_layout(lab)
+            self.region_labels[key] = lab
+        self.window_source = ColumnDataSource(
+            {"xs": [[]], "ys": [[]], "e_min": [np.nan], "e_max": [np.nan], "width_meV": [np.nan]},
+            name="window_source")
+        win = f.patches("xs", "ys", source=self.window_source, fill_color=COLOURS["window"],
+                        fill_alpha=0.45, line_color=COLOURS["window_line"], line_width=1,
+                        legend_label="tunnel window")
+        f.add_tools(HoverTool(renderers=[win], tooltips=[
+            ("tunnel window", "@e_min{0.000} to @e_max{0.000} eV"),
+            ("width", "@width_meV{0} meV")]))
+        self.window_closed = Label(x=0, y=0, text="", text_font_size="11px",
+                                   text_color=COLOURS["window_text"], text_align="center",
+                                   text_baseline="top", y_offset=-20,
+                                   name="window_closed_label")
+        f.add_layout(self.window_closed)
+        self.band_source = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": []},
+                                            name="band_source")
+        self.fermi_source = ColumnDataSource(
+            {"x0": [], "x1": [], "y": [], "label": []}, name="fermi_source")
+        fl = f.segment("x0", "y", "x1", "y", source=self.fermi_source, line_color=COLOURS["fermi"],
+                       line_dash="dashed", line_width=1.5, legend_label="Fermi levels")
+        f.add_tools(HoverTool(renderers=[fl], tooltips=[("", "@label"), ("E", "@y{0.000} eV")]))
+        self.fermi_labels = {k: Label(x=0, y=0, text=t, text_font_size="11px",
+                                      text_color=COLOURS["fermi"], y_offset=-3,
+                                      text_baseline="top", background_fill_color="white",
+                                      background_fill_alpha=0.7, name=f"{k}_label")
+                             for k, t in (("efs", "E_F source"), ("efd", "E_F drain"))}
+        for lab in self.fermi_labels.values():
+            f.add_layout(lab)
+        # one legend entry per band family; subband names are in the hover
+        self.band_items = {
+            "c": LegendItem(label=value("conduction subbands"), renderers=[], visible=False),
+            "v": LegendItem(label=value("valence subbands"), renderers=[], visible=False)}
+        leg = f.legend[0]
+        leg.items = [*leg.items, self.band_items["c"], self.band_items["v"]]
+        self.figure = f
+
+    @property
+    def labels(self) -> list[Label]:
+        """Text labels drawn on the plot (their font follows the presentation mode)."""
+        return [*self.region_labels.values(), *self.fermi_labels.values(), self.window_closed]
+
+    def line(self, label: str, kind: str, rank: int):
+        """The renderer of one subband edge ("c" or "v" family, rank 0 = the band edge),
+        made on first use."""
+        if label in self.renderers:
+            return self.renderers[label]
+        colour = {("c", 0): COLOURS["conduction"], ("v", 0): COLOURS["valence"],
+                  ("v", 1): COLOURS["valence_3"]}.get(
+            (kind, rank), COLOURS["conduction_2"] if kind == "c" else COLOURS["valence_2"])
+        width = 2.6 if rank == 0 else 1.4
+        dash = "solid" if rank == 0 else "dashed"
+        r = self.figure.line("x_nm", label, source=self.band_source, line_color=colour,
+                             line_width=width, line_dash=dash, name=f"band_{label}")
+        self.figure.add_tools(HoverTool(renderers=[r], tooltips=[
+            ("subband", label), ("x", "@x_nm{0.0} nm"), ("E", f"@{{{label}}}{{0.000}} eV")]))
+        item = self.band_items["c" if kind == "c" else "v"]
+        item.renderers = [*item.renderers, r]
+        if not item.visible:
+            item.visible = True
+        self.renderers[label] = r
+        self._on_new_line(r.glyph, width)
+        return r
+
+    def show(self, bp) -> float:
+        """Subband edges, regions, Fermi levels and tunnel window of a bias point; sets the
+        shared energy range. Returns the height of the region labels [eV]."""
+        d = bp.design
+        x = np.asarray(bp.x_nm, float)
+        data = {"x_nm": x, "ec_eV": np.asarray(bp.ec_eV, float),
+                "ev_eV": np.asarray(bp.ev_eV, float)}
+        labels = []
+        for rank, (lab, edge) in enumerate(zip(bp.conduction_labels, bp.conduction_eV,
+                                               strict=True)):
+            data[lab] = np.asarray(edge, float)
+            labels.append((lab, "c", rank))
+        order = np.argsort([-float(np.max(v)) for v in bp.valence_eV])
+        for rank, i in enumerate(order):
+            data[bp.valence_labels[i]] = np.asarray(bp.valence_eV[i], float)
+            labels.append((bp.valence_labels[i], "v", rank))
+        for name in self.renderers:
+            if name not in data:
+                data[name] = np.full_like(x, np.nan)
+        self.band_source.data = data
+        for lab, kind, rank in labels:
+            self.line(lab, kind, rank)
+        for name, r in self.renderers.items():
+            r.visible = name in bp.conduction_labels or name in bp.valence_labels
+
+        # regions, Fermi levels, window
+        self.figure.x_range.start, self.figure.x_range.end = float(x[0]), float(x[-1])
+        self.gate_box.left, self.gate_box.right = d.gate_start_nm, d.gate_end_nm
+        self.region_labels["source"].x = 0.5 * d.source_junction_nm
+        self.region_labels["gate"].x = 0.5 * (d.gate_start_nm + d.gate_end_nm)
+        self.region_labels["drain"].x = 0.5 * (d.drain_junction_nm + d.total_length_nm)
+        self.region_labels["source"].text = f"{'p' if d.source_type == 'p' else 'n'}+ source"
+        self.region_labels["gate"].text = "gate"
+        self.region_labels["drain"].text = "n+ drain"
+        self.fermi_source.data = {
+            "x0": [float(x[0]), d.drain_junction_nm], "x1": [d.source_junction_nm, float(x[-1])],
+            "y": [bp.efs_eV, bp.efd_eV],
+            "label": ["source Fermi level", "drain Fermi level"]}
+        self.fermi_labels["efs"].update(x=float(x[0]) + 0.5, y=bp.efs_eV)
+        self.fermi_labels["efd"].update(x=d.drain_junction_nm + 0.5, y=bp.efd_eV)
+        xs, ys = window_outline(x, data["ec_eV"], data["ev_eV"], bp.window_eV)
+        if bp.window_eV is not None and xs:
+            lo, hi = bp.window_eV
+            self.window_source.data = {"xs": [xs], "ys": [ys], "e_min": [lo], "e_max": [hi],
+                                       "width_meV": [1e3 * (hi - lo)]}
+            self.window_closed.text = ""
+        else:
+            self.window_source.data = {"xs": [], "ys": [], "e_min": [], "e_max": [],
+                                       "width_meV": []}
+            self.window_closed.text = "tunnel window closed"
+        lo = min(float(np.nanmin(data["ev_eV"])), bp.efs_eV, bp.efd_eV)
+        hi = max(float(np.nanmax(data["ec_eV"])), bp.efs_eV, bp.efd_eV)
+        pad = 0.06 * (hi - lo) + 0.02
+        self.energy_range.start, self.energy_range.end = lo - pad, hi + 2.5 * pad
+        for lab in self.region_labels.values():
+            lab.y = hi + 2.5 * pad
+        self.window_closed.update(x=self.region_labels["gate"].x, y=hi + 2.5 * pad)
+        return hi + 2.5 * pad
+
+
+class SpectrumPlots:
+    """Spectral current J(E) and transmission T(E) (log), on the band diagram's energy
+    axis, with the Fermi levels and the total band-to-band current."""
+
+    def __init__(self, energy_range: Range1d) -> None:
+        self.spectrum_source = ColumnDataSource({"energy_eV": [], "j": [], "t": []},
+                                                name="spectrum_source")
+        s = figure(name="spectrum_plot", title="Spectral current", y_range=energy_range,
+                   x_axis_label="J(E) (µA/µm per eV)", tools=TOOLS)
+        s.harea(x1=0, x2="j", y="energy_eV", source=self.spectrum_source,
+                fill_color=COLOURS["tfet"], fill_alpha=0.18)
+        jr = s.line("j", "energy_eV", source=self.spectrum_source, line_color=COLOURS["tfet"],
+                    line_width=2)
+        s.add_tools(HoverTool(renderers=[jr], tooltips=[
+            ("E", "@energy_eV{0.000} eV"), ("J", "@j{0.000e+0} µA/µm/eV")], mode="hline"))
+        self.spectrum_total = Label(x=4, y=4, x_units="screen", y_units="screen", text="",
+                                    text_font_size="11px", text_color=COLOURS["text"],
+                                    name="btbt_total_label", background_fill_color="white",
+                                    background_fill_alpha=0.8)
+        s.add_layout(self.spectrum_total)
+        t = figure(name="transmission_plot", title="Transmission", y_range=energy_range,
+                   x_axis_type="log", x_range=Range1d(1e-12, 1.5),
+                   x_axis_label="T(E), k⊥ = 0", tools=TOOLS)
+        tr = t.line("t", "energy_eV", source=self.spectrum_source,
+                    line_color=COLOURS["transmission"], line_width=2)
+        t.add_tools(HoverTool(renderers=[tr], tooltips=[
+            ("E", "@energy_eV{0.000} eV"), ("T", "@t{0.00e+0}")], mode="hline"))
+        self.t_ticker = FixedTicker(ticks=[1e-12, 1e-6, 1.0], name="transmission_ticker")
+        t.xaxis.ticker = self.t_ticker
+        self.transmission_note = Label(x=4, y=4, x_units="screen", y_units="screen", text="",
+                                       text_font_size="11px", text_color=COLOURS["text"],
+                                       name="transmission_note")
+        t.add_layout(self.transmission_note)
+        self.fermi_spans = []
+        for fig in (s, t):
+            fig.yaxis.major_label_text_font_size = "0px"
+            fig.yaxis.major_tick_line_color = None
+            if fig is s:
+                fig.xaxis.ticker.desired_num_ticks = 2
+                fig.xaxis.formatter = BasicTickFormatter(precision=0, power_limit_low=-2,
+                                                         power_limit_high=3)
+            for _ in range(2):
+                span = Span(location=0, dimension="width", line_color=COLOURS["fermi"],
+                            line_dash="dashed", line_width=1)
+                fig.add_layout(span)
+                self.fermi_spans.append(span)
+        self.spectrum, self.transmission = s, t
+
+    @property
+    def labels(self) -> list[Label]:
+        """Text labels drawn on the plots."""
+        return [self.spectrum_total, self.transmission_note]
+
+    def show(self, bp) -> None:
+        """J(E), T(E) (values below `T_FLOOR` as gaps), Fermi levels, total current."""
+        sp = bp.spectrum
+        t = positive_or_nan(sp.transmission, T_FLOOR)
+        self.spectrum_source.data = {"energy_eV": np.asarray(sp.energy_eV, float),
+                                     "j": np.asarray(sp.current_density, float), "t": t}
+        finite = t[np.isfinite(t)]
+        t_lo = 10.0 ** math.floor(math.log10(float(finite.min()))) if finite.size else 1e-12
+        t_lo = max(t_lo, 1e-30)
+        self.transmission.x_range.start = t_lo
+        self.transmission.x_range.end = 1.5
+        k_lo = int(round(math.log10(t_lo)))
+        step = max(1, int(math.ceil(-k_lo / 2)))
+        self.t_ticker.ticks = [10.0 ** k for k in range(0, k_lo - 1, -step)][::-1]
+        self.transmission_note.text = "" if finite.size else f"T < {T_FLOOR:.0e}\neverywhere"
+        for span, level in zip(self.fermi_spans, (bp.efs_eV, bp.efd_eV) * 2, strict=True):
+            span.location = level
+        self.spectrum_total.text = f"BTBT total\n{format_current(bp.btbt_uA_per_um)}"
+
+
+class MapPlot:
+    """Conduction-band edge over the cross-section (resampled to a uniform image), with
+    the body boundaries and the gate(s)."""
+
+    def __init__(self, x_range: Range1d) -> None:
+        self.colour_mapper = LinearColorMapper(palette=list(MAP_PALETTE), low=-1, high=1)
+        f = figure(name="map_plot", title="Conduction-band edge over the cross-section",
+                   x_range=x_range, y_range=Range1d(0, 11),
+                   x_axis_label="x (nm)", y_axis_label="y (nm)", tools=TOOLS)
+        self.map_source = ColumnDataSource({"image": [], "x": [], "y": [], "dw": [], "dh": []},
+                                           name="map_source")
+        img = f.image("image", x="x", y="y", dw="dw", dh="dh", source=self.map_source,
+                      color_mapper=self.colour_mapper)
+        f.add_tools(HoverTool(renderers=[img], tooltips=[
+            ("x", "$x{0.0} nm"), ("y", "$y{0.0} nm"), ("Ec", "@image{0.000} eV")]))
+        bar = ColorBar(color_mapper=self.colour_mapper, title="Ec (eV)", width=10,
+                       title_text_font_size="11px", major_label_text_font_size="10px")
+        f.add_layout(bar, "right")
+        self.body_spans = [Span(location=0, dimension="width", line_color="white",
+                                line_dash="dashed", line_width=1, line_alpha=0.8)
+                           for _ in range(2)]
+        for s in self.body_spans:
+            f.add_layout(s)
+        self.gates_source = ColumnDataSource({"x0": [], "x1": [], "y": [], "label": []},
+                                             name="gates_source")
+        g = f.segment("x0", "y", "x1", "y", source=self.gates_source,
+                      line_color=COLOURS["gate_bar"], line_width=6)
+        f.add_tools(HoverTool(renderers=[g], tooltips=[("", "@label")]))
+        f.xgrid.visible = False
+        f.ygrid.visible = False
+        self.figure = f
+
+    def show(self, bp) -> None:
+        """The map of a bias point; colours span the body's range of the edge."""
+        d = bp.design
+        es = bp.electrostatics
+        xu, yu, image = uniform_map(es.x_nm, es.y_nm, es.ec_map_eV)
+        self.map_source.data = {"image": [image], "x": [float(xu[0])], "y": [float(yu[0])],
+                                "dw": [float(xu[-1] - xu[0])], "dh": [float(yu[-1] - yu[0])]}
+        body = es.frame.mesh.body_bounds_nm()
+        lo_b = float(np.min(es.ec_map_eV[:, rows_between(es.y_nm, body)]))
+        hi_b = float(np.max(es.ec_map_eV[:, rows_between(es.y_nm, body)]))
+        self.colour_mapper.low, self.colour_mapper.high = lo_b, hi_b
+        self.figure.y_range.start, self.figure.y_range.end = float(yu[0]), float(yu[-1])
+        for span, yb in zip(self.body_spans, body, strict=True):
+            span.location = float(yb)
+        gx = [d.gate_start_nm, d.gate_end_nm]
+        top = float(yu[-1])
+        gates = {"x0": [gx[0]], "x1": [gx[1]], "y": [top], "label": ["gate"]}
+        if d.gate_layout == "double":
+            gates = {"x0": [gx[0], gx[0]], "x1": [gx[1], gx[1]], "y": [top, float(yu[0])],
+                     "label": ["top gate", "bottom gate"]}
+        self.gates_source.data = gates

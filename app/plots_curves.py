@@ -1,0 +1,277 @@
+"""Live plots of curves: transfer Id-Vg, point swing vs current, output Id-Vd, and the
+overlays of the pinned designs (on the band diagram and the transfer plot).
+
+Each builder makes its Bokeh figure once, with named data sources, and updates those
+sources in place.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import numpy as np
+from bokeh.core.properties import value
+from bokeh.models import ColumnDataSource, HoverTool, Label, Legend, LegendItem, Range1d, Span
+from bokeh.plotting import figure
+
+from sub60.app.plot_style import COLOURS, TOOLS, positive_or_nan
+from sub60.app.theme import OUTPUT_COLOURS, PIN_COLOURS
+
+N_OUTPUT_SLOTS = len(OUTPUT_COLOURS)
+N_PIN_SLOTS = len(PIN_COLOURS)
+#: Legend names of the first device: tunnel FET (p+ source) or MOSFET (n+ source).
+DEVICE_NAMES = ("tunnel FET", "MOSFET (n+ source)")
+_DEVICES = (("twin", "MOSFET twin", COLOURS["twin"], "dashed"),
+            ("tfet", "tunnel FET", COLOURS["tfet"], "solid"))
+
+
+def _rename_device(fig, name: str) -> None:
+    for item in fig.legend[0].items:
+        if item.label in (value(n) for n in DEVICE_NAMES) and item.label != value(name):
+            item.label = value(name)
+
+
+class TransferPlot:
+    """Transfer curves of the design ('tfet') and its twin on a log axis, the thermionic
+    limit slope, the Ioff target and the marker of the present bias."""
+
+    def __init__(self) -> None:
+        f = figure(name="transfer_plot", title="Transfer curve", y_axis_type="log",
+                   x_axis_label="Gate voltage Vg (V)", y_axis_label="Drain current Id (µA/µm)",
+                   tools=TOOLS)
+        self.transfer_sources = {}
+        for key, label, colour, dash in _DEVICES:
+            src = ColumnDataSource({"vg": [], "id": [], "btbt": [], "therm": [], "ss": []},
+                                   name=f"transfer_{key}_source")
+            r = f.line("vg", "id", source=src, line_color=colour, line_width=2.4,
+                       line_dash=dash, legend_label=label, name=f"transfer_{key}")
+            f.scatter("vg", "id", source=src, size=3.5, color=colour, legend_label=label)
+            f.add_tools(HoverTool(renderers=[r], tooltips=[
+                ("", label), ("Vg", "@vg{0.000} V"), ("Id", "@id{0.00e+0} µA/µm"),
+                ("band-to-band", "@btbt{0.00e+0}"), ("thermionic", "@therm{0.00e+0}"),
+                ("SS", "@ss{0.0} mV/dec")]))
+            self.transfer_sources[key] = src
+        self.limit_source = ColumnDataSource({"vg": [], "id": []}, name="limit_source")
+        lim = f.line("vg", "id", source=self.limit_source, line_color=COLOURS["limit"],
+                     line_dash="dotted", line_width=2, name="limit_line")
+        f.add_tools(HoverTool(renderers=[lim], tooltips=[("", "thermionic limit slope")]))
+        self.limit_item = LegendItem(label=value("thermionic limit"), renderers=[lim])
+        self.ioff_span = Span(location=1e-3, dimension="width", line_color=COLOURS["target"],
+                              line_dash="dashdot", line_width=1)
+        f.add_layout(self.ioff_span)
+        self.ioff_label = Label(x=6, y=1e-3, x_units="screen", text="Ioff target",
+                                text_font_size="10px", text_color=COLOURS["target_text"],
+                                y_offset=2)
+        f.add_layout(self.ioff_label)
+        self.vg_marker_source = ColumnDataSource({"vg": [], "id": []}, name="vg_marker_source")
+        mk = f.scatter("vg", "id", source=self.vg_marker_source, marker="diamond", size=13,
+                       fill_color=COLOURS["marker"], line_color="white", legend_label="present Vg")
+        f.add_tools(HoverTool(renderers=[mk], tooltips=[
+            ("present bias", ""), ("Vg", "@vg{0.000} V"), ("Id", "@id{0.00e+0} µA/µm")]))
+        self.vg_span = Span(location=0.3, dimension="height", line_color=COLOURS["marker"],
+                            line_alpha=0.35, line_width=1)
+        f.add_layout(self.vg_span)
+        f.legend[0].items = [*f.legend[0].items, self.limit_item]
+        self.figure = f
+
+    def show(self, key: str, vg: np.ndarray, ids: np.ndarray, btbt: np.ndarray | None,
+             therm: np.ndarray | None, ss: np.ndarray) -> None:
+        """One device's curve: gate voltages [V], currents for the log axis [uA/um], the
+        band-to-band and thermionic parts (None: unknown) and point swing [mV/dec]."""
+        nan = np.full_like(vg, np.nan)
+        self.transfer_sources[key].data = {
+            "vg": vg, "id": ids, "btbt": nan if btbt is None else np.asarray(btbt, float),
+            "therm": nan if therm is None else np.asarray(therm, float), "ss": ss}
+
+    def show_marker(self, vg_V: float, current_uA_per_um: float) -> None:
+        """The present bias on the curve (no marker for a current that is not positive)."""
+        self.vg_marker_source.data = {"vg": [vg_V],
+                                      "id": [current_uA_per_um if current_uA_per_um > 0
+                                             else np.nan]}
+        self.vg_span.location = vg_V
+
+    def show_limits(self, limit_mV_per_dec: float, text: str, ioff_uA_per_um: float,
+                    anchor_vg: float | None, anchor_id: float | None, vg_end: float) -> None:
+        """Thermionic-limit slope from (anchor_vg [V], anchor_id [uA/um]) over 0.5 to 5
+        decades towards vg_end [V], and the Ioff target [uA/um]."""
+        self.limit_item.label = value(text)
+        self.ioff_span.location = ioff_uA_per_um
+        self.ioff_label.y = ioff_uA_per_um
+        if anchor_vg is None or anchor_id is None or not anchor_id > 0:
+            self.limit_source.data = {"vg": [], "id": []}
+            return
+        limit = limit_mV_per_dec
+        decades = max(0.5, min(5.0, (vg_end - anchor_vg) * 1e3 / limit))
+        self.limit_source.data = {"vg": [anchor_vg, anchor_vg + decades * limit * 1e-3],
+                                  "id": [anchor_id, anchor_id * 10 ** decades]}
+
+    def name_device(self, name: str) -> None:
+        """Legend name of the first device (one of `DEVICE_NAMES`)."""
+        _rename_device(self.figure, name)
+
+
+class SwingPlot:
+    """Point swing against current for both devices, with the thermionic limit and the
+    Ioff target."""
+
+    def __init__(self) -> None:
+        f = figure(name="swing_plot", title="Point swing vs current", x_axis_type="log",
+                   x_axis_label="Drain current Id (µA/µm)", y_axis_label="SS (mV/dec)",
+                   y_range=Range1d(0, 200), tools=TOOLS)
+        self.swing_sources = {}
+        for key, label, colour, dash in _DEVICES:
+            src = ColumnDataSource({"id": [], "ss": [], "vg": []}, name=f"swing_{key}_source")
+            r = f.line("id", "ss", source=src, line_color=colour, line_width=2.4,
+                       line_dash=dash, legend_label=label)
+            f.scatter("id", "ss", source=src, size=3.5, color=colour, legend_label=label)
+            f.add_tools(HoverTool(renderers=[r], tooltips=[
+                ("", label), ("Id", "@id{0.00e+0} µA/µm"), ("SS", "@ss{0.0} mV/dec"),
+                ("Vg", "@vg{0.000} V")]))
+            self.swing_sources[key] = src
+        self.swing_limit = Span(location=59.5, dimension="width", line_color=COLOURS["limit"],
+                                line_dash="dotted", line_width=2)
+        f.add_layout(self.swing_limit)
+        self.swing_limit_label = Label(x=8, y=59.5, x_units="screen", text="", y_offset=3,
+                                       text_align="left", text_font_size="11px",
+                                       text_color=COLOURS["limit"], name="swing_limit_label")
+        f.add_layout(self.swing_limit_label)
+        self.swing_ioff = Span(location=1e-3, dimension="height", line_color=COLOURS["target"],
+                               line_dash="dashdot", line_width=1)
+        f.add_layout(self.swing_ioff)
+        self.figure = f
+
+    def show(self, key: str, vg: np.ndarray, ids: np.ndarray, ss: np.ndarray) -> None:
+        """One device's points with a finite current and a positive swing."""
+        ok = np.isfinite(ids) & np.isfinite(ss) & (ss > 0)
+        self.swing_sources[key].data = {"id": ids[ok], "ss": ss[ok], "vg": vg[ok]}
+
+    def show_limits(self, limit_mV_per_dec: float, text: str, ioff_uA_per_um: float) -> None:
+        """The thermionic limit [mV/dec] (the axis reaches 2.5 times it) and Ioff target."""
+        self.swing_limit.location = limit_mV_per_dec
+        self.swing_limit_label.update(y=limit_mV_per_dec, text=text)
+        self.figure.y_range.end = max(200.0, 2.5 * limit_mV_per_dec)
+        self.swing_ioff.location = ioff_uA_per_um
+
+    def name_device(self, name: str) -> None:
+        """Legend name of the first device (one of `DEVICE_NAMES`)."""
+        _rename_device(self.figure, name)
+
+
+class OutputPlot:
+    """Output curves Id-Vd, one slot per gate voltage (`N_OUTPUT_SLOTS`), and the present
+    drain voltage."""
+
+    def __init__(self) -> None:
+        f = figure(name="output_plot", title="Output curves (tunnel FET)",
+                   x_axis_label="Drain voltage Vd (V)", y_axis_label="Id (µA/µm)", tools=TOOLS)
+        self.output_sources = []
+        self.output_items = []
+        for k in range(N_OUTPUT_SLOTS):
+            src = ColumnDataSource({"vd": [], "id": [], "vg": []}, name=f"output_source_{k}")
+            r = f.line("vd", "id", source=src, line_color=OUTPUT_COLOURS[k], line_width=2.2)
+            f.add_tools(HoverTool(renderers=[r], tooltips=[
+                ("Vg", "@vg{0.00} V"), ("Vd", "@vd{0.000} V"), ("Id", "@id{0.000e+0} µA/µm")]))
+            self.output_sources.append(src)
+            self.output_items.append(LegendItem(label=value(" "), renderers=[r], visible=False))
+        f.add_layout(Legend(items=self.output_items))
+        self.vd_span = Span(location=0.3, dimension="height", line_color=COLOURS["marker"],
+                            line_alpha=0.35, line_width=1)
+        f.add_layout(self.vd_span)
+        self.figure = f
+
+    def show(self, curves: Sequence) -> None:
+        """Output curves (`physics.simulate.OutputCurve`), lowest Vg first; unused slots
+        are emptied."""
+        for k in range(N_OUTPUT_SLOTS):
+            if k < len(curves):
+                c = curves[k]
+                vd = np.asarray(c.vd_V, float)
+                self.output_sources[k].data = {"vd": vd, "id": np.asarray(c.id_uA_per_um, float),
+                                               "vg": np.full_like(vd, c.vg_V)}
+                self.output_items[k].label = value(f"Vg = {c.vg_V + 0.0:.2f} V".replace("-0.00", "0.00"))
+                self.output_items[k].visible = True
+            else:
+                self.output_sources[k].data = {"vd": [], "id": [], "vg": []}
+                self.output_items[k].visible = False
+
+
+class PinOverlays:
+    """Overlay slots of the pinned designs: conduction and valence edges on the band
+    diagram (thin dashed), the tunnel-FET curve on the transfer plot; each slot has its
+    colour (`PIN_COLOURS`) and one legend entry (click to hide), in a legend of its own."""
+
+    def __init__(self, band, transfer) -> None:
+        self.pin_band_sources, self.pin_transfer_sources = [], []
+        self.pin_band_items, self.pin_transfer_items = [], []
+        for k, colour in enumerate(PIN_COLOURS):
+            src_band = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []},
+                                        name=f"pin_band_source_{k}")
+            rs = [band.line("x_nm", edge, source=src_band, line_color=colour, line_width=1.4,
+                            line_dash="dashed", line_alpha=0.95, name=f"pin_band_{tag}_{k}")
+                  for edge, tag in (("ec_eV", "ec"), ("ev_eV", "ev"))]
+            band.add_tools(HoverTool(renderers=rs, tooltips=[
+                ("pinned", "@name"), ("x", "@x_nm{0.0} nm"), ("Ec", "@ec_eV{0.000} eV"),
+                ("Ev", "@ev_eV{0.000} eV")]))
+            src_transfer = ColumnDataSource({"vg": [], "id": [], "name": []},
+                                            name=f"pin_transfer_source_{k}")
+            rt = transfer.line("vg", "id", source=src_transfer, line_color=colour,
+                               line_width=1.8, name=f"pin_transfer_{k}")
+            transfer.add_tools(HoverTool(renderers=[rt], tooltips=[
+                ("pinned", "@name"), ("Vg", "@vg{0.000} V"), ("Id", "@id{0.00e+0} µA/µm")]))
+            self.pin_band_sources.append(src_band)
+            self.pin_transfer_sources.append(src_transfer)
+            self.pin_band_items.append(LegendItem(label=value(" "), renderers=rs, visible=False))
+            self.pin_transfer_items.append(LegendItem(label=value(" "), renderers=[rt],
+                                                      visible=False))
+        self.pin_legends = {}
+        for key, fig, items, where in (("band", band, self.pin_band_items, "top_right"),
+                                       ("transfer", transfer, self.pin_transfer_items,
+                                        "top_left")):
+            leg = Legend(items=items, location=where, click_policy="hide", visible=False,
+                         name=f"pin_{key}_legend", title="pinned", title_text_font_size="10px",
+                         title_text_font_style="italic", background_fill_alpha=0.8,
+                         label_text_font_size="10px", spacing=0, padding=3,
+                         margin=18 if key == "band" else 4,  # below the region labels
+                         glyph_width=16, glyph_height=12, label_height=12)
+            fig.add_layout(leg)
+            self.pin_legends[key] = leg
+
+    def show(self, slot: int, name: str, bias=None, curve=None) -> None:
+        """A pinned design in a slot: its name, and (when given) its band edges at the
+        present bias (`physics.simulate.BiasPoint`) and its transfer curve
+        (`physics.simulate.TransferCurve`); what is not given stays as it was."""
+        for item in (self.pin_band_items[slot], self.pin_transfer_items[slot]):
+            item.label = value(name)
+            item.visible = True
+        if bias is not None:
+            x = np.asarray(bias.x_nm, float)
+            self.pin_band_sources[slot].data = {
+                "x_nm": x, "ec_eV": np.asarray(bias.ec_eV, float),
+                "ev_eV": np.asarray(bias.ev_eV, float), "name": [name] * x.size}
+        else:
+            src = self.pin_band_sources[slot]
+            src.data = {**src.data, "name": [name] * len(src.data["x_nm"])}
+        if curve is not None:
+            vg = np.asarray(curve.vg_V, float)
+            self.pin_transfer_sources[slot].data = {
+                "vg": vg, "id": positive_or_nan(curve.id_uA_per_um), "name": [name] * vg.size}
+        else:
+            src = self.pin_transfer_sources[slot]
+            src.data = {**src.data, "name": [name] * len(src.data["vg"])}
+        self._update_legends()
+
+    def clear(self, slot: int) -> None:
+        """Empty a slot."""
+        self.pin_band_sources[slot].data = {"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []}
+        self.pin_transfer_sources[slot].data = {"vg": [], "id": [], "name": []}
+        for item in (self.pin_band_items[slot], self.pin_transfer_items[slot]):
+            item.visible = False
+            for r in item.renderers:  # a slot used again starts shown
+                r.visible = True
+        self._update_legends()
+
+    def _update_legends(self) -> None:
+        n = sum(1 for item in self.pin_transfer_items if item.visible)
+        for leg in self.pin_legends.values():
+            leg.visible = n > 0
+            leg.ncols = 1 if n <= 4 else 2
