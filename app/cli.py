@@ -18,13 +18,7 @@ A bad option or design value exits with status 2 and a one-line message naming i
 
 from __future__ import annotations
 
-import os
-
-# one BLAS thread: the banded solvers are small and erratic with two (see physics/__init__)
-os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
-os.environ.setdefault("OMP_NUM_THREADS", "1")
-
-import argparse  # noqa: E402
+import argparse
 import json
 import math
 import sys
@@ -73,8 +67,8 @@ def transfer_record(tc) -> dict:
 def bands_record(bp) -> dict:
     """JSON record of a band diagram at one bias."""
     w = bp.window_eV
-    return {"vg_V": bp.vg_V, "vd_V": bp.vd_V, "x_nm": _clean(bp.x_nm), "ec_eV": _clean(bp.ec_eV),
-            "ev_eV": _clean(bp.ev_eV), "efs_eV": bp.efs_eV, "efd_eV": bp.efd_eV,
+    return {"vg_V": bp.vg_V, "vd_V": bp.vd_V, "x_nm": _clean(bp.x_nm), "ec_eV": _clean(bp.subband_ec_eV),
+            "ev_eV": _clean(bp.subband_ev_eV), "efs_eV": bp.efs_eV, "efd_eV": bp.efd_eV,
             "window": None if w is None else {"e_min_eV": w[0], "e_max_eV": w[1]},
             "current_uA_per_um": bp.current_uA_per_um}
 

@@ -25,10 +25,8 @@ import numpy as np
 
 from sub60.app.theme import PALETTE, output_ramp
 from sub60.physics.design import Design
-from sub60.physics.materials import eot_nm
 from sub60.physics.metrics import thermionic_limit_mV_per_dec
 from sub60.physics.simulate import BiasPoint, OutputCurve, TransferCurve
-from sub60.physics.structure import gate_dielectric
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -48,11 +46,6 @@ _T_FLOOR = 1e-30  # transmissions below this are left out of the log axis [-]
 
 
 # ---------------------------------------------------------------------- captions
-def gate_permittivity(design: Design) -> float:
-    """Relative permittivity of the design's gate dielectric [-]."""
-    return float(gate_dielectric(design).permittivity)
-
-
 def caption_text(design: Design, vd_V: float, vg_V: float | Sequence[float] | None = None,
                  version: str | None = None) -> str:
     """Three caption lines: the device, the bias and temperature, the model caution.
@@ -68,7 +61,7 @@ def caption_text(design: Design, vd_V: float, vg_V: float | Sequence[float] | No
         sub60 version that made the figure.
     """
     d = design
-    eot = float(eot_nm(d.oxide_thickness_nm, gate_permittivity(d)))
+    eot = d.eot_nm
     kind = "tunnel FET" if d.source_type == "p" else "MOSFET"
     if vg_V is None:
         gate = ""

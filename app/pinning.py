@@ -27,9 +27,7 @@ from sub60.app.theme import (
     format_metric,
 )
 from sub60.physics.design import Design
-from sub60.physics.materials import eot_nm
 from sub60.physics.metrics import Metrics
-from sub60.physics.structure import gate_dielectric
 
 MAX_PINS = MAX_PINNED
 MINUS = "\u2212"
@@ -169,8 +167,7 @@ def key_settings(design: Design, vd_V: float) -> dict[str, float | str]:
     doping [cm^-3] and drain voltage [V]."""
     return {"material": design.material, "body_thickness_nm": design.body_thickness_nm,
             "gate_length_nm": design.gate_length_nm,
-            "eot_nm": float(eot_nm(design.oxide_thickness_nm,
-                                   gate_dielectric(design).permittivity)),
+            "eot_nm": design.eot_nm,
             "source_doping_cm3": design.source_doping_cm3, "vd_V": float(vd_V)}
 
 

@@ -132,8 +132,8 @@ class BandPlot:
         shared energy range. Returns the height of the region labels [eV]."""
         d = bp.design
         x = np.asarray(bp.x_nm, float)
-        data = {"x_nm": x, "ec_eV": np.asarray(bp.ec_eV, float),
-                "ev_eV": np.asarray(bp.ev_eV, float)}
+        data = {"x_nm": x, "ec_eV": np.asarray(bp.subband_ec_eV, float),
+                "ev_eV": np.asarray(bp.subband_ev_eV, float)}
         labels = []
         for rank, (lab, edge) in enumerate(zip(bp.conduction_labels, bp.conduction_eV,
                                                strict=True)):

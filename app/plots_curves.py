@@ -246,8 +246,8 @@ class PinOverlays:
         if bias is not None:
             x = np.asarray(bias.x_nm, float)
             self.pin_band_sources[slot].data = {
-                "x_nm": x, "ec_eV": np.asarray(bias.ec_eV, float),
-                "ev_eV": np.asarray(bias.ev_eV, float), "name": [name] * x.size}
+                "x_nm": x, "ec_eV": np.asarray(bias.subband_ec_eV, float),
+                "ev_eV": np.asarray(bias.subband_ev_eV, float), "name": [name] * x.size}
         else:
             src = self.pin_band_sources[slot]
             src.data = {**src.data, "name": [name] * len(src.data["x_nm"])}

@@ -28,6 +28,7 @@ from sub60.app.snapshot_fields import (
     read_number,
     show_value,
 )
+from sub60.physics import TUNNELLING_MODELS
 from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
 from sub60.physics.metrics import Metrics
 
@@ -45,7 +46,6 @@ MAX_PINNED = 8
 VDD_RANGE_V = (0.01, 2.0)
 IOFF_TARGET_RANGE_UA_PER_UM = (1e-12, 1e3)
 RESOLUTION_RANGE = (0.5, 3.0)
-TUNNELLING_MODELS = ("two-band", "one-band")
 MAX_TITLE_CHARS = 200
 MAX_NOTE_CHARS = 4000
 MAX_NAME_CHARS = 80
