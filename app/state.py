@@ -6,8 +6,10 @@ log10 of their magnitude so that their sliders move in decades. `design()` turns
 settings into a validated `Design` (or raises the design's own `ValueError`), and the
 sweep helpers give the voltages of the transfer and output curves.
 
-The widgets of the page are made from these parameters (`app.layout`), so the two stay
-linked both ways; nothing here imports Panel or Bokeh.
+The enable rules of the page (which controls apply to the present settings) are derived,
+read-only parameters kept up to date by `param.depends`, so a view only links them to its
+widgets. The widgets of the page are made from these parameters (`app.controls`), so the
+two stay linked both ways; nothing here imports Panel or Bokeh.
 """
 
 from __future__ import annotations
@@ -166,6 +168,20 @@ class ExplorerState(param.Parameterized):
     presentation = param.Boolean(default=False, label="Presentation mode",
                                  doc="Hide the controls and enlarge text and lines.")
 
+    # ---------------------------------------------------------------- enable rules (derived)
+    custom_permittivity_enabled = param.Boolean(
+        default=False, constant=True, precedence=-1,
+        doc="The custom permittivity applies (oxide='custom'); derived, read-only.")
+    buried_oxide_enabled = param.Boolean(
+        default=False, constant=True, precedence=-1,
+        doc="The buried oxide applies (single gate); derived, read-only.")
+
+    @param.depends("oxide", "gate_layout", watch=True, on_init=True)
+    def _update_enable_rules(self) -> None:
+        with param.parameterized.edit_constant(self):
+            self.param.update(custom_permittivity_enabled=self.oxide == "custom",
+                              buried_oxide_enabled=self.gate_layout == "single")
+
     # ------------------------------------------------------------------ conversions
     def design(self) -> Design:
         """The validated design of the present settings (ValueError names the field)."""
@@ -217,7 +233,7 @@ class ExplorerState(param.Parameterized):
     def reset(self) -> None:
         """Every setting back to its default, in one update."""
         defaults = {name: p.default for name, p in self.param.objects("existing").items()
-                    if name != "name" and name != "presentation"}
+                    if name not in ("name", "presentation") and not p.constant}
         self.param.update(**defaults)
 
     @property

@@ -16,7 +16,6 @@ import re
 import numpy as np
 import pytest
 
-from sub60.app.compare_panes import UPLOAD_LIMIT_BYTES
 from sub60.app.layout import Explorer
 from sub60.app.pinning import (
     MAX_PINS,
@@ -26,6 +25,7 @@ from sub60.app.pinning import (
     PinError,
     difference_text,
 )
+from sub60.app.session_files import UPLOAD_LIMIT_BYTES
 from sub60.app.sharing import (
     LINKED_PARAMETERS,
     QUERY_KEYS,
@@ -137,7 +137,7 @@ def test_pinned_design_rows_and_overlays_equal_physics():
                                    - present_m.ss_min_mV_per_dec.value, abs=0.05)
     assert diffs["body_thickness_nm"] == "\u22122 nm"
     # the same numbers are in the page's table (data-value hooks)
-    cells = e.compare.rows[0].cells.object
+    cells = e.pin_view.compare.rows[0].cells.object
     shown = float(re.search(r'data-row="pin-0" data-col="ss_min_mV_per_dec" '
                             r'data-value="([^"]+)"', cells).group(1))
     assert shown == pytest.approx(pinned_m.ss_min_mV_per_dec.value, rel=1e-9)
@@ -162,8 +162,8 @@ def test_rename_unpin_and_load_into_controls():
     b = e.pin_present("long gate")
     assert (a.slot, b.slot) == (0, 1)
     assert e.rename_pin(0, "long gate") is None  # taken: refused, old name kept
-    assert "Not renamed" in e.compare.message.object
-    assert e.compare.rows[0].name.value == "Design A"
+    assert "Not renamed" in e.pin_view.compare.message.object
+    assert e.pin_view.compare.rows[0].name.value == "Design A"
     e.rename_pin(0, "short gate")
     assert e.figures.pin_band_items[0].label["value"] == "short gate"
     e.load_pin(0)
@@ -172,9 +172,9 @@ def test_rename_unpin_and_load_into_controls():
     e.unpin(1)
     assert not e.figures.pin_transfer_items[1].visible
     assert len(e.figures.pin_transfer_sources[1].data["vg"]) == 0
-    assert [p.name for p in e.pins.pins] == ["short gate"] and 1 not in e.compare.rows
+    assert [p.name for p in e.pins.pins] == ["short gate"] and 1 not in e.pin_view.compare.rows
     e.unpin(0)
-    assert not e.figures.pin_legends["band"].visible and not e.compare.header.visible
+    assert not e.figures.pin_legends["band"].visible and not e.pin_view.compare.header.visible
 
 
 # ------------------------------------------------------------------ settings and links
@@ -275,7 +275,7 @@ def test_export_then_import_restores_controls_pins_and_verifies():
     assert "recomputed figures of merit match the stored ones" in report
     assert "report ok" in report
     stored = settings.stored.design.metrics
-    shown = b._curves["tfet"].metrics.to_dict()
+    shown = b.jobs.curves["tfet"].metrics.to_dict()
     for k, v in stored.items():
         assert (v is None) == (shown[k] is None), k
         if v is not None:
@@ -290,7 +290,7 @@ def test_a_file_that_cannot_be_used_leaves_the_page_unchanged(monkeypatch):
     assert not e.import_bytes(b'{"schema": "sub60.snapshot", "schema_version": 99}', "new.json")
     assert "new.json not opened" in e.error_text and "future schema version" in e.error_text
     calls = []
-    monkeypatch.setattr("sub60.app.layout.import_snapshot", lambda *a, **k: calls.append(a))
+    monkeypatch.setattr("sub60.app.session_files.import_snapshot", lambda *a, **k: calls.append(a))
     assert not e.import_bytes(b"PK" + bytes(UPLOAD_LIMIT_BYTES), "big.zip")
     assert calls == [], "a file over the limit must be refused before it is parsed"
     assert "over the page's limit of 10 MB" in e.error_text

@@ -162,7 +162,7 @@ def test_design_change_recomputes_transfer_curves_and_metrics_as_physics():
         data = e.figures.transfer_sources[key].data
         np.testing.assert_allclose(data["vg"], VG_SWEEP)
         np.testing.assert_allclose(data["id"], tc.id_uA_per_um, rtol=1e-5)
-        shown = e._curves[key].metrics
+        shown = e.jobs.curves[key].metrics
         for name in tc.metrics.METRIC_NAMES:
             want, got = getattr(tc.metrics, name).value, getattr(shown, name).value
             assert (want is None) == (got is None), name

@@ -1,0 +1,111 @@
+"""The texts of the explorer page: header, EOT line, error messages (no Panel, no Bokeh).
+
+`MessageBoard` holds the page's error messages by kind ('design', 'bias', 'sweep',
+'link', 'snapshot'); its ``text`` parameter is what the page's error area shows, so a
+view only links a pane to it. The message builders name the control a user has to
+change (its label, from `app.state.label_of`), never an internal field name.
+"""
+
+from __future__ import annotations
+
+import html
+
+import param
+
+from sub60.app.state import ExplorerState, label_of
+from sub60.physics.materials import eot_nm
+from sub60.physics.structure import gate_dielectric
+
+CAUTION = ("Design-exploration model with stated approximations (semiclassical charge with "
+           "confinement-shifted band edges, WKB tunnelling, ballistic transport, no traps) — "
+           "not calibrated TCAD; decisions rest on local practice and measurement.")
+TITLE = "sub60 · tunnel FET explorer"
+
+
+def html_escape(text: str) -> str:
+    """Text for the page's Markdown/HTML messages (no markup from a file gets through)."""
+    return html.escape(text, quote=True).replace("*", "&#42;").replace("_", "&#95;")
+
+
+def solver_summary(exc: Exception) -> str:
+    """The first sentence of a solver failure, without its residual history."""
+    summary = getattr(exc, "summary", None)  # a SolverError that carries it as a field
+    if isinstance(summary, str) and summary:
+        return summary
+    return str(exc).split("; residual history")[0]
+
+
+def value_message(exc: Exception) -> str:
+    """The message of an invalid setting, naming its control when the error names a field."""
+    text = str(exc)
+    field, sep, rest = text.partition(":")
+    if sep and " " not in field.strip():
+        return (f"**{label_of(field.strip())}**: {rest.strip()}. The plots show the last "
+                "valid result.")
+    return f"**Invalid setting**: {text}. The plots show the last valid result."
+
+
+def solver_message(exc: Exception, changed: str | None, what: str) -> str:
+    """The message of a solve that did not converge after the change of a setting."""
+    setting = label_of(changed) if changed else "the design"
+    return (f"**The solver did not converge for the {what}** after the change of "
+            f"**{setting}**. Try a smaller step or another value. The plots show the "
+            f"last converged result.\n\n<small>{solver_summary(exc)}</small>")
+
+
+def header_html(state: ExplorerState) -> str:
+    """Title, one-line design summary (with its EOT) and the model's caution."""
+    try:
+        d = state.design()
+        eot = eot_nm(d.oxide_thickness_nm, gate_dielectric(d).permittivity)
+        layout = "double gate" if d.gate_layout == "double" else "single gate"
+        src = "p+" if d.source_type == "p" else "n+"
+        summary = (f"{d.material} body {d.body_thickness_nm:g} nm · L<sub>g</sub> "
+                   f"{d.gate_length_nm:g} nm · {layout} · {d.oxide} {d.oxide_thickness_nm:g} nm "
+                   f"(EOT {eot:.2f} nm) · {src} source {d.source_doping_cm3:.1e} cm⁻³ · "
+                   f"{d.temperature_K:g} K")
+    except ValueError:
+        summary = "invalid design — see the message below"
+    return (f'<div class="title">{TITLE}</div>'
+            f'<div class="summary">{summary}</div>'
+            f'<div class="caution">{CAUTION}</div>')
+
+
+def eot_html(state: ExplorerState) -> str:
+    """The equivalent oxide thickness of the gate stack [nm], under its controls."""
+    try:
+        d = state.design()
+        eps = gate_dielectric(d).permittivity
+        return (f'<div class="eot">EOT = {eot_nm(d.oxide_thickness_nm, eps):.2f} nm '
+                f'(ε<sub>r</sub> = {eps:g})</div>')
+    except ValueError as exc:
+        return f'<div class="eot">EOT unavailable: {exc}</div>'
+
+
+class MessageBoard(param.Parameterized):
+    """The error messages of one page, by kind; ``text`` is what the page shows."""
+
+    text = param.String(default="", constant=True,
+                        doc="Every present message, one paragraph each ('' when none).")
+
+    def __init__(self, **params) -> None:
+        super().__init__(**params)
+        self._messages: dict[str, str] = {}
+
+    def set(self, kind: str, message: str) -> None:
+        """Show (or replace) the message of one kind."""
+        self._messages[kind] = message
+        self._publish()
+
+    def clear(self, kind: str) -> None:
+        """Take the message of one kind away (nothing when there is none)."""
+        if self._messages.pop(kind, None) is not None:
+            self._publish()
+
+    def has(self, kind: str) -> bool:
+        """Whether a message of this kind is shown."""
+        return kind in self._messages
+
+    def _publish(self) -> None:
+        with param.parameterized.edit_constant(self):
+            self.text = "\n\n".join(self._messages.values())
