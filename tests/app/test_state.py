@@ -308,3 +308,21 @@ def test_loopback_detection_and_origins():
     assert allowed_origins("10.0.0.5", 7000) == ["10.0.0.5:7000"]
     assert loopback_warning("127.0.0.1", 5006) is None
     assert "not a loopback" in loopback_warning("0.0.0.0", 5006)
+
+
+def test_sessions_share_no_bokeh_model():
+    """A Bokeh model belongs to one document: two pages rendered into two documents
+    must not hold a single model in common (slider formatters included)."""
+    from bokeh.document import Document
+
+    roots = []
+    for e in (_fresh(), _fresh()):
+        doc = Document()
+        root = e.__panel__().get_root(doc)
+        doc.add_root(root)
+        roots.append({m.id: m for m in doc.models})
+    shared = set(roots[0]) & set(roots[1])
+    assert not shared, sorted(type(roots[0][i]).__name__ for i in shared)
+    formats = [{m.id for m in r.values() if type(m).__name__ == "CustomJSTickFormatter"}
+               for r in roots]
+    assert len(formats[0]) == len(formats[1]) == 4  # Ioff and three dopings, one per page
