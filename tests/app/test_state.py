@@ -326,3 +326,30 @@ def test_sessions_share_no_bokeh_model():
     formats = [{m.id for m in r.values() if type(m).__name__ == "CustomJSTickFormatter"}
                for r in roots]
     assert len(formats[0]) == len(formats[1]) == 4  # Ioff and three dopings, one per page
+
+
+def test_design_message_goes_when_the_combination_is_fixed():
+    """The design's own rule (physics.design): the gate starts at least 1 nm inside the
+    source, source_length_nm - gate_source_offset_nm >= 1."""
+    e = _fresh()
+    e.state.param.update(source_length_nm=5.0, gate_source_offset_nm=4.5)
+    assert e.alert.visible and "Gate–source overlap" in e.error_text
+    assert e.snapshots.download.disabled and e.pin_view.compare.button.disabled
+    e.state.gate_source_offset_nm = 0.0
+    assert not e.alert.visible and e.error_text == ""
+    assert not e.snapshots.download.disabled and not e.pin_view.compare.button.disabled
+    assert e.figures.map_source.data["dw"][0] > 0  # the plots follow the fixed design
+
+
+def test_enable_rules_follow_the_state():
+    e = _fresh()
+    permittivity, box = (e.widgets[n] for n in ("oxide_permittivity",
+                                                 "buried_oxide_thickness_nm"))
+    assert permittivity.disabled and box.disabled
+    e.state.param.update(oxide="custom", gate_layout="single")
+    assert e.state.custom_permittivity_enabled and e.state.buried_oxide_enabled
+    assert not permittivity.disabled and not box.disabled
+    e.state.reset()
+    assert permittivity.disabled and box.disabled
+    with pytest.raises(TypeError):  # derived: set by the state's rules only
+        e.state.buried_oxide_enabled = True
