@@ -14,7 +14,7 @@ from typing import Any
 from sub60.app.compare_panes import ComparisonPanel
 from sub60.app.messages import solver_summary
 from sub60.app.pin_jobs import PinJobs
-from sub60.app.pinning import Pin, PinError
+from sub60.app.pinning import Pin, PinBoard, PinError
 from sub60.app.plots import ExplorerFigures
 from sub60.app.snapshot import PinnedDesign, TransferSweep
 from sub60.app.state import ExplorerState
@@ -45,7 +45,7 @@ class PinView:
             lambda slot: post(self.unpin, slot))
 
     @property
-    def board(self):
+    def board(self) -> PinBoard:
         """The session's `app.pinning.PinBoard`."""
         return self.work.board
 

@@ -20,6 +20,7 @@ from sub60.app.compare_panes import SnapshotControls
 from sub60.app.controls import WIDGET_WIDTH
 from sub60.app.jobs import SessionJobs
 from sub60.app.messages import MessageBoard, html_escape, solver_summary
+from sub60.app.pinning import PinBoard
 from sub60.app.session_files import (
     FileRefused,
     OpenedSnapshot,
@@ -46,7 +47,7 @@ class SnapshotView:
     apply : puts a snapshot's settings and its parameter values into the page.
     """
 
-    def __init__(self, jobs: SessionJobs, board, messages: MessageBoard, css: Sequence[str],
+    def __init__(self, jobs: SessionJobs, board: PinBoard, messages: MessageBoard, css: Sequence[str],
                  post: Callable[..., None],
                  apply: Callable[[SnapshotSettings, dict], None]) -> None:
         self.jobs = jobs

@@ -30,8 +30,10 @@ from sub60.app.sharing import (
     LINKED_PARAMETERS,
     QUERY_KEYS,
     query_from_state,
+    query_of_search,
     settings_from_state,
     state_updates,
+    updated_search,
     updates_from_query,
 )
 from sub60.app.snapshot import (
@@ -227,6 +229,17 @@ def test_link_round_trip_and_readable_values():
             assert got == want, name
         else:
             assert np.allclose(got, want, rtol=1e-9), name
+
+
+def test_page_address_keeps_other_keys_and_writes_changed_settings_as_text():
+    st = ExplorerState(source_doping_log10_cm3=math.log10(4e19))
+    search = updated_search("?utm_source=mail&body_nm=7", st, {"source_doping_log10_cm3"})
+    assert query_of_search(search) == {"utm_source": "mail", "body_nm": "7",
+                                       "src_cm3": "4e19"}  # not 4e+19
+    everything = query_of_search(updated_search("", st))
+    assert everything == query_from_state(st)
+    st.vg_sweep_V = (-0.2, 0.5)
+    assert "vg_sweep=-0.2,0.5" in updated_search(search, st, {"vg_sweep_V"})
 
 
 def test_bad_link_values_are_ignored_by_name_and_the_others_apply():
