@@ -74,7 +74,7 @@ def bands_record(bp) -> dict:
 
 
 def cmd_bands(a) -> str:
-    from sub60.physics.simulate import solve_bias
+    from sub60.physics import solve_bias
 
     d = load_design(a.design, a.set)
     bp = solve(solve_bias, d, single_voltage(parse_sweep(a.vg, "vg"), "vg"),
@@ -91,7 +91,7 @@ def cmd_bands(a) -> str:
 
 
 def cmd_transfer(a) -> str:
-    from sub60.physics.simulate import transfer_curve
+    from sub60.physics import transfer_curve
 
     d = load_design(a.design, a.set)
     vg = parse_sweep(a.vg, "vg")
@@ -109,7 +109,7 @@ def cmd_transfer(a) -> str:
 
 
 def cmd_output(a) -> str:
-    from sub60.physics.simulate import output_curve
+    from sub60.physics import output_curve
 
     d = load_design(a.design, a.set)
     vgs = parse_sweep(a.vg, "vg")

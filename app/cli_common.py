@@ -68,7 +68,7 @@ def parse_value(text: str) -> Any:
 
 def warn_design(design) -> list[str]:
     """Print the model's warnings about a design on stderr; returns them."""
-    from sub60.physics.simulate import design_warnings
+    from sub60.physics import design_warnings
 
     notes = list(design_warnings(design))
     for n in notes:
@@ -100,7 +100,7 @@ def load_design(path: str | None, overrides: list[str]):
 
 def apply_overrides(data: dict[str, Any], overrides: list[str]):
     """A Design from a field dictionary with `--set name=value` overrides applied."""
-    from sub60.physics.design import Design
+    from sub60.physics import Design
 
     data = dict(data)
     for item in overrides:
@@ -123,7 +123,7 @@ def single_voltage(values: np.ndarray, name: str) -> float:
 
 def solve(fn: Callable[..., Any], *args: Any) -> Any:
     """Call a physics function; a bad value or a failed solve becomes a UsageError."""
-    from sub60.physics.poisson import SolverError
+    from sub60.physics import SolverError
 
     try:
         return fn(*args)

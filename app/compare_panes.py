@@ -5,8 +5,8 @@
 its key settings, its figures of merit and, for a pinned design, the difference from the
 present one; each pinned row has its name (editable: rename), "Load" (into the controls)
 and "Unpin". `SnapshotControls` is the sidebar card with the demo designs, the snapshot
-download and the snapshot upload. Both call back into `app.layout.Explorer`, which owns
-the state and the work.
+download and the snapshot upload. Both call back into their views (`app.pin_view`,
+`app.snapshot_view`), which own the actions.
 """
 
 from __future__ import annotations
@@ -23,16 +23,13 @@ from sub60.app.pinning import (
     comparison_cells_html,
     comparison_header_html,
 )
+from sub60.app.session_files import UPLOAD_LIMIT_BYTES
 
 #: Width of the name column and of the cells of a comparison row [px] (style.css sets
 #: each cell's width; these add up to the same).
 NAME_WIDTH = 168
 CELLS_WIDTH = 920
 BUTTON_WIDTH = 64
-#: Largest snapshot the page opens [bytes]; the file travels base64-encoded over the
-#: page's websocket (20 MB per message by default), so the page takes less than the file
-#: format's own limit (`app.snapshot.MAX_SNAPSHOT_BYTES`).
-UPLOAD_LIMIT_BYTES = 10 * 1024 * 1024
 #: The download button in the colour of the page's primary buttons (FileDownload does not
 #: pass its own colour setting on in this Panel version).
 _PRIMARY_BUTTON = (

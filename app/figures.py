@@ -24,9 +24,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from sub60.app.theme import PALETTE, output_ramp
-from sub60.physics.design import Design
-from sub60.physics.metrics import thermionic_limit_mV_per_dec
-from sub60.physics.simulate import BiasPoint, OutputCurve, TransferCurve
+from sub60.physics import BiasPoint, Design, OutputCurve, TransferCurve, thermionic_limit_mV_per_dec
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure

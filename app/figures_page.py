@@ -16,7 +16,7 @@ import numpy as np
 from sub60.app.figures import caption_text, labelled_curves, positive_only, reference_anchor
 from sub60.app.theme import PALETTE as COLOURS
 from sub60.app.theme import output_ramp
-from sub60.physics.metrics import thermionic_limit_mV_per_dec
+from sub60.physics import thermionic_limit_mV_per_dec
 
 if TYPE_CHECKING:
     from sub60.app.snapshot_check import SnapshotResults

@@ -1,18 +1,114 @@
-"""Messages shown to the user: one place that turns an exception into a short line.
+"""Messages shown to the user: the page's header, EOT line and error messages, and the
+one place that turns an exception into a short line (`short_error`, also used by the
+command line). No Panel, no Bokeh.
 
-The physics reports a failed solve as `SolverError`, whose ``summary`` field is the
-short message (its ``history`` field holds the residuals). Nothing here parses message
-text beyond taking the first line.
+`MessageBoard` holds the page's error messages by kind ('design', 'bias', 'sweep',
+'link', 'snapshot'); its ``text`` parameter is what the page's error area shows, so a
+view only links a pane to it. The message builders name the control a user has to
+change (its label, from `app.state.label_of`), never an internal field name.
 """
 
 from __future__ import annotations
 
+import html
+
+import param
+
+from sub60.app.state import ExplorerState, label_of
+
+CAUTION = ("Design-exploration model with stated approximations (semiclassical charge with "
+           "confinement-shifted band edges, WKB tunnelling, ballistic transport, no traps) — "
+           "not calibrated TCAD; decisions rest on local practice and measurement.")
+TITLE = "sub60 · tunnel FET explorer"
+
+
+def html_escape(text: str) -> str:
+    """Text for the page's Markdown/HTML messages (no markup from a file gets through)."""
+    return html.escape(text, quote=True).replace("*", "&#42;").replace("_", "&#95;")
+
 
 def short_error(exc: BaseException) -> str:
     """A one-line message for an exception: its ``summary`` field when it has one (e.g.
-    `SolverError`), else the first line of its text (the type name when it has none)."""
+    `SolverError`, whose ``history`` field holds the residuals), else the first line of
+    its text (the type name when it has none). Nothing parses message text further."""
     summary = getattr(exc, "summary", None)
     if isinstance(summary, str) and summary.strip():
         return summary.strip()
     text = str(exc).strip()
     return text.splitlines()[0] if text else type(exc).__name__
+
+
+def value_message(exc: Exception) -> str:
+    """The message of an invalid setting, naming its control when the error names a field."""
+    text = str(exc)
+    field, sep, rest = text.partition(":")
+    if sep and " " not in field.strip():
+        return (f"**{label_of(field.strip())}**: {rest.strip()}. The plots show the last "
+                "valid result.")
+    return f"**Invalid setting**: {text}. The plots show the last valid result."
+
+
+def solver_message(exc: Exception, changed: str | None, what: str) -> str:
+    """The message of a solve that did not converge after the change of a setting."""
+    setting = label_of(changed) if changed else "the design"
+    return (f"**The solver did not converge for the {what}** after the change of "
+            f"**{setting}**. Try a smaller step or another value. The plots show the "
+            f"last converged result.\n\n<small>{short_error(exc)}</small>")
+
+
+def header_html(state: ExplorerState) -> str:
+    """Title, one-line design summary (with its EOT) and the model's caution."""
+    try:
+        d = state.design()
+        eot = d.eot_nm
+        layout = "double gate" if d.gate_layout == "double" else "single gate"
+        src = "p+" if d.source_type == "p" else "n+"
+        summary = (f"{d.material} body {d.body_thickness_nm:g} nm · L<sub>g</sub> "
+                   f"{d.gate_length_nm:g} nm · {layout} · {d.oxide} {d.oxide_thickness_nm:g} nm "
+                   f"(EOT {eot:.2f} nm) · {src} source {d.source_doping_cm3:.1e} cm⁻³ · "
+                   f"{d.temperature_K:g} K")
+    except ValueError:
+        summary = "invalid design — see the message below"
+    return (f'<div class="title">{TITLE}</div>'
+            f'<div class="summary">{summary}</div>'
+            f'<div class="caution">{CAUTION}</div>')
+
+
+def eot_html(state: ExplorerState) -> str:
+    """The equivalent oxide thickness of the gate stack [nm], under its controls."""
+    try:
+        d = state.design()
+        eps = d.gate_permittivity
+        return (f'<div class="eot">EOT = {d.eot_nm:.2f} nm '
+                f'(ε<sub>r</sub> = {eps:g})</div>')
+    except ValueError as exc:
+        return f'<div class="eot">EOT unavailable: {exc}</div>'
+
+
+class MessageBoard(param.Parameterized):
+    """The error messages of one page, by kind; ``text`` is what the page shows."""
+
+    text = param.String(default="", constant=True,
+                        doc="Every present message, one paragraph each ('' when none).")
+
+    def __init__(self, **params) -> None:
+        super().__init__(**params)
+        self._messages: dict[str, str] = {}
+
+    def set(self, kind: str, message: str) -> None:
+        """Show (or replace) the message of one kind."""
+        self._messages[kind] = message
+        self._publish()
+
+    def clear(self, kind: str) -> None:
+        """Take the message of one kind away (nothing when there is none)."""
+        if self._messages.pop(kind, None) is not None:
+            self._publish()
+
+    def has(self, kind: str) -> bool:
+        """Whether a message of this kind is shown."""
+        return kind in self._messages
+
+    def _publish(self) -> None:
+        with param.parameterized.edit_constant(self):
+            self.text = "\n\n".join(self._messages.values())

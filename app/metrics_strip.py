@@ -9,7 +9,7 @@ import html
 from collections.abc import Sequence
 
 from sub60.app.theme import METRIC_HEADINGS, STRIP_METRICS, format_metric
-from sub60.physics.metrics import thermionic_limit_mV_per_dec
+from sub60.physics import thermionic_limit_mV_per_dec
 
 #: (metric name, column heading) of the metrics strip: `app.theme.STRIP_METRICS`, whose
 #: Ioff is the current at the Ioff target.

@@ -26,8 +26,7 @@ from sub60.app.theme import (
     format_doping,
     format_metric,
 )
-from sub60.physics.design import Design
-from sub60.physics.metrics import Metrics
+from sub60.physics import Design, Metrics
 
 MAX_PINS = MAX_PINNED
 MINUS = "\u2212"

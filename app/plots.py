@@ -52,7 +52,7 @@ from sub60.app.theme import (
     format_current,
     format_ratio,
 )
-from sub60.physics.metrics import thermionic_limit_mV_per_dec
+from sub60.physics import thermionic_limit_mV_per_dec
 
 __all__ = ["COLOURS", "MAP_PALETTE", "METRIC_COLUMNS", "N_OUTPUT_SLOTS", "N_PIN_SLOTS",
            "OUTPUT_COLOURS", "PIN_COLOURS", "TOOLS", "ExplorerFigures", "format_current",

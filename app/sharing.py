@@ -20,14 +20,15 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
+from urllib.parse import parse_qsl, urlencode
 
-from sub60.app.snapshot import (
+from sub60.app.snapshot_fields import SnapshotError
+from sub60.app.snapshot_schema import (
     BiasSettings,
     MetricSettings,
     ModelSettings,
     OutputSweep,
     PinnedDesign,
-    SnapshotError,
     SnapshotSettings,
     TransferSweep,
 )
@@ -307,3 +308,22 @@ def updates_from_query(query: Mapping[str, str], base: ExplorerState | None = No
             default = base if base is not None else ExplorerState()
             setattr(scratch, culprit, getattr(default, culprit))
     return updates, problems
+
+
+def query_of_search(search: str) -> dict[str, str]:
+    """The query of a page address's search part ('?a=1&b=2' -> {'a': '1', 'b': '2'})."""
+    return dict(parse_qsl(search.lstrip("?"), keep_blank_values=True))
+
+
+def updated_search(search: str, state: ExplorerState,
+                   names: Iterable[str] | None = None) -> str:
+    """The search part of the page address with the linked settings of ``state`` (all of
+    them, or those among ``names``) written in; other keys are kept as they are.
+
+    The query is written as text here: reading the present values back as numbers and
+    spelling them out again would change them (4e19 -> 4e+19).
+    """
+    chosen = [n for n in LINKED_PARAMETERS if names is None or n in names]
+    query = query_of_search(search)
+    query.update(query_from_state(state, chosen))
+    return "?" + urlencode(query, safe=",")

@@ -32,7 +32,7 @@ from sub60.app.tables import (
     spectrum_table,
     transfer_table,
 )
-from sub60.physics.simulate import BiasPoint, OutputCurve, Simulator, TransferCurve
+from sub60.physics import BiasPoint, OutputCurve, Simulator, TransferCurve
 
 
 # ---------------------------------------------------------------------- CSV members

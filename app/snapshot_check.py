@@ -15,9 +15,7 @@ import math
 from dataclasses import dataclass
 
 from sub60.app.snapshot_schema import CurveRecord, SnapshotSettings, StoredResults, TransferSweep
-from sub60.physics.design import Design
-from sub60.physics.metrics import Metrics
-from sub60.physics.simulate import BiasPoint, OutputCurve, Simulator, TransferCurve
+from sub60.physics import BiasPoint, Design, Metrics, OutputCurve, Simulator, TransferCurve
 
 #: Agreement of recomputed and stored figures of merit: relative, with an absolute floor
 #: in the metric's own unit for values that cross zero (e.g. a threshold voltage near 0 V).

@@ -22,7 +22,7 @@ from typing import Any
 from sub60.app.snapshot_check import METRIC_REL_TOL, Difference, verify_snapshot
 from sub60.app.snapshot_fields import SnapshotError
 from sub60.app.snapshot_schema import SETTINGS_MEMBER, SnapshotSettings, sub60_version
-from sub60.physics.simulate import Simulator
+from sub60.physics import Simulator
 
 #: Largest snapshot accepted (zip or bare settings.json) [bytes].
 MAX_SNAPSHOT_BYTES = 20 * 1024 * 1024

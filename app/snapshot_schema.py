@@ -28,9 +28,7 @@ from sub60.app.snapshot_fields import (
     read_number,
     show_value,
 )
-from sub60.physics import TUNNELLING_MODELS
-from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
-from sub60.physics.metrics import Metrics
+from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_V, Design, Metrics, check_bias
 
 # ---------------------------------------------------------------------- constants
 SCHEMA_NAME = "sub60.snapshot"

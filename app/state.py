@@ -6,8 +6,10 @@ log10 of their magnitude so that their sliders move in decades. `design()` turns
 settings into a validated `Design` (or raises the design's own `ValueError`), and the
 sweep helpers give the voltages of the transfer and output curves.
 
-The widgets of the page are made from these parameters (`app.layout`), so the two stay
-linked both ways; nothing here imports Panel or Bokeh.
+The enable rules of the page (which controls apply to the present settings) are derived,
+read-only parameters kept up to date by `param.depends`, so a view only links them to its
+widgets. The widgets of the page are made from these parameters (`app.controls`), so the
+two stay linked both ways; nothing here imports Panel or Bokeh.
 """
 
 from __future__ import annotations
@@ -18,8 +20,7 @@ from typing import Any
 import numpy as np
 import param
 
-from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design
-from sub60.physics.materials import DIELECTRICS, SEMICONDUCTORS
+from sub60.physics import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, dielectrics, semiconductors
 
 _DEFAULT = Design()
 
@@ -70,7 +71,7 @@ class ExplorerState(param.Parameterized):
 
     # ---------------------------------------------------------------- material, temperature
     material = param.Selector(
-        default=_DEFAULT.material, objects=list(SEMICONDUCTORS), label="Body semiconductor",
+        default=_DEFAULT.material, objects=list(semiconductors()), label="Body semiconductor",
         doc="Body semiconductor (a record of physics.materials).")
     temperature_K = param.Number(
         default=_DEFAULT.temperature_K, bounds=_bounds("temperature_K"), step=1.0,
@@ -132,7 +133,7 @@ class ExplorerState(param.Parameterized):
 
     # ---------------------------------------------------------------- gate stack
     oxide = param.Selector(
-        default=_DEFAULT.oxide, objects=[*DIELECTRICS, "custom"], label="Gate dielectric",
+        default=_DEFAULT.oxide, objects=[*dielectrics(), "custom"], label="Gate dielectric",
         doc="Gate dielectric, or 'custom' with its own permittivity.")
     oxide_thickness_nm = param.Number(
         default=_DEFAULT.oxide_thickness_nm, bounds=_bounds("oxide_thickness_nm"), step=0.05,
@@ -165,6 +166,20 @@ class ExplorerState(param.Parameterized):
     # ---------------------------------------------------------------- display
     presentation = param.Boolean(default=False, label="Presentation mode",
                                  doc="Hide the controls and enlarge text and lines.")
+
+    # ---------------------------------------------------------------- enable rules (derived)
+    custom_permittivity_enabled = param.Boolean(
+        default=False, constant=True, precedence=-1,
+        doc="The custom permittivity applies (oxide='custom'); derived, read-only.")
+    buried_oxide_enabled = param.Boolean(
+        default=False, constant=True, precedence=-1,
+        doc="The buried oxide applies (single gate); derived, read-only.")
+
+    @param.depends("oxide", "gate_layout", watch=True, on_init=True)
+    def _update_enable_rules(self) -> None:
+        with param.parameterized.edit_constant(self):
+            self.param.update(custom_permittivity_enabled=self.oxide == "custom",
+                              buried_oxide_enabled=self.gate_layout == "single")
 
     # ------------------------------------------------------------------ conversions
     def design(self) -> Design:
@@ -217,7 +232,7 @@ class ExplorerState(param.Parameterized):
     def reset(self) -> None:
         """Every setting back to its default, in one update."""
         defaults = {name: p.default for name, p in self.param.objects("existing").items()
-                    if name != "name" and name != "presentation"}
+                    if name not in ("name", "presentation") and not p.constant}
         self.param.update(**defaults)
 
     @property

@@ -12,103 +12,59 @@ column names are those of the snapshot files (a stored format, see `app.snapshot
 - `pinned_table`   long format ``pin_index_1``, ``vg_V``, ``id_uA_per_um``, ``ss_mV_per_dec``;
 - `output_table`   ``vd_V`` and one ``id_uA_per_um_at_vg_<Vg>_V`` column per gate voltage.
 
-`csv_text` writes any such mapping: optional ``# name = value`` comment lines, one header
-row, then rows with 10 significant digits; a non-finite value is an empty field. UI-free:
-numpy and the physics result classes only.
+`csv_text` (the physics' one writer) writes any such mapping: optional ``# name = value``
+comment lines, one header row, then rows with 10 significant digits; a non-finite value
+is an empty field. UI-free: numpy and the physics result classes only.
 """
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping, Sequence
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from numpy.typing import ArrayLike
 
+from sub60.physics import csv_text, output_columns
+
 if TYPE_CHECKING:
-    from sub60.physics.simulate import BiasPoint, OutputCurve, TransferCurve
+    from sub60.physics import BiasPoint, OutputCurve, TransferCurve
 
 Table = dict[str, np.ndarray]
 
-_BAD_NAME_CHARS = set(',"\r\n')
-
-
-def _fmt(x: float) -> str:
-    return f"{x:.10g}" if math.isfinite(x) else ""
-
-
-def csv_text(columns: Mapping[str, ArrayLike], comments: Mapping[str, Any] | None = None) -> str:
-    """CSV text of a table.
-
-    Parameters
-    ----------
-    columns : mapping of str to array
-        column name (with its unit, e.g. ``vg_V``) -> values; all of one length.
-    comments : mapping or None
-        written first as ``# name = value`` lines (None values as empty text).
-
-    Returns
-    -------
-    str
-        comment lines, the header row, one row per index; numbers with 10 significant
-        digits, non-finite numbers as empty fields; lines end in ``\\n``.
-    """
-    names = list(columns)
-    for name in names:
-        if not name or _BAD_NAME_CHARS & set(name):
-            raise ValueError(f"column name {name!r}: must be non-empty, without comma, quote "
-                             "or line break")
-    data = [np.asarray(columns[n], float).ravel() for n in names]
-    if len({c.size for c in data}) > 1:
-        raise ValueError("columns of different lengths: "
-                         + ", ".join(f"{n} ({c.size})" for n, c in zip(names, data, strict=True)))
-    lines = [f"# {k} = {'' if v is None else v}" for k, v in (comments or {}).items()]
-    lines.append(",".join(names))
-    lines.extend(",".join(_fmt(float(x)) for x in row) for row in zip(*data, strict=True))
-    return "\n".join(lines) + "\n"
+__all__ = ["Table", "bands_table", "csv_bytes", "csv_text", "output_table",
+           "pinned_table", "spectrum_table", "transfer_table"]
 
 
 def csv_bytes(columns: Mapping[str, ArrayLike], comments: Mapping[str, Any] | None = None
               ) -> bytes:
-    """`csv_text` encoded as UTF-8."""
+    """`sub60.physics.csv_text` (the one CSV writer) encoded as UTF-8."""
     return csv_text(columns, comments).encode("utf-8")
 
 
 # ---------------------------------------------------------------------- curves as tables
 def bands_table(bp: BiasPoint) -> Table:
-    """Band diagram at one bias: x [nm], every subband edge [eV], Fermi levels [eV]."""
-    x = np.asarray(bp.x_nm, float)
-    out: Table = {"x_nm": x}
-    for lab, edge in zip(bp.conduction_labels, bp.conduction_eV, strict=True):
-        out[f"{lab}_eV"] = np.asarray(edge, float)
-    for lab, edge in zip(bp.valence_labels, bp.valence_eV, strict=True):
-        out[f"{lab}_eV"] = np.asarray(edge, float)
-    if len(out) != 1 + len(bp.conduction_labels) + len(bp.valence_labels):
-        raise ValueError("bands: two subbands share a label")
-    out["efs_eV"] = np.full(x.shape, bp.efs_eV)
-    out["efd_eV"] = np.full(x.shape, bp.efd_eV)
-    return out
+    """Band diagram at one bias: x [nm], every subband edge [eV], Fermi levels [eV]
+    (`BiasPoint.band_columns`)."""
+    return bp.band_columns()
 
 
 def spectrum_table(bp: BiasPoint) -> Table:
     """Energy [eV], spectral current J(E) [uA/um per eV], transmission at zero
-    transverse momentum [-]."""
-    s = bp.spectrum
-    return {"energy_eV": np.asarray(s.energy_eV, float),
-            "current_density_uA_per_um_per_eV": np.asarray(s.current_density, float),
-            "transmission_1": np.asarray(s.transmission, float)}
+    transverse momentum [-] (`Spectrum.columns`)."""
+    return bp.spectrum.columns()
 
 
 def transfer_table(main: TransferCurve, twin: TransferCurve | None = None) -> Table:
     """Gate voltage [V], current [uA/um] and point swing [mV/dec] of the design and, when
-    given, of its twin (on the same gate voltages)."""
-    out: Table = {"vg_V": np.asarray(main.vg_V, float),
-                  "design_id_uA_per_um": np.asarray(main.id_uA_per_um, float),
-                  "design_ss_mV_per_dec": np.asarray(main.ss_mV_per_dec, float)}
+    given, of its twin (on the same gate voltages), from `TransferCurve.columns`."""
+    cols = main.columns()
+    out: Table = {"vg_V": cols["vg_V"], "design_id_uA_per_um": cols["id_uA_per_um"],
+                  "design_ss_mV_per_dec": cols["ss_mV_per_dec"]}
     if twin is not None:
-        out["twin_id_uA_per_um"] = np.asarray(twin.id_uA_per_um, float)
-        out["twin_ss_mV_per_dec"] = np.asarray(twin.ss_mV_per_dec, float)
+        tw = twin.columns()
+        out["twin_id_uA_per_um"] = tw["id_uA_per_um"]
+        out["twin_ss_mV_per_dec"] = tw["ss_mV_per_dec"]
     return out
 
 
@@ -117,28 +73,16 @@ def pinned_table(curves: Sequence[TransferCurve]) -> Table:
     current [uA/um], point swing [mV/dec]."""
     idx, vg, cur, ss = [], [], [], []
     for i, c in enumerate(curves):
-        idx.append(np.full(np.shape(c.vg_V), i + 1.0))
-        vg.append(np.asarray(c.vg_V, float))
-        cur.append(np.asarray(c.id_uA_per_um, float))
-        ss.append(np.asarray(c.ss_mV_per_dec, float))
-    cols = [np.concatenate(a) if a else np.array([]) for a in (idx, vg, cur, ss)]
-    return dict(zip(("pin_index_1", "vg_V", "id_uA_per_um", "ss_mV_per_dec"), cols, strict=True))
-
-
-def output_column(vg_V: float) -> str:
-    """Name of the output-curve column at one gate voltage, e.g. 'id_uA_per_um_at_vg_0.3_V'."""
-    return f"id_uA_per_um_at_vg_{vg_V:g}_V"
+        cols = c.columns()
+        idx.append(np.full(cols["vg_V"].shape, i + 1.0))
+        vg.append(cols["vg_V"])
+        cur.append(cols["id_uA_per_um"])
+        ss.append(cols["ss_mV_per_dec"])
+    data = [np.concatenate(a) if a else np.array([]) for a in (idx, vg, cur, ss)]
+    return dict(zip(("pin_index_1", "vg_V", "id_uA_per_um", "ss_mV_per_dec"), data, strict=True))
 
 
 def output_table(curves: Sequence[OutputCurve]) -> Table:
-    """Drain voltage [V] (of the first curve) and one current column [uA/um] per gate
-    voltage; ValueError when two gate voltages print alike."""
-    if not curves:
-        raise ValueError("output curves: none to tabulate")
-    out: Table = {"vd_V": np.asarray(curves[0].vd_V, float)}
-    for c in curves:
-        name = output_column(c.vg_V)
-        if name in out:
-            raise ValueError(f"output curves: gate voltage {c.vg_V:g} V appears twice")
-        out[name] = np.asarray(c.id_uA_per_um, float)
-    return out
+    """Drain voltage [V] and one current column [uA/um] per gate voltage
+    (`sub60.physics.output_columns`); ValueError when two gate voltages print alike."""
+    return output_columns(curves)

@@ -14,7 +14,7 @@ import math
 
 import numpy as np
 
-from sub60.physics.metrics import Metrics
+from sub60.physics import Metrics
 
 # ---------------------------------------------------------------------- palettes
 #: Named colours of every figure (page and export): subband families light to dark

@@ -250,7 +250,10 @@ def output_columns(curves: Sequence[OutputCurve]) -> dict[str, np.ndarray]:
             raise ValueError("curves: every output curve must share the drain voltages")
     out = {"vd_V": vd}
     for c in curves:
-        out[f"id_uA_per_um_at_vg_{c.vg_V:g}_V"] = np.asarray(c.id_uA_per_um, float)
+        name = f"id_uA_per_um_at_vg_{c.vg_V:g}_V"
+        if name in out:
+            raise ValueError(f"curves: gate voltage {c.vg_V:g} V appears twice")
+        out[name] = np.asarray(c.id_uA_per_um, float)
     return out
 
 

@@ -42,8 +42,15 @@ def table(columns: Mapping[str, Any]) -> Any:
     return pd.DataFrame(cols)
 
 
+_BAD_NAME_CHARS = set(',"\r\n')
+
+
 def _checked(columns: Mapping[str, Any]) -> Columns:
     cols = {str(k): np.asarray(v) for k, v in columns.items()}
+    for name in cols:
+        if not name or _BAD_NAME_CHARS & set(name):
+            raise ValueError(f"column name {name!r}: must be non-empty, without comma, quote "
+                             "or line break")
     lengths = {v.shape for v in cols.values()}
     if any(len(s) != 1 for s in lengths) or len(lengths) > 1:
         raise ValueError("table columns must be 1-D and of one length; got shapes "

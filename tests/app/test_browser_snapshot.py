@@ -18,7 +18,8 @@ from urllib.parse import parse_qs, urlsplit
 import numpy as np
 import pytest
 
-from sub60.app.snapshot import PRESET_DIR, import_snapshot
+from sub60.app.presets import PRESET_DIR
+from sub60.app.snapshot_reader import import_snapshot
 from tests.app.conftest import open_app
 
 pytestmark = pytest.mark.browser

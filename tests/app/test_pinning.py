@@ -16,7 +16,6 @@ import re
 import numpy as np
 import pytest
 
-from sub60.app.compare_panes import UPLOAD_LIMIT_BYTES
 from sub60.app.layout import Explorer
 from sub60.app.pinning import (
     MAX_PINS,
@@ -26,21 +25,21 @@ from sub60.app.pinning import (
     PinError,
     difference_text,
 )
+from sub60.app.presets import list_presets
+from sub60.app.session_files import UPLOAD_LIMIT_BYTES
 from sub60.app.sharing import (
     LINKED_PARAMETERS,
     QUERY_KEYS,
     query_from_state,
+    query_of_search,
     settings_from_state,
     state_updates,
+    updated_search,
     updates_from_query,
 )
-from sub60.app.snapshot import (
-    MAX_NAME_CHARS,
-    SnapshotError,
-    TransferSweep,
-    import_snapshot,
-    list_presets,
-)
+from sub60.app.snapshot_fields import SnapshotError
+from sub60.app.snapshot_reader import import_snapshot
+from sub60.app.snapshot_schema import MAX_NAME_CHARS, TransferSweep
 from sub60.app.state import COMPUTED_PARAMETERS, ExplorerState
 from sub60.physics.design import Design
 from sub60.physics.simulate import Simulator
@@ -137,7 +136,7 @@ def test_pinned_design_rows_and_overlays_equal_physics():
                                    - present_m.ss_min_mV_per_dec.value, abs=0.05)
     assert diffs["body_thickness_nm"] == "\u22122 nm"
     # the same numbers are in the page's table (data-value hooks)
-    cells = e.compare.rows[0].cells.object
+    cells = e.pin_view.compare.rows[0].cells.object
     shown = float(re.search(r'data-row="pin-0" data-col="ss_min_mV_per_dec" '
                             r'data-value="([^"]+)"', cells).group(1))
     assert shown == pytest.approx(pinned_m.ss_min_mV_per_dec.value, rel=1e-9)
@@ -162,8 +161,8 @@ def test_rename_unpin_and_load_into_controls():
     b = e.pin_present("long gate")
     assert (a.slot, b.slot) == (0, 1)
     assert e.rename_pin(0, "long gate") is None  # taken: refused, old name kept
-    assert "Not renamed" in e.compare.message.object
-    assert e.compare.rows[0].name.value == "Design A"
+    assert "Not renamed" in e.pin_view.compare.message.object
+    assert e.pin_view.compare.rows[0].name.value == "Design A"
     e.rename_pin(0, "short gate")
     assert e.figures.pin_band_items[0].label["value"] == "short gate"
     e.load_pin(0)
@@ -172,9 +171,9 @@ def test_rename_unpin_and_load_into_controls():
     e.unpin(1)
     assert not e.figures.pin_transfer_items[1].visible
     assert len(e.figures.pin_transfer_sources[1].data["vg"]) == 0
-    assert [p.name for p in e.pins.pins] == ["short gate"] and 1 not in e.compare.rows
+    assert [p.name for p in e.pins.pins] == ["short gate"] and 1 not in e.pin_view.compare.rows
     e.unpin(0)
-    assert not e.figures.pin_legends["band"].visible and not e.compare.header.visible
+    assert not e.figures.pin_legends["band"].visible and not e.pin_view.compare.header.visible
 
 
 # ------------------------------------------------------------------ settings and links
@@ -229,6 +228,17 @@ def test_link_round_trip_and_readable_values():
             assert np.allclose(got, want, rtol=1e-9), name
 
 
+def test_page_address_keeps_other_keys_and_writes_changed_settings_as_text():
+    st = ExplorerState(source_doping_log10_cm3=math.log10(4e19))
+    search = updated_search("?utm_source=mail&body_nm=7", st, {"source_doping_log10_cm3"})
+    assert query_of_search(search) == {"utm_source": "mail", "body_nm": "7",
+                                       "src_cm3": "4e19"}  # not 4e+19
+    everything = query_of_search(updated_search("", st))
+    assert everything == query_from_state(st)
+    st.vg_sweep_V = (-0.2, 0.5)
+    assert "vg_sweep=-0.2,0.5" in updated_search(search, st, {"vg_sweep_V"})
+
+
 def test_bad_link_values_are_ignored_by_name_and_the_others_apply():
     updates, problems = updates_from_query({
         "body_nm": "abc", "vd": "99", "material": "Unobtainium", "vg_sweep": "0.5,0.1",
@@ -275,7 +285,7 @@ def test_export_then_import_restores_controls_pins_and_verifies():
     assert "recomputed figures of merit match the stored ones" in report
     assert "report ok" in report
     stored = settings.stored.design.metrics
-    shown = b._curves["tfet"].metrics.to_dict()
+    shown = b.jobs.curves["tfet"].metrics.to_dict()
     for k, v in stored.items():
         assert (v is None) == (shown[k] is None), k
         if v is not None:
@@ -290,7 +300,7 @@ def test_a_file_that_cannot_be_used_leaves_the_page_unchanged(monkeypatch):
     assert not e.import_bytes(b'{"schema": "sub60.snapshot", "schema_version": 99}', "new.json")
     assert "new.json not opened" in e.error_text and "future schema version" in e.error_text
     calls = []
-    monkeypatch.setattr("sub60.app.layout.import_snapshot", lambda *a, **k: calls.append(a))
+    monkeypatch.setattr("sub60.app.session_files.import_snapshot", lambda *a, **k: calls.append(a))
     assert not e.import_bytes(b"PK" + bytes(UPLOAD_LIMIT_BYTES), "big.zip")
     assert calls == [], "a file over the limit must be refused before it is parsed"
     assert "over the page's limit of 10 MB" in e.error_text

@@ -32,19 +32,17 @@ from scipy import constants
 
 from sub60.app import figures
 from sub60.app.cli import main
-from sub60.app.snapshot import (
-    METRIC_REL_TOL,
+from sub60.app.presets import list_presets, load_preset
+from sub60.app.snapshot_bundle import export_snapshot
+from sub60.app.snapshot_check import METRIC_REL_TOL, verify_snapshot
+from sub60.app.snapshot_fields import SnapshotError
+from sub60.app.snapshot_reader import import_snapshot
+from sub60.app.snapshot_schema import (
     MODEL_CAUTION,
     OutputSweep,
     PinnedDesign,
-    SnapshotError,
     SnapshotSettings,
     TransferSweep,
-    export_snapshot,
-    import_snapshot,
-    list_presets,
-    load_preset,
-    verify_snapshot,
 )
 from sub60.physics.design import Design
 from sub60.physics.metrics import Metrics
@@ -211,7 +209,7 @@ def test_captions_state_the_key_settings():
 def test_transfer_reference_is_the_thermionic_limit():
     """The reference line of the transfer figure has the slope (ln 10) kT/q from
     scipy.constants, and its legend says so."""
-    from sub60.app.snapshot import compute_results
+    from sub60.app.snapshot_check import compute_results
 
     quick = SnapshotSettings(transfer_sweep=TransferSweep(-0.3, 0.5, 9, 0.3),
                              output_sweep=OutputSweep((0.3,), 0.0, 0.3, 3))

@@ -162,7 +162,7 @@ def test_design_change_recomputes_transfer_curves_and_metrics_as_physics():
         data = e.figures.transfer_sources[key].data
         np.testing.assert_allclose(data["vg"], VG_SWEEP)
         np.testing.assert_allclose(data["id"], tc.id_uA_per_um, rtol=1e-5)
-        shown = e._curves[key].metrics
+        shown = e.jobs.curves[key].metrics
         for name in tc.metrics.METRIC_NAMES:
             want, got = getattr(tc.metrics, name).value, getattr(shown, name).value
             assert (want is None) == (got is None), name
@@ -308,3 +308,48 @@ def test_loopback_detection_and_origins():
     assert allowed_origins("10.0.0.5", 7000) == ["10.0.0.5:7000"]
     assert loopback_warning("127.0.0.1", 5006) is None
     assert "not a loopback" in loopback_warning("0.0.0.0", 5006)
+
+
+def test_sessions_share_no_bokeh_model():
+    """A Bokeh model belongs to one document: two pages rendered into two documents
+    must not hold a single model in common (slider formatters included)."""
+    from bokeh.document import Document
+
+    roots = []
+    for e in (_fresh(), _fresh()):
+        doc = Document()
+        root = e.__panel__().get_root(doc)
+        doc.add_root(root)
+        roots.append({m.id: m for m in doc.models})
+    shared = set(roots[0]) & set(roots[1])
+    assert not shared, sorted(type(roots[0][i]).__name__ for i in shared)
+    formats = [{m.id for m in r.values() if type(m).__name__ == "CustomJSTickFormatter"}
+               for r in roots]
+    assert len(formats[0]) == len(formats[1]) == 4  # Ioff and three dopings, one per page
+
+
+def test_design_message_goes_when_the_combination_is_fixed():
+    """The design's own rule (physics.design): the gate starts at least 1 nm inside the
+    source, source_length_nm - gate_source_offset_nm >= 1."""
+    e = _fresh()
+    e.state.param.update(source_length_nm=5.0, gate_source_offset_nm=4.5)
+    assert e.alert.visible and "Gate–source overlap" in e.error_text
+    assert e.snapshots.download.disabled and e.pin_view.compare.button.disabled
+    e.state.gate_source_offset_nm = 0.0
+    assert not e.alert.visible and e.error_text == ""
+    assert not e.snapshots.download.disabled and not e.pin_view.compare.button.disabled
+    assert e.figures.map_source.data["dw"][0] > 0  # the plots follow the fixed design
+
+
+def test_enable_rules_follow_the_state():
+    e = _fresh()
+    permittivity, box = (e.widgets[n] for n in ("oxide_permittivity",
+                                                 "buried_oxide_thickness_nm"))
+    assert permittivity.disabled and box.disabled
+    e.state.param.update(oxide="custom", gate_layout="single")
+    assert e.state.custom_permittivity_enabled and e.state.buried_oxide_enabled
+    assert not permittivity.disabled and not box.disabled
+    e.state.reset()
+    assert permittivity.disabled and box.disabled
+    with pytest.raises(TypeError):  # derived: set by the state's rules only
+        e.state.buried_oxide_enabled = True

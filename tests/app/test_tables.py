@@ -25,7 +25,7 @@ def test_csv_text_layout():
 
 
 def test_csv_text_refuses_ragged_columns_and_bad_names():
-    with pytest.raises(ValueError, match="different lengths"):
+    with pytest.raises(ValueError, match="one length"):
         csv_text({"a_V": [1.0, 2.0], "b_V": [1.0]})
     with pytest.raises(ValueError, match="column name"):
         csv_text({"a,b_V": [1.0]})

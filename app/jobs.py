@@ -1,0 +1,358 @@
+"""The background work of one explorer session: workers, generations, caches (no UI).
+
+`SessionJobs` owns the session's simulator and its three single-thread workers:
+
+* the *bias* worker solves one bias point (band diagram, J(E), T(E), 2D map);
+* the *sweep* worker computes the transfer curves (tunnel FET and MOSFET twin) and the
+  output curves, streaming partial transfer curves at most every `STREAM_INTERVAL_S`;
+* the *io* worker exports and verifies snapshots.
+
+Every request takes a new *generation* number; a result whose generation is no longer
+the newest is dropped, and a running sweep stops at its next point (the solver's
+``cancelled`` callback). The sweep yields to a pending bias point, so that the band
+diagram stays quick while curves are computing.
+
+Results reach the page through ``post(fn, *args)``: the view passes a function that runs
+``fn`` on its document's event loop; by default it runs at once in the calling thread.
+What is done with a result is the listener's (`JobListener`) business; generations,
+caches and the rule of what is stale are decided here. With ``background=False`` every
+job runs at once in the calling thread (tests, scripts).
+"""
+
+from __future__ import annotations
+
+import logging
+import math
+import threading
+import time
+from collections.abc import Callable
+from concurrent.futures import Future, ThreadPoolExecutor
+from dataclasses import dataclass
+from typing import Any, Protocol
+
+import numpy as np
+
+from sub60.app.state import ExplorerState
+from sub60.physics import Design, SolverError
+
+#: Sweep points solved at once across all sessions (one per core): sweeps of many
+#: sessions interleave point by point, and single bias points never wait for them.
+SWEEP_SLOTS = threading.BoundedSemaphore(2)
+OUTPUT_REST_S = 0.3  # quiet time after a gate-voltage move before the output curves [s]
+STREAM_INTERVAL_S = 0.2  # least time between two partial transfer curves sent to the page [s]
+WORKERS = ("bias", "sweep", "io")
+
+log = logging.getLogger("sub60.app")
+
+Post = Callable[..., None]
+
+
+def post_now(fn: Callable[..., Any], *args: Any) -> None:
+    """Run a result's delivery at once (no document: tests and scripts)."""
+    fn(*args)
+
+
+class JobListener(Protocol):
+    """What a view does with the results of `SessionJobs` (called through ``post``, only
+    for results of the newest generation)."""
+
+    def bias_solved(self, bp: Any) -> None: ...
+    def bias_failed(self, exc: Exception) -> None: ...
+    def sweep_started(self, transfer: bool, output: bool, total: int) -> None: ...
+    def transfer_partial(self, key: str, vg: np.ndarray, ids: np.ndarray, done: int,
+                         total: int) -> None: ...
+    def transfer_solved(self, key: str, tc: Any, request: SweepRequest, done: int,
+                        total: int) -> None: ...
+    def outputs_solved(self, curves: list, complete: bool, done: int, total: int) -> None: ...
+    def sweep_finished(self, seconds: float) -> None: ...
+    def sweep_failed(self, exc: Exception) -> None: ...
+
+
+@dataclass(frozen=True)
+class SweepRequest:
+    """Everything one sweep job computes (read from the state when it is requested)."""
+
+    generation: int
+    design: Design
+    transfer_key: tuple
+    output_key: tuple
+    vg_V: np.ndarray            # gate voltages of the transfer curves [V]
+    vd_V: float                 # drain voltage of the transfer curves [V]
+    ioff_uA_per_um: float       # off-current target [uA/um]
+    vdd_V: float                # supply for Ion [V]
+    output_vg_V: np.ndarray     # gate voltages of the output curves [V]
+    output_vd_V: np.ndarray     # drain voltages of the output curves [V]
+
+    @classmethod
+    def of(cls, state: ExplorerState, design: Design, generation: int) -> SweepRequest:
+        """The sweeps of the present settings (design already validated)."""
+        return cls(generation, design, state.transfer_key(), state.output_key(),
+                   state.sweep_gate_voltages(), float(state.vd_V),
+                   state.ioff_target_uA_per_um, float(state.vdd_V),
+                   state.output_gate_voltages(), state.output_drain_voltages())
+
+
+def log_failure(future: Future) -> None:
+    """Log a background job that raised (a job must never fail silently)."""
+    exc = future.exception() if not future.cancelled() else None
+    if exc is not None:
+        log.error("sub60: background job failed", exc_info=exc)
+
+
+class SessionJobs:
+    """Workers, generations and last results of one session.
+
+    Parameters
+    ----------
+    state : the session's settings (read when a job is requested).
+    simulator : a `physics.simulate.Simulator` owned by this session.
+    listener : receives the results (see `JobListener`).
+    background : compute on worker threads (server) or at once (tests).
+    """
+
+    def __init__(self, state: ExplorerState, simulator: Any, listener: JobListener,
+                 background: bool = True) -> None:
+        self.state = state
+        self.simulator = simulator
+        self.listener = listener
+        self.background = background
+        self.post: Post = post_now
+        self.bias_generation = 0
+        self.sweep_generation = 0
+        self._lock = threading.Lock()
+        self._bias_pending = 0
+        self.bias_idle = threading.Event()
+        self.bias_idle.set()
+        self._sweep_requested = threading.Event()
+        self._pools: dict[str, ThreadPoolExecutor] = {}
+        if background:
+            self._pools = {k: ThreadPoolExecutor(1, thread_name_prefix=f"sub60-{k}")
+                           for k in WORKERS}
+        # last complete results, and what they are of
+        self.last_bias: Any = None
+        self.curves: dict[str, Any] = {}        # key ('tfet', 'twin') -> TransferCurve
+        self.outputs: list = []                  # complete output curves
+        self.shown_transfer: tuple | None = None
+        self.shown_output: tuple | None = None
+        self.tfet_key: tuple | None = None       # transfer key of curves['tfet']
+
+    # ------------------------------------------------------------------ workers
+    def submit(self, worker: str, fn: Callable[..., Any], *args: Any) -> None:
+        """Run fn(*args) on a worker ('bias', 'sweep', 'io'), or at once."""
+        if not self.background:
+            fn(*args)
+            return
+        self._pools[worker].submit(fn, *args).add_done_callback(log_failure)
+
+    def executor(self, worker: str) -> ThreadPoolExecutor | None:
+        """The thread pool of a worker (None without background work)."""
+        return self._pools.get(worker)
+
+    def close(self) -> None:
+        """Stop this session's work (supersede everything, drop the workers)."""
+        self.bias_generation += 1
+        self.sweep_generation += 1
+        self.bias_idle.set()
+        for pool in self._pools.values():
+            pool.shutdown(wait=False, cancel_futures=True)
+
+    def use_simulator(self, simulator: Any) -> None:
+        """Another numerical model: nothing solved with the old one is reused."""
+        self.simulator = simulator
+        self.last_bias = None  # another grid: no warm start from the old one
+        self.shown_transfer = self.shown_output = self.tfet_key = None
+
+    def transfer_stale(self) -> bool:
+        """Whether the shown curves are not those of the present (valid) settings."""
+        try:
+            return self.state.transfer_key() != self.shown_transfer
+        except ValueError:
+            return False  # an invalid design: the strip keeps the last valid result
+
+    def present_curve(self) -> Any:
+        """The tunnel-FET transfer curve of the present settings, None if not computed."""
+        tc = self.curves.get("tfet")
+        try:
+            fresh = tc is not None and self.tfet_key == self.state.transfer_key()
+        except ValueError:
+            return None
+        return tc if fresh else None
+
+    # ------------------------------------------------------------------ bias point
+    def solve_bias_now(self, design: Design) -> None:
+        """First band diagram of the session, in the calling thread, delivered at once."""
+        self.bias_generation += 1
+        self._bias_job(self.bias_generation, design, float(self.state.vg_V),
+                       float(self.state.vd_V), post=False)
+
+    def request_bias(self, design: Design) -> None:
+        """Solve the present bias point on the bias worker (supersedes older requests)."""
+        self.bias_generation += 1
+        g = self.bias_generation
+        with self._lock:
+            self._bias_pending += 1
+            self.bias_idle.clear()
+        self.submit("bias", self._bias_job, g, design, float(self.state.vg_V),
+                    float(self.state.vd_V))
+
+    def _bias_job(self, g: int, design: Design, vg: float, vd: float, post: bool = True) -> None:
+        outcome: tuple = (_nothing,)
+        try:
+            if g == self.bias_generation:  # else a newer bias point is queued: skip this one
+                shown = self.last_bias
+                # continue from the bias point on screen, the nearest solved bias
+                start = (shown.electrostatics if shown is not None and shown.design == design
+                         else None)
+                bp = self.simulator.solve_bias(design, vg, vd, initial=start)
+                outcome = (self._deliver_bias, g, bp)
+        except (ValueError, SolverError) as exc:
+            outcome = (self._deliver_bias_failure, g, exc)
+        finally:
+            if post:  # the sweep worker resumes once the page holds this result
+                self.post(self._bias_finished, *outcome)
+        if not post:
+            outcome[0](*outcome[1:])
+
+    def _bias_finished(self, fn: Callable[..., None], *args: Any) -> None:
+        try:
+            fn(*args)
+        finally:
+            with self._lock:
+                self._bias_pending = max(0, self._bias_pending - 1)
+                if self._bias_pending == 0:
+                    self.bias_idle.set()
+
+    def _deliver_bias(self, g: int, bp: Any) -> None:
+        if g != self.bias_generation:
+            return
+        self.last_bias = bp
+        self.listener.bias_solved(bp)
+
+    def _deliver_bias_failure(self, g: int, exc: Exception) -> None:
+        if g == self.bias_generation:
+            self.listener.bias_failed(exc)
+
+    # ------------------------------------------------------------------ sweeps
+    def request_sweeps(self, design: Design) -> None:
+        """Transfer and output curves of the present settings, on the sweep worker; only
+        what differs from the shown curves is computed."""
+        self.sweep_generation += 1
+        self._sweep_requested.set()
+        self.submit("sweep", self._sweep_job,
+                    SweepRequest.of(self.state, design, self.sweep_generation))
+
+    def _current(self, g: int) -> bool:
+        return g == self.sweep_generation
+
+    def _sweep_job(self, job: SweepRequest) -> None:
+        g = job.generation
+
+        def superseded() -> bool:
+            self.bias_idle.wait(timeout=1.0)  # let a pending band diagram go first
+            return not self._current(g)
+
+        need_transfer = job.transfer_key != self.shown_transfer
+        need_output = job.output_key != self.shown_output
+        if self.background and need_output and not need_transfer:
+            # a gate-voltage move: wait for the slider to rest before the output curves,
+            # so that the next band diagram does not queue behind them
+            end = time.perf_counter() + OUTPUT_REST_S
+            while self._current(g) and (left := end - time.perf_counter()) > 0:
+                self._sweep_requested.wait(left)  # a newer request ends the rest at once
+                self._sweep_requested.clear()
+            if not self._current(g):
+                return
+        n_t = 2 * job.vg_V.size if need_transfer else 0
+        n_o = job.output_vg_V.size * job.output_vd_V.size if need_output else 0
+        total = max(n_t + n_o, 1)
+        done = 0
+        t0 = time.perf_counter()
+        self.post(self._deliver, g, self.listener.sweep_started, need_transfer, need_output,
+                  total)
+        sim = self.simulator
+        try:
+            if need_transfer:
+                for key, device in (("tfet", job.design), ("twin", job.design.twin())):
+                    progress = self._progress_callback(g, key, device, job, done, total)
+                    tc = sim.transfer_curve(
+                        device, job.vg_V, job.vd_V, ioff_target_uA_per_um=job.ioff_uA_per_um,
+                        vdd_V=job.vdd_V, progress=progress, cancelled=superseded,
+                        slots=SWEEP_SLOTS)
+                    done += job.vg_V.size
+                    self.post(self._deliver_transfer, g, key, tc, job, done, total)
+            if need_output:
+                curves: list = []
+                for vg in job.output_vg_V:
+                    if superseded():
+                        return
+                    curves.append(sim.output_curve(job.design, float(vg), job.output_vd_V,
+                                                   slots=SWEEP_SLOTS))
+                    done += job.output_vd_V.size
+                    self.post(self._deliver_outputs, g, list(curves), job, done, total)
+            self.post(self._deliver, g, self.listener.sweep_finished, time.perf_counter() - t0)
+        except InterruptedError:
+            return
+        except (ValueError, SolverError) as exc:
+            self.post(self._deliver, g, self.listener.sweep_failed, exc)
+
+    def _progress_callback(self, g: int, key: str, device: Design, job: SweepRequest,
+                           done: int, total: int) -> Callable[[int, int], None]:
+        vgs, vd = job.vg_V, job.vd_V
+        last = [time.perf_counter()]
+
+        def progress(i: int, n: int) -> None:
+            now = time.perf_counter()
+            if not self._current(g) or i == n or now - last[0] < STREAM_INTERVAL_S:
+                return  # the complete curve follows at once; partial ones at most 5 per second
+            last[0] = now
+            # points already solved are in the simulator's cache: no new solve here
+            ids = np.array([self.simulator.solve_bias(device, float(v), vd).current_uA_per_um
+                            for v in vgs[:i]])
+            self.post(self._deliver, g, self.listener.transfer_partial, key, vgs[:i].copy(),
+                      ids, done + i, total)
+
+        return progress
+
+    def _deliver(self, g: int, fn: Callable[..., None], *args: Any) -> None:
+        if self._current(g):
+            fn(*args)
+
+    def _deliver_transfer(self, g: int, key: str, tc: Any, job: SweepRequest, done: int,
+                          total: int) -> None:
+        if not self._current(g):
+            return
+        self.curves[key] = tc
+        if key == "tfet":
+            self.tfet_key = job.transfer_key
+        else:
+            self.shown_transfer = job.transfer_key
+        self.listener.transfer_solved(key, tc, job, done, total)
+
+    def _deliver_outputs(self, g: int, curves: list, job: SweepRequest, done: int,
+                         total: int) -> None:
+        if not self._current(g):
+            return
+        complete = len(curves) == job.output_vg_V.size
+        if complete:
+            self.outputs = curves
+            self.shown_output = job.output_key
+        self.listener.outputs_solved(curves, complete, done, total)
+
+    def limit_anchor(self, ioff_uA_per_um: float) -> tuple[float | None, float | None]:
+        """(Vg [V], Id [uA/um]) where the thermionic-limit line of the transfer plot
+        starts: the tunnel FET's Voff at the Ioff target, else its lowest current."""
+        tc = self.curves.get("tfet")
+        if tc is None:
+            return None, None
+        m = tc.metrics
+        if m.voff_V.value is not None:
+            return m.voff_V.value, ioff_uA_per_um
+        ids = np.where(tc.id_uA_per_um > 0, tc.id_uA_per_um, np.inf)
+        i = int(np.argmin(ids))
+        if math.isfinite(ids[i]):
+            return float(tc.vg_V[i]), float(ids[i])
+        return None, None
+
+
+def _nothing() -> None:
+    return None

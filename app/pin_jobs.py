@@ -1,0 +1,168 @@
+"""The results of the pinned designs of one session: what is solved, what is stale (no UI).
+
+Each pinned design shows its band edges at the present bias and its transfer curve (with
+its own sweep, the present Ioff target and Vdd). `PinJobs` remembers which results the
+plots hold (by a key of everything they depend on), asks the session's workers for what
+is missing — band edges on the bias worker after the band diagram, transfer curves on the
+sweep worker after the present curves — and drops a result that a newer request, a
+rename, an unpin or a change of the settings made stale.
+"""
+
+from __future__ import annotations
+
+from typing import Any, Protocol
+
+from sub60.app.jobs import SWEEP_SLOTS, SessionJobs
+from sub60.app.pinning import Pin, PinBoard, comparison_rows
+from sub60.physics import SolverError
+
+
+class PinListener(Protocol):
+    """What a view does with the results of the pinned designs (through ``post``)."""
+
+    def pin_band_solved(self, pin: Pin, bp: Any) -> None: ...
+    def pin_curve_solved(self, pin: Pin, tc: Any) -> None: ...
+    def pin_failed(self, pin: Pin, exc: Exception) -> None: ...
+
+
+class PinJobs:
+    """Results of the pinned designs of one session.
+
+    Parameters
+    ----------
+    jobs : the session's workers, generations and present results.
+    board : the session's pinned designs.
+    listener : receives the results (see `PinListener`).
+    """
+
+    def __init__(self, jobs: SessionJobs, board: PinBoard, listener: PinListener) -> None:
+        self.jobs = jobs
+        self.board = board
+        self.listener = listener
+        self.generation = 0
+        self.curves: dict[int, Any] = {}       # slot -> TransferCurve
+        self._curve_keys: dict[int, tuple] = {}
+        self._band_keys: dict[int, tuple] = {}
+
+    # ------------------------------------------------------------------ keys
+    def curve_key(self, pin: Pin) -> tuple:
+        """Everything a pinned transfer curve and its metrics depend on."""
+        st = self.jobs.state
+        return (pin.design, pin.sweep, st.ioff_target_uA_per_um, float(st.vdd_V))
+
+    def band_key(self, pin: Pin) -> tuple:
+        """Everything a pinned design's band edges depend on."""
+        st = self.jobs.state
+        return (pin.design, float(st.vg_V), float(st.vd_V))
+
+    def fresh_curve(self, pin: Pin) -> Any:
+        """The pin's transfer curve when it is of the present settings, else None."""
+        tc = self.curves.get(pin.slot)
+        return tc if tc is not None and self._curve_keys.get(pin.slot) == self.curve_key(
+            pin) else None
+
+    # ------------------------------------------------------------------ bookkeeping
+    def adopt_present(self, pin: Pin) -> tuple[Any, Any]:
+        """A new pin takes the present results when they are its own (no new solve);
+        returns (bias point or None, transfer curve or None) to draw at once."""
+        curve = self.jobs.present_curve()
+        if curve is not None:
+            self.curves[pin.slot] = curve
+            self._curve_keys[pin.slot] = self.curve_key(pin)
+        bp = self.jobs.last_bias
+        bias = bp if bp is not None and (bp.design, bp.vg_V, bp.vd_V) == self.band_key(
+            pin) else None
+        if bias is not None:
+            self._band_keys[pin.slot] = self.band_key(pin)
+        return bias, curve
+
+    def forget(self, slot: int | None = None) -> None:
+        """Drop the results of one slot (of every slot when None)."""
+        for d in (self.curves, self._curve_keys, self._band_keys):
+            if slot is None:
+                d.clear()
+            else:
+                d.pop(slot, None)
+
+    # ------------------------------------------------------------------ work
+    def request(self) -> None:
+        """Solve what the pinned designs still miss at the present settings."""
+        if not len(self.board):
+            return
+        pins = self.board.pins
+        st = self.jobs.state
+        bands = [p for p in pins if self._band_keys.get(p.slot) != self.band_key(p)]
+        curves = [p for p in pins if self._curve_keys.get(p.slot) != self.curve_key(p)]
+        if bands:
+            self.jobs.submit("bias", self._bands_job, self.jobs.bias_generation, bands,
+                             float(st.vg_V), float(st.vd_V))
+        if curves:
+            self.generation += 1
+            self.jobs.submit("sweep", self._curves_job, self.generation, curves,
+                             st.ioff_target_uA_per_um, float(st.vdd_V))
+
+    def _bands_job(self, g: int, pins: list[Pin], vg: float, vd: float) -> None:
+        for pin in pins:
+            if g != self.jobs.bias_generation:  # a newer bias point: these edges are stale
+                return
+            try:
+                bp = self.jobs.simulator.solve_bias(pin.design, vg, vd)
+            except (ValueError, SolverError) as exc:
+                self.jobs.post(self._deliver_failure, pin, exc)
+                continue
+            self.jobs.post(self._deliver_band, pin, (pin.design, vg, vd), bp)
+
+    def _curves_job(self, g: int, pins: list[Pin], ioff: float, vdd: float) -> None:
+        def superseded() -> bool:
+            self.jobs.bias_idle.wait(timeout=1.0)  # the band diagram goes first
+            return g != self.generation
+
+        for pin in pins:
+            try:
+                tc = self.jobs.simulator.transfer_curve(
+                    pin.design, pin.sweep.gate_voltages(), pin.sweep.vd_V,
+                    ioff_target_uA_per_um=ioff, vdd_V=vdd, cancelled=superseded,
+                    slots=SWEEP_SLOTS)
+            except InterruptedError:
+                return
+            except (ValueError, SolverError) as exc:
+                self.jobs.post(self._deliver_failure, pin, exc)
+                continue
+            self.jobs.post(self._deliver_curve, pin, (pin.design, pin.sweep, ioff, vdd), tc)
+
+    def _deliver_band(self, pin: Pin, key: tuple, bp: Any) -> None:
+        now = self.board.get(pin.slot)
+        if now is None or key != self.band_key(now):
+            return
+        self._band_keys[pin.slot] = key
+        self.listener.pin_band_solved(now, bp)
+
+    def _deliver_curve(self, pin: Pin, key: tuple, tc: Any) -> None:
+        now = self.board.get(pin.slot)
+        if now is None or key != self.curve_key(now):
+            return
+        self.curves[pin.slot] = tc
+        self._curve_keys[pin.slot] = key
+        self.listener.pin_curve_solved(now, tc)
+
+    def _deliver_failure(self, pin: Pin, exc: Exception) -> None:
+        if self.board.get(pin.slot) is not None:
+            self.listener.pin_failed(pin, exc)
+
+    # ------------------------------------------------------------------ table
+    def comparison(self) -> list:
+        """The rows of the comparison table (`app.pinning.ComparisonRow`): the present
+        design (figures of merit None while its curve is computing), then each pin."""
+        st = self.jobs.state
+        try:
+            design = st.design()
+        except ValueError:
+            present = None
+        else:
+            tc = self.jobs.present_curve()
+            present = (design, float(st.vd_V), tc.metrics if tc is not None else None)
+        pinned = []
+        for p in self.board.pins:
+            tc = self.fresh_curve(p)
+            pinned.append((p, tc.metrics if tc is not None else None))
+        return comparison_rows(present, pinned)

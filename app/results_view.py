@@ -1,0 +1,146 @@
+"""The live results of the explorer page: plots, metrics strip, progress and status.
+
+`ResultsView` draws what the session's jobs (`app.jobs.SessionJobs`) deliver: the band
+diagram and its companions for a bias point, transfer curves as they stream in, output
+curves, the thermionic-limit line, the figures of merit; a failed solve becomes a message
+naming the setting last changed, and the plots keep (or get back) the last good result.
+It never computes physics and never decides what is stale: only newest results reach it.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from typing import Any
+
+import numpy as np
+import panel as pn
+
+from sub60.app.jobs import SessionJobs, SweepRequest
+from sub60.app.messages import MessageBoard, solver_message, value_message
+from sub60.app.plots import ExplorerFigures, metrics_html
+from sub60.app.state import ExplorerState
+from sub60.physics import SolverError
+
+
+class ResultsView:
+    """Figures and result panes of one session (a `app.jobs.JobListener`).
+
+    Parameters
+    ----------
+    state : the session's settings.
+    messages : the page's error messages.
+    css : stylesheets of the page's HTML panes.
+    """
+
+    def __init__(self, state: ExplorerState, messages: MessageBoard, css: Sequence[str]) -> None:
+        self.state = state
+        self.messages = messages
+        self.jobs: SessionJobs | None = None  # set by the page once the jobs exist
+        self.last_changed: str | None = None  # setting named by a solver-failure message
+        self.figures = ExplorerFigures()
+        css = list(css)
+        self.metrics = pn.pane.HTML("", css_classes=["metrics-strip"], stylesheets=css,
+                                    sizing_mode="stretch_width", margin=(0, 8))
+        self.progress = pn.indicators.Progress(value=0, max=100, width=170, height=14,
+                                               bar_color="info", css_classes=["sweep-progress"],
+                                               margin=(6, 8, 0, 8))
+        self.status = pn.pane.HTML("Starting…", css_classes=["sweep-status"], stylesheets=css,
+                                   width=260, margin=(0, 8))
+        self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 2))
+                           for k, fig in self.figures.figures.items()}
+        p = self.plot_panes
+        self.plots = pn.Column(
+            pn.Row(p["band"], p["spectrum"], p["transmission"], p["transfer"]),
+            pn.Row(p["map"], p["output"], p["swing"]),
+            margin=(0, 4))
+        self.show_metrics(stale=True)
+
+    # ------------------------------------------------------------------ texts
+    def show_metrics(self, stale: bool) -> None:
+        """The figures of merit of the last complete curves (dimmed when stale)."""
+        curves = self.jobs.curves if self.jobs is not None else {}
+        first = ("Tunnel FET (p+ source)" if self.state.source_type == "p"
+                 else "MOSFET (n+ source)")
+        rows = [("tfet", first, getattr(curves.get("tfet"), "metrics", None)),
+                ("twin", "MOSFET twin (n+ source)", getattr(curves.get("twin"), "metrics", None))]
+        body = metrics_html(rows, self.state.temperature_K, self.state.vdd_V)
+        self.metrics.object = f'<div class="{"stale" if stale else "fresh"}">{body}</div>'
+
+    def _failure_message(self, exc: Exception, what: str) -> str:
+        if isinstance(exc, SolverError):
+            return solver_message(exc, self.last_changed, what)
+        return value_message(exc)
+
+    def _set_progress(self, done: int, total: int) -> None:
+        self.progress.value = int(round(100 * min(done, total) / max(total, 1)))
+        self.status.object = f"Computing curves… {min(done, total)}/{total} points"
+
+    # ------------------------------------------------------------------ bias point
+    def bias_solved(self, bp: Any) -> None:
+        self.figures.show_bias(bp)
+        self.messages.clear("bias")
+
+    def bias_failed(self, exc: Exception) -> None:
+        self.messages.set("bias", self._failure_message(exc, "band diagram"))
+
+    # ------------------------------------------------------------------ sweeps
+    def sweep_started(self, transfer: bool, output: bool, total: int) -> None:
+        self.progress.value = 0
+        parts = [p for p, on in (("transfer curves", transfer), ("output curves", output)) if on]
+        if not parts:
+            return
+        self.status.object = f"Computing {' and '.join(parts)}…"
+        if transfer:
+            self.show_metrics(stale=True)
+            self.figures.transfer.title.text = "Transfer curve · updating…"
+        if output:
+            self.figures.output.title.text = f"{self.figures.output_title} · updating…"
+
+    def transfer_partial(self, key: str, vg: np.ndarray, ids: np.ndarray, done: int,
+                         total: int) -> None:
+        self.figures.show_transfer(key, vg, ids)
+        self._set_progress(done, total)
+
+    def transfer_solved(self, key: str, tc: Any, request: SweepRequest, done: int,
+                        total: int) -> None:
+        self.figures.show_transfer(key, tc.vg_V, tc.id_uA_per_um, tc.btbt_uA_per_um,
+                                   tc.thermionic_uA_per_um, tc.ss_mV_per_dec)
+        self._set_progress(done, total)
+        if key == "twin":  # both curves are complete
+            self.figures.transfer.title.text = "Transfer curve"
+            self.messages.clear("sweep")
+            self.show_metrics(stale=False)
+            anchor_vg, anchor_id = self.jobs.limit_anchor(request.ioff_uA_per_um)
+            self.figures.show_limits(request.design.temperature_K, request.ioff_uA_per_um,
+                                     anchor_vg, anchor_id, float(request.vg_V[-1]))
+
+    def outputs_solved(self, curves: list, complete: bool, done: int, total: int) -> None:
+        self.figures.show_outputs(curves)
+        self._set_progress(done, total)
+        if complete:
+            self.figures.output.title.text = self.figures.output_title
+
+    def sweep_finished(self, seconds: float) -> None:
+        self.progress.value = 100
+        self.status.object = f"Curves up to date ({seconds:.1f} s)"
+        self.messages.clear("sweep")
+
+    def sweep_failed(self, exc: Exception) -> None:
+        self.messages.set("sweep", self._failure_message(exc, "curves"))
+        # put back the last complete curves over any partly streamed ones
+        for key, tc in self.jobs.curves.items():
+            self.figures.show_transfer(key, tc.vg_V, tc.id_uA_per_um, tc.btbt_uA_per_um,
+                                       tc.thermionic_uA_per_um, tc.ss_mV_per_dec)
+        self.figures.show_outputs(self.jobs.outputs)
+        self.figures.transfer.title.text = "Transfer curve (last good result)"
+        self.figures.output.title.text = "Output curves (last good result)"
+        self.show_metrics(stale=False)
+        self.status.object = "Curves not updated — see the message"
+
+    # ------------------------------------------------------------------ presentation
+    def set_presentation(self, on: bool) -> None:
+        """Larger plots and text for a projector (style.css has the 'presenting' class)."""
+        self.figures.set_presentation(on)
+        for pane in (self.metrics, self.status):
+            pane.css_classes = [c for c in pane.css_classes if c != "presenting"] + (
+                ["presenting"] if on else [])

@@ -1,0 +1,221 @@
+"""The session's job controller without a browser: stale results never reach the page.
+
+`SessionJobs` runs on real worker threads here; the page's event loop is played by a
+queue that the test drains (what ``doc.add_next_tick_callback`` does in a served page).
+The simulator is a stand-in that records its calls and can be held at a point, so the
+order of events is fixed by the test, not by timing. The rule checked is the controller's
+own (no source): a result is shown only when no newer request was made since.
+"""
+
+from __future__ import annotations
+
+import queue
+import threading
+from types import SimpleNamespace
+
+import numpy as np
+import pytest
+
+from sub60.app.jobs import SessionJobs
+from sub60.app.pin_jobs import PinJobs
+from sub60.app.pinning import PinBoard
+from sub60.app.snapshot_schema import TransferSweep
+from sub60.app.state import ExplorerState
+from sub60.physics.design import Design
+
+TIMEOUT_S = 30.0  # bound on waiting for a worker (a hang fails the test instead of it)
+
+
+class FakeSimulator:
+    """Records calls; ``hold`` makes the next solve wait until ``release``."""
+
+    resolution = "fast"
+    model = "wkb"
+
+    def __init__(self) -> None:
+        self.bias_calls: list[tuple] = []
+        self.curve_calls: list[tuple] = []
+        self.output_calls: list[float] = []
+        self._gate = threading.Event()
+        self._gate.set()
+        self.waiting = threading.Event()
+
+    def hold(self) -> None:
+        self._gate.clear()
+        self.waiting.clear()
+
+    def release(self) -> None:
+        self._gate.set()
+
+    def _pause(self) -> None:
+        self.waiting.set()
+        assert self._gate.wait(TIMEOUT_S), "the test never released the solver"
+
+    def solve_bias(self, design, vg, vd, initial=None):
+        self.bias_calls.append((design, vg, vd))
+        self._pause()
+        return SimpleNamespace(design=design, vg_V=vg, vd_V=vd, electrostatics=None,
+                               current_uA_per_um=1.0)
+
+    def transfer_curve(self, device, vg, vd, ioff_target_uA_per_um, vdd_V, progress=None,
+                       cancelled=None, slots=None):
+        self.curve_calls.append((device, float(vd), ioff_target_uA_per_um))
+        self._pause()
+        if cancelled is not None and cancelled():
+            raise InterruptedError
+        ids = np.ones_like(vg)
+        metrics = SimpleNamespace(voff_V=SimpleNamespace(value=None))
+        return SimpleNamespace(vg_V=vg, id_uA_per_um=ids, metrics=metrics, design=device)
+
+    def output_curve(self, design, vg, vds, slots=None):
+        self.output_calls.append(vg)
+        return SimpleNamespace(vg_V=vg, vd_V=vds)
+
+
+class Recorder:
+    """A listener that records what would be drawn."""
+
+    def __init__(self) -> None:
+        self.events: list[tuple] = []
+
+    def __getattr__(self, name):
+        if name.startswith("_"):
+            raise AttributeError(name)
+        return lambda *args: self.events.append((name, *args))
+
+    def named(self, name: str) -> list[tuple]:
+        return [e for e in self.events if e[0] == name]
+
+
+class Page:
+    """The document's event loop: posted deliveries wait in a queue until drained."""
+
+    def __init__(self) -> None:
+        self.queue: queue.Queue = queue.Queue()
+
+    def post(self, fn, *args) -> None:
+        self.queue.put((fn, args))
+
+    def drain(self) -> int:
+        n = 0
+        while True:
+            try:
+                fn, args = self.queue.get_nowait()
+            except queue.Empty:
+                return n
+            fn(*args)
+            n += 1
+
+
+def _session(background: bool = True):
+    state = ExplorerState(vg_points=11)
+    sim, listener, page = FakeSimulator(), Recorder(), Page()
+    jobs = SessionJobs(state, sim, listener, background=background)
+    if background:
+        jobs.post = page.post
+    return state, sim, listener, page, jobs
+
+
+def _settle(jobs: SessionJobs, *workers: str) -> None:
+    """Wait until the workers ran everything queued so far (one thread each, FIFO)."""
+    for w in workers:
+        jobs.executor(w).submit(lambda: None).result(timeout=TIMEOUT_S)
+
+
+def test_a_bias_point_superseded_while_solving_is_never_drawn():
+    state, sim, listener, page, jobs = _session()
+    design = state.design()
+    sim.hold()
+    jobs.request_bias(design)            # generation 1 starts solving and waits
+    assert sim.waiting.wait(TIMEOUT_S)
+    state.vg_V = 0.1
+    jobs.request_bias(design)            # generation 2, queued behind it
+    state.vg_V = 0.2
+    jobs.request_bias(design)            # generation 3: generation 2 is skipped unsolved
+    assert not jobs.bias_idle.is_set()   # the sweep worker would wait for the page
+    sim.release()
+    _settle(jobs, "bias")
+    page.drain()
+    assert [c[1] for c in sim.bias_calls] == [0.3, 0.2]  # generation 2 was never solved
+    shown = listener.named("bias_solved")
+    assert [e[1].vg_V for e in shown] == [0.2]           # only the newest is drawn
+    assert jobs.last_bias.vg_V == 0.2 and jobs.bias_idle.is_set()
+    jobs.close()
+
+
+def test_a_superseded_sweep_stops_and_sends_nothing():
+    state, sim, listener, page, jobs = _session()
+    sim.hold()
+    jobs.request_sweeps(state.design())              # generation 1 waits in its first curve
+    assert sim.waiting.wait(TIMEOUT_S)
+    state.body_thickness_nm = 9.0
+    jobs.request_sweeps(state.design())              # generation 2 supersedes it
+    sim.release()
+    _settle(jobs, "sweep")
+    page.drain()
+    # generation 1 asked for the tunnel FET only, then stopped at the cancelled check
+    bodies = [c[0].body_thickness_nm for c in sim.curve_calls]
+    assert bodies == [7.0, 9.0, 9.0]
+    started = listener.named("sweep_started")
+    assert len(started) == 1                         # generation 1's start was dropped
+    solved = listener.named("transfer_solved")
+    assert [(e[1], e[2].design.body_thickness_nm) for e in solved] == [("tfet", 9.0),
+                                                                       ("twin", 9.0)]
+    assert all(e[3].design.body_thickness_nm == 9.0 for e in solved)  # the request's design
+    assert jobs.shown_transfer == state.transfer_key() and not jobs.transfer_stale()
+    assert len(listener.named("sweep_finished")) == 1
+    jobs.close()
+
+
+def test_only_what_changed_is_recomputed():
+    state, sim, listener, _page, jobs = _session(background=False)
+    jobs.request_sweeps(state.design())
+    assert len(sim.curve_calls) == 2 and len(sim.output_calls) == 4
+    assert jobs.present_curve() is jobs.curves["tfet"]
+    state.vg_V = 0.4          # the transfer curves do not depend on Vg: outputs only
+    jobs.request_sweeps(state.design())
+    assert len(sim.curve_calls) == 2 and len(sim.output_calls) == 8
+    assert listener.named("sweep_started")[-1][1:] == (False, True, 4 * 13)
+    state.vdd_V = 0.4         # a metric setting: transfer curves again, outputs kept
+    assert jobs.transfer_stale() and jobs.present_curve() is None
+    jobs.request_sweeps(state.design())
+    assert len(sim.curve_calls) == 4 and len(sim.output_calls) == 8
+
+
+def test_results_in_flight_after_close_are_dropped():
+    state, sim, listener, page, jobs = _session()
+    sim.hold()
+    jobs.request_bias(state.design())
+    assert sim.waiting.wait(TIMEOUT_S)
+    pool = jobs.executor("bias")
+    jobs.close()
+    sim.release()
+    pool.shutdown(wait=True)  # the job in flight finishes and posts its result
+    assert page.drain() == 1
+    assert listener.named("bias_solved") == []
+
+
+def test_a_pinned_result_of_a_removed_or_changed_pin_is_dropped():
+    state, sim, _listener, page, jobs = _session()
+    board, pin_listener = PinBoard(), Recorder()
+    pins = PinJobs(jobs, board, pin_listener)
+    sweep = TransferSweep(-0.4, 0.6, 11, 0.3)
+    a = board.add("A", Design(body_thickness_nm=8.0), sweep)
+    b = board.add("B", Design(body_thickness_nm=9.0), sweep)
+    pins.request()
+    _settle(jobs, "bias", "sweep")
+    board.remove(a.slot)
+    pins.forget(a.slot)
+    state.ioff_log10_uA_per_um = -4.0  # B's curve was computed at the old Ioff target
+    page.drain()
+    bands = pin_listener.named("pin_band_solved")
+    assert [e[1].name for e in bands] == ["B"]       # A was unpinned meanwhile
+    assert pin_listener.named("pin_curve_solved") == []  # both curves are stale
+    pins.request()                                   # B's curve again, at the new target
+    _settle(jobs, "sweep")
+    page.drain()
+    curves = pin_listener.named("pin_curve_solved")
+    assert [e[1].name for e in curves] == ["B"]
+    assert sim.curve_calls[-1][2] == pytest.approx(1e-4)
+    assert pins.fresh_curve(b) is not None and pins.fresh_curve(a) is None
+    jobs.close()
