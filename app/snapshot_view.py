@@ -30,7 +30,8 @@ from sub60.app.session_files import (
     preset_labels,
     snapshot_of_session,
 )
-from sub60.app.snapshot import SnapshotSettings, verify_snapshot
+from sub60.app.snapshot_check import verify_snapshot
+from sub60.app.snapshot_schema import SnapshotSettings
 from sub60.physics import SolverError
 
 

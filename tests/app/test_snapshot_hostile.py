@@ -26,16 +26,15 @@ import zipfile
 
 import pytest
 
-from sub60.app.snapshot import (
+from sub60.app.snapshot_fields import SnapshotError
+from sub60.app.snapshot_reader import (
     MAX_MEMBERS,
     MAX_SETTINGS_BYTES,
     MAX_SNAPSHOT_BYTES,
     MAX_UNCOMPRESSED_BYTES,
-    PinnedDesign,
-    SnapshotError,
-    SnapshotSettings,
     import_snapshot,
 )
+from sub60.app.snapshot_schema import PinnedDesign, SnapshotSettings
 from sub60.physics.design import Design
 from sub60.physics.metrics import Metrics
 
@@ -276,7 +275,7 @@ def test_hostile_file_is_refused(no_writes, name, factory, fragments):
 
 
 def test_settings_made_in_code_are_validated_too():
-    from sub60.app.snapshot import TransferSweep
+    from sub60.app.snapshot_schema import TransferSweep
 
     with pytest.raises(SnapshotError, match=r"transfer_sweep\.vg_points: 2 outside"):
         SnapshotSettings(transfer_sweep=TransferSweep(vg_points=2))
