@@ -235,6 +235,20 @@ def test_physics_imports_no_app_and_no_ui():
         pytest.fail("physics imports the app or a UI library:\n  " + "\n  ".join(problems))
 
 
+def test_every_sub60_import_names_an_existing_module():
+    """``from sub60.X import ...`` and ``import sub60.X`` name a module that exists (a
+    lazy import of a removed module would fail only when its code path runs)."""
+    missing = []
+    for module, path in FILES.items():
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            names = ([node.module] if isinstance(node, ast.ImportFrom) and not node.level
+                     else [a.name for a in node.names] if isinstance(node, ast.Import) else [])
+            missing += [f"{module}:{node.lineno} -> {n}" for n in names
+                        if n and n.startswith("sub60") and n not in FILES]
+    if missing:
+        pytest.fail("imports of modules that do not exist:\n  " + "\n  ".join(missing))
+
+
 def test_app_uses_the_physics_public_api_only():
     """The app imports `sub60.physics` (its public API), never a physics submodule."""
     problems = [str(i) for m, imps in GRAPH.items() if m.startswith("sub60.app")
