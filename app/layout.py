@@ -35,7 +35,7 @@ from panel.io.state import set_curdoc
 
 from sub60.app.controls import SIDEBAR_WIDTH, Controls
 from sub60.app.jobs import SessionJobs
-from sub60.app.messages import CAUTION, TITLE, MessageBoard, header_html, value_message
+from sub60.app.messages import CAUTION, TITLE, MessageBoard, header_html, html_escape, value_message
 from sub60.app.pin_jobs import PinJobs
 from sub60.app.pin_view import PinView
 from sub60.app.pinning import Pin, PinBoard
@@ -120,7 +120,7 @@ class Explorer(pn.viewable.Viewer):
         if problems:
             explorer.messages.set("link", "**Some settings of the page address were ignored** "
                                   "(the defaults are shown for them):\n\n"
-                                  + "\n".join(f"- {p}" for p in problems))
+                                  + "\n".join(f"- {html_escape(p)}" for p in problems))
         return explorer
 
     # ------------------------------------------------------------------ page

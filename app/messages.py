@@ -43,9 +43,9 @@ def value_message(exc: Exception) -> str:
     text = str(exc)
     field, sep, rest = text.partition(":")
     if sep and " " not in field.strip():
-        return (f"**{label_of(field.strip())}**: {rest.strip()}. The plots show the last "
+        return (f"**{label_of(field.strip())}**: {html_escape(rest.strip())}. The plots show the last "
                 "valid result.")
-    return f"**Invalid setting**: {text}. The plots show the last valid result."
+    return f"**Invalid setting**: {html_escape(text)}. The plots show the last valid result."
 
 
 def solver_message(exc: Exception, changed: str | None, what: str) -> str:
@@ -53,7 +53,7 @@ def solver_message(exc: Exception, changed: str | None, what: str) -> str:
     setting = label_of(changed) if changed else "the design"
     return (f"**The solver did not converge for the {what}** after the change of "
             f"**{setting}**. Try a smaller step or another value. The plots show the "
-            f"last converged result.\n\n<small>{short_error(exc)}</small>")
+            f"last converged result.\n\n<small>{html_escape(short_error(exc))}</small>")
 
 
 def header_html(state: ExplorerState) -> str:
@@ -82,7 +82,7 @@ def eot_html(state: ExplorerState) -> str:
         return (f'<div class="eot">EOT = {d.eot_nm:.2f} nm '
                 f'(ε<sub>r</sub> = {eps:g})</div>')
     except ValueError as exc:
-        return f'<div class="eot">EOT unavailable: {exc}</div>'
+        return f'<div class="eot">EOT unavailable: {html_escape(str(exc))}</div>'
 
 
 class MessageBoard(param.Parameterized):

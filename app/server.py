@@ -3,23 +3,44 @@
 Every browser session gets a fresh `Explorer` (its own settings, simulator and workers),
 so sessions never share mutable state. The page's JavaScript and CSS come from this
 server (Bokeh and Panel serve their bundles locally); nothing is fetched from outside
-the machine. Only the served address may open the websocket.
+the machine.
+
+Safe to leave running while the same browser visits other sites (common practice for
+locally served web tools, no source):
+
+- **Host names**: every HTTP and websocket request must name the served address in its
+  ``Host`` header (127.0.0.1, localhost or [::1] with the port, plus ``--host``);
+  any other (a DNS-rebinding page) gets 403 before a handler runs. The websocket also
+  checks ``Origin`` (Bokeh's allow-list).
+- **Headers** on every response: a Content-Security-Policy (scripts only from this
+  server, inline ``<script>`` blocks of the page template only with the response's
+  nonce, no inline event handlers, no framing; eval only because Bokeh's JS tick
+  formatters need it), ``X-Frame-Options: DENY``,
+  ``X-Content-Type-Options: nosniff``, ``Referrer-Policy: no-referrer``.
+- **Signed session ids**: ids are signed with a secret drawn at start-up, so a link
+  cannot make two browsers join one chosen session.
+
+This module imports Panel only when a server is built, so the command line stays light.
 """
 
 from __future__ import annotations
 
 import ipaddress
+import re
+import secrets
+import socket
 import sys
-
-import panel as pn
-
-from sub60.app.layout import TITLE, create_app
+from collections.abc import Iterable
+from typing import Any
 
 _LOOPBACK_NAMES = {"localhost", "localhost.localdomain", "ip6-localhost"}
 
 #: Largest websocket message accepted [bytes]: bounds an uploaded snapshot (20 MB limit,
 #: base64-encoded by the browser, so about 27 MB on the wire).
 MAX_MESSAGE_BYTES = 32 * 1024 * 1024
+
+#: Highest TCP port number [-] (RFC 793: 16-bit port field).
+MAX_PORT = 65535
 
 
 def is_loopback(host: str) -> bool:
@@ -40,6 +61,47 @@ def loopback_warning(host: str, port: int) -> str | None:
             f"who can reach this machine on port {port} can use the explorer.")
 
 
+def port_number(text: str) -> int:
+    """A TCP port from the command line: a whole number 1–65535 [-].
+
+    Raises `argparse.ArgumentTypeError` naming the allowed range otherwise."""
+    import argparse
+
+    try:
+        port = int(text, 10)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number "
+                                         f"(allowed: 1 to {MAX_PORT})") from None
+    if not 1 <= port <= MAX_PORT:
+        raise argparse.ArgumentTypeError(f"{port} is outside the allowed range 1 to {MAX_PORT}")
+    return port
+
+
+def _host_for_url(host: str) -> str:
+    """host as written in a URL's authority: IPv6 literals in brackets, lower case."""
+    host = host.strip().lower()
+    if host.startswith("[") and host.endswith("]"):
+        return host
+    try:
+        if ipaddress.ip_address(host).version == 6:
+            return f"[{host}]"
+    except ValueError:
+        pass
+    return host
+
+
+def allowed_hosts(host: str, port: int) -> frozenset[str]:
+    """``Host`` header values accepted: the loopback names and the served address, with
+    the port (lower case). A wildcard address (0.0.0.0, ::) adds this machine's name."""
+    names = {"127.0.0.1", "localhost", "[::1]", _host_for_url(host)}
+    try:
+        if ipaddress.ip_address(host.strip("[]")).is_unspecified:
+            names |= {socket.gethostname().lower(), socket.getfqdn().lower()}
+    except ValueError:
+        pass
+    return frozenset(f"{name}:{port}" for name in names)
+
+
 def allowed_origins(host: str, port: int) -> list[str]:
     """Websocket origins accepted: the served address (and its loopback aliases)."""
     origins = [f"{host}:{port}"]
@@ -48,8 +110,95 @@ def allowed_origins(host: str, port: int) -> list[str]:
     return sorted(set(origins))
 
 
+def content_security_policy(nonce: str) -> str:
+    """The page's Content-Security-Policy: scripts from this origin and the template's
+    own inline blocks (carrying ``nonce``) only; no inline event handlers, no plugins,
+    no framing, connections to this origin only (its websocket included). Eval stays
+    allowed: Bokeh's CustomJSTickFormatter needs it (see below)."""
+    return "; ".join([
+        "default-src 'self'",
+        # 'unsafe-eval': Bokeh compiles CustomJSTickFormatter code (the log-scale sliders'
+        # labels) with `new Function`; no inline script or handler runs without the nonce
+        f"script-src 'self' 'nonce-{nonce}' 'unsafe-eval'",
+        "script-src-attr 'none'",
+        # Bokeh and Panel style their components with inline <style> and style attributes
+        "style-src 'self' 'unsafe-inline'",
+        "img-src 'self' data: blob:",
+        "font-src 'self' data:",
+        "connect-src 'self'",
+        "object-src 'none'",
+        "base-uri 'none'",
+        "form-action 'self'",
+        "frame-ancestors 'none'",
+    ])
+
+
+_SCRIPT_OPEN = re.compile(rb"<script(?=[\s>])", re.IGNORECASE)
+
+
+def security_headers(nonce: str) -> dict[str, str]:
+    """Headers set on every response (see the module docstring)."""
+    return {"Content-Security-Policy": content_security_policy(nonce),
+            "X-Frame-Options": "DENY",
+            "X-Content-Type-Options": "nosniff",
+            "Referrer-Policy": "no-referrer",
+            "Cross-Origin-Opener-Policy": "same-origin"}
+
+
+def _tornado_guards(hosts: Iterable[str]) -> tuple[Any, type, type]:
+    """The host matcher, the refusing handler and the header transform (tornado classes
+    built on first use, so importing this module does not import tornado)."""
+    from tornado.routing import Matcher
+    from tornado.web import OutputTransform, RequestHandler
+
+    accepted = frozenset(h.lower() for h in hosts)
+
+    class ForeignHost(Matcher):
+        """Matches a request whose Host header is not one of the served names."""
+
+        def match(self, request) -> dict | None:
+            return {} if (request.host or "").lower() not in accepted else None
+
+    class Refuse(RequestHandler):
+        """403 for any method: the request named a host this server was not started for."""
+
+        def prepare(self) -> None:
+            self.set_status(403)
+            self.set_header("Content-Type", "text/plain; charset=utf-8")
+            self.finish("403: this server answers only to the address it was started on\n")
+
+    class SecurityHeaders(OutputTransform):
+        """Adds `security_headers` to every response and the response's nonce to the
+        ``<script>`` tags of the server's own HTML pages (no user text is in them)."""
+
+        def transform_first_chunk(self, status_code, headers, chunk, finishing):
+            nonce = secrets.token_urlsafe(16)
+            if headers.get("Content-Type", "").startswith("text/html") and chunk:
+                chunk = _SCRIPT_OPEN.sub(b'<script nonce="' + nonce.encode() + b'"', chunk)
+                if "Content-Length" in headers:
+                    headers["Content-Length"] = str(len(chunk))
+            for name, value in security_headers(nonce).items():
+                headers[name] = value
+            return status_code, headers, chunk
+
+    return ForeignHost(), Refuse, SecurityHeaders
+
+
+def guard(tornado_app, hosts: Iterable[str]) -> None:
+    """Install the host check (first rule of the router: it runs before any handler)
+    and the security headers (first output transform) on a tornado application."""
+    from tornado.routing import Rule
+
+    matcher, refuse, headers = _tornado_guards(hosts)
+    router = tornado_app.default_router
+    router.rules.insert(0, router.process_rule(Rule(matcher, refuse)))
+    tornado_app.transforms.insert(0, headers)
+
+
 def configure() -> None:
     """Panel settings of the explorer: local resources, our stylesheet, no extras."""
+    import panel as pn
+
     pn.extension(raw_css=[_page_css()], notifications=False)
 
 
@@ -60,26 +209,51 @@ def _page_css() -> str:
 
 def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
                  start: bool = True, threaded: bool = False):
-    """The Panel/Bokeh server of the explorer (see `serve`); returned for tests."""
+    """The Panel/Bokeh server of the explorer (see `serve`), listening once returned;
+    started (blocking) when ``start``. Raises OSError when the address cannot be bound."""
+    import panel as pn
+
+    from sub60.app.layout import TITLE, create_app
+
     configure()
     warning = loopback_warning(host, port)
     if warning:
         print(warning, file=sys.stderr)
-    return pn.serve(
-        {"/": create_app}, port=port, address=host, show=show, start=start,
+    server = pn.serve(
+        {"/": create_app}, port=port, address=host, show=show, start=False,
         threaded=threaded, title=TITLE, websocket_origin=allowed_origins(host, port),
         verbose=False, admin=False, check_unused_sessions=5000, unused_session_lifetime=15000,
-        websocket_max_message_size=MAX_MESSAGE_BYTES)
+        websocket_max_message_size=MAX_MESSAGE_BYTES,
+        sign_sessions=True, secret_key=secrets.token_urlsafe(32), generate_session_ids=True)
+    if not threaded:
+        guard(server._tornado, allowed_hosts(host, port))
+        if start:
+            server.start()
+            server.io_loop.start()
+    return server
 
 
 def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None:
     """Serve the explorer at http://host:port/ until interrupted.
+
+    "serving …" is printed once the server listens. A port or address that cannot be
+    used (taken, absent, not permitted) is reported in one line and exits with status 1.
 
     Parameters
     ----------
     port : TCP port [-]; host : address to listen on (loopback by default);
     show : open the page in the default browser.
     """
-    print(f"sub60: serving the explorer at http://{host}:{port}/ (Ctrl+C to stop)",
-          file=sys.stderr)
-    build_server(port=port, host=host, show=show, start=True, threaded=False)
+    try:
+        server = build_server(port=port, host=host, show=show, start=False, threaded=False)
+    except (OSError, OverflowError) as exc:
+        reason = getattr(exc, "strerror", None) or str(exc)
+        print(f"sub60: error: cannot serve on {host}:{port}: {reason}", file=sys.stderr)
+        raise SystemExit(1) from None
+    print(f"sub60: serving the explorer at http://{_host_for_url(host)}:{port}/ "
+          "(Ctrl+C to stop)", file=sys.stderr, flush=True)
+    server.start()
+    try:
+        server.io_loop.start()
+    except KeyboardInterrupt:
+        pass

@@ -89,11 +89,12 @@ def open_preset(name: str) -> OpenedSnapshot:
     """A demo design of assets/presets, ready to be applied (FileRefused if unusable)."""
     settings = presets().get(name)
     if settings is None:
-        raise FileRefused(f"**Demo design {name!r} not found**.")
+        raise FileRefused(f"**Demo design {html_escape(repr(name))} not found**.")
     try:
         updates, notes = state_updates(settings)
     except SnapshotError as exc:
-        raise FileRefused(f"**Demo design {name!r} not loaded**: {exc}") from exc
+        raise FileRefused(f"**Demo design {html_escape(repr(name))} not loaded**: "
+                          f"{html_escape(str(exc))}") from exc
     return OpenedSnapshot(settings, None, updates, notes)
 
 

@@ -93,7 +93,7 @@ class SnapshotView:
                 name, data = self.export_bytes()
         except (ValueError, SolverError) as exc:
             ctl.export_note.object = idle_note
-            self.messages.set("snapshot", f"**Snapshot not written**: {exc}")
+            self.messages.set("snapshot", f"**Snapshot not written**: {html_escape(str(exc))}")
             raise
         finally:
             ctl.download.loading = False

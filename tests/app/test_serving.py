@@ -37,11 +37,16 @@ def test_cli_serve_passes_host_and_warns(monkeypatch, capsys):
     socket is opened beyond loopback)."""
     seen = {}
 
+    class FakeServer:                 # started and stopped at once
+        def start(self):
+            self.io_loop = self
+
     def fake_build_server(port, host, show, start, threaded):
         seen.update(port=port, host=host)
         warning = server.loopback_warning(host, port)
         if warning:
             print(warning, file=__import__("sys").stderr)
+        return FakeServer()
 
     monkeypatch.setattr(server, "build_server", fake_build_server)
     assert cli.main(["serve", "--host", "0.0.0.0", "--port", "5999"]) == 0
