@@ -6,6 +6,6 @@ so nothing here changes the process.
 
 import sys
 
-from sub60.app.cli import main
+from sub60.app.console import main
 
 sys.exit(main())

@@ -138,7 +138,9 @@ def build_parser() -> argparse.ArgumentParser:
                 "band diagrams, tunnel window, band-to-band current and transfer curves.")
     sub = p.add_subparsers(dest="command", parser_class=Parser)
     s = sub.add_parser("serve", help="serve the browser explorer on 127.0.0.1")
-    s.add_argument("--port", type=int, default=5006)
+    from sub60.app.server import port_number
+
+    s.add_argument("--port", type=port_number, default=5006, help="TCP port, 1 to 65535")
     s.add_argument("--host", default="127.0.0.1", help="address to listen on (default loopback)")
     s.add_argument("--show", action="store_true", help="open the browser")
 

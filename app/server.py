@@ -216,15 +216,15 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
     from sub60.app.layout import TITLE, create_app
 
     configure()
-    warning = loopback_warning(host, port)
-    if warning:
-        print(warning, file=sys.stderr)
     server = pn.serve(
         {"/": create_app}, port=port, address=host, show=show, start=False,
         threaded=threaded, title=TITLE, websocket_origin=allowed_origins(host, port),
         verbose=False, admin=False, check_unused_sessions=5000, unused_session_lifetime=15000,
         websocket_max_message_size=MAX_MESSAGE_BYTES,
         sign_sessions=True, secret_key=secrets.token_urlsafe(32), generate_session_ids=True)
+    warning = loopback_warning(host, port)
+    if warning:
+        print(warning, file=sys.stderr)
     if not threaded:
         guard(server._tornado, allowed_hosts(host, port))
         if start:
