@@ -139,8 +139,10 @@ def cmd_export(a) -> tuple[str, int]:
     _exists_check(out, a.force, "--out")
     settings = _export_settings(a)
     data = solve(export_snapshot, settings)
+    from sub60.app.atomic import write_bytes_atomic
+
     try:
-        out.write_bytes(data)
+        write_bytes_atomic(out, data)
     except OSError as exc:
         raise UsageError(f"--out: cannot write {str(out)!r} ({exc.strerror})") from None
     return f"wrote {out} ({len(data)} bytes)", 0
@@ -172,10 +174,12 @@ def cmd_render(a) -> tuple[str, int]:
     if clash and not a.force:
         raise UsageError(f"--out: {str(out / clash[0])!r} exists; use --force to overwrite")
     contents = figures.static_figures(solve(compute_results, settings))
+    from sub60.app.atomic import write_bytes_atomic
+
     try:
         out.mkdir(parents=True, exist_ok=True)
         for name, content in contents.items():
-            (out / name).write_bytes(content)
+            write_bytes_atomic(out / name, content)
     except OSError as exc:
         raise UsageError(f"--out: cannot write into {str(out)!r} ({exc.strerror})") from None
     return f"wrote {len(contents)} figures to {out}: " + ", ".join(contents), 0
