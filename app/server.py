@@ -42,6 +42,10 @@ MAX_MESSAGE_BYTES = 32 * 1024 * 1024
 #: Highest TCP port number [-] (RFC 793: 16-bit port field).
 MAX_PORT = 65535
 
+#: Longest value of one query parameter of the page address [characters]; sharing links
+#: hold short numbers and names, so this only stops hostile links.
+MAX_QUERY_VALUE_CHARS = 1000
+
 
 def is_loopback(host: str) -> bool:
     """True when host names this machine's loopback interface only."""
@@ -110,6 +114,27 @@ def allowed_origins(host: str, port: int) -> list[str]:
     return sorted(set(origins))
 
 
+def query_problem(query: str) -> str | None:
+    """Why the page address's query cannot be used, or None.
+
+    Refused before Panel reads the query (it converts digit strings with `int`, which
+    fails for over 4300 digits and for digits such as '²'): values longer than
+    `MAX_QUERY_VALUE_CHARS` and digit strings `int` cannot read."""
+    from urllib.parse import parse_qsl
+
+    for key, value in parse_qsl(query, keep_blank_values=True):
+        name = repr(key[:40])
+        if len(value) > MAX_QUERY_VALUE_CHARS:
+            return (f"the value of {name} in the page address has {len(value)} characters "
+                    f"(at most {MAX_QUERY_VALUE_CHARS})")
+        if value.isdigit():
+            try:
+                int(value)
+            except ValueError:
+                return f"the value of {name} in the page address is not a usable number"
+    return None
+
+
 def content_security_policy(nonce: str) -> str:
     """The page's Content-Security-Policy: scripts from this origin and the template's
     own inline blocks (carrying ``nonce``) only; no inline event handlers, no plugins,
@@ -145,8 +170,8 @@ def security_headers(nonce: str) -> dict[str, str]:
             "Cross-Origin-Opener-Policy": "same-origin"}
 
 
-def _tornado_guards(hosts: Iterable[str]) -> tuple[Any, type, type]:
-    """The host matcher, the refusing handler and the header transform (tornado classes
+def _tornado_guards(hosts: Iterable[str]) -> tuple[list[tuple[Any, type]], type]:
+    """The (matcher, refusing handler) pairs and the header transform (tornado classes
     built on first use, so importing this module does not import tornado)."""
     from tornado.routing import Matcher
     from tornado.web import OutputTransform, RequestHandler
@@ -167,6 +192,20 @@ def _tornado_guards(hosts: Iterable[str]) -> tuple[Any, type, type]:
             self.set_header("Content-Type", "text/plain; charset=utf-8")
             self.finish("403: this server answers only to the address it was started on\n")
 
+    class BadQuery(Matcher):
+        """Matches a request whose query `query_problem` refuses."""
+
+        def match(self, request) -> dict | None:
+            return {} if query_problem(request.query or "") else None
+
+    class RefuseQuery(RequestHandler):
+        """400 naming the query value that cannot be used."""
+
+        def prepare(self) -> None:
+            self.set_status(400)
+            self.set_header("Content-Type", "text/plain; charset=utf-8")
+            self.finish(f"400: {query_problem(self.request.query or '')}\n")
+
     class SecurityHeaders(OutputTransform):
         """Adds `security_headers` to every response and the response's nonce to the
         ``<script>`` tags of the server's own HTML pages (no user text is in them)."""
@@ -181,17 +220,19 @@ def _tornado_guards(hosts: Iterable[str]) -> tuple[Any, type, type]:
                 headers[name] = value
             return status_code, headers, chunk
 
-    return ForeignHost(), Refuse, SecurityHeaders
+    return [(ForeignHost(), Refuse), (BadQuery(), RefuseQuery)], SecurityHeaders
 
 
 def guard(tornado_app, hosts: Iterable[str]) -> None:
-    """Install the host check (first rule of the router: it runs before any handler)
-    and the security headers (first output transform) on a tornado application."""
+    """Install the host check, then the query check (the first rules of the router: they
+    run before any handler), and the security headers (first output transform) on a
+    tornado application."""
     from tornado.routing import Rule
 
-    matcher, refuse, headers = _tornado_guards(hosts)
+    rules, headers = _tornado_guards(hosts)
     router = tornado_app.default_router
-    router.rules.insert(0, router.process_rule(Rule(matcher, refuse)))
+    for i, (matcher, handler) in enumerate(rules):
+        router.rules.insert(i, router.process_rule(Rule(matcher, handler)))
     tornado_app.transforms.insert(0, headers)
 
 

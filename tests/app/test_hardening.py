@@ -135,6 +135,23 @@ def test_chosen_session_id_is_refused(app_url):
     assert _get(app_url, "/?bokeh-session-id=" + quote(ids[0].split(".")[0] + ".forged"))[0] == 403
 
 
+@pytest.mark.browser
+def test_unusable_query_values_are_refused_with_400(app_url):
+    """Panel converts digit strings with int(): 4301 digits or a '²' gave HTTP 500."""
+    for query, key in [("tox_nm=" + "1" * 4301, "tox_nm"), ("zz=" + quote("²"), "zz"),
+                       ("note=" + "a" * 1001, "note")]:
+        status, headers, body = _get(app_url, "/?" + query)
+        assert status == 400 and key in body.decode(), (query[:20], status)
+        assert headers["content-type"].startswith("text/plain")
+    assert _get(app_url, "/?tox_nm=" + "1" * 20)[0] == 200
+
+
+def test_query_problem_names_the_value():
+    assert server.query_problem("tox_nm=2&material=InAs") is None
+    assert "'tox_nm'" in server.query_problem("tox_nm=" + "9" * 5000)
+    assert "'x'" in server.query_problem("x=" + quote("²"))
+
+
 # ---------------------------------------------------------------------- Chromium
 _VIOLATIONS = ("window.__csp = []; document.addEventListener('securitypolicyviolation', "
                "e => window.__csp.push(e.violatedDirective + ' ' + e.blockedURI));")
