@@ -151,6 +151,25 @@ def test_transfer_on_a_preset_design(installed):
     assert len(result["vg_V"]) == 5
 
 
+_STYLESHEET_PROBE = """
+import json, sys
+from playwright.sync_api import sync_playwright
+chromium, args, url, rule = sys.argv[1], json.loads(sys.argv[2]), sys.argv[3], sys.argv[4]
+with sync_playwright() as p:
+    browser = p.chromium.launch(executable_path=chromium, headless=True, args=args)
+    try:
+        tab = browser.new_page()
+        tab.goto(url, wait_until="domcontentloaded", timeout=90_000)
+        tab.wait_for_function("() => window.Bokeh && Bokeh.documents.length > 0",
+                              timeout=90_000)
+        print(tab.evaluate('''rule => [...Bokeh.documents[0]._all_models.values()]
+            .some(m => (m.stylesheets || []).some(
+                s => (typeof s === 'string' ? s : (s.css || '')).includes(rule)))''', rule))
+    finally:
+        browser.close()
+"""
+
+
 def test_serve_answers_with_the_packaged_stylesheet(installed):
     """`sub60 serve` answers 200, and the page it builds in Chromium carries the packaged
     stylesheet (the session document comes over the websocket, so a browser is needed;
@@ -178,23 +197,12 @@ def test_serve_answers_with_the_packaged_stylesheet(installed):
         assert response.status == 200
         assert "sub60" in page and "static/js/bokeh" in page
         browser_or_skip()
-        from playwright.sync_api import sync_playwright
-
-        with sync_playwright() as p:
-            browser = p.chromium.launch(executable_path=CHROMIUM, headless=True,
-                                        args=CHROMIUM_ARGS)
-            try:
-                tab = browser.new_page()
-                tab.goto(f"http://127.0.0.1:{port}/", wait_until="domcontentloaded",
-                         timeout=90_000)
-                tab.wait_for_function("() => window.Bokeh && Bokeh.documents.length > 0",
-                                      timeout=90_000)
-                found = tab.evaluate("""rule => [...Bokeh.documents[0]._all_models.values()]
-                    .some(m => (m.stylesheets || []).some(
-                        s => (typeof s === 'string' ? s : (s.css || '')).includes(rule)))""",
-                                     STYLE_RULE)
-            finally:
-                browser.close()
+        # in its own process: the app tests' session-wide Playwright may be running here
+        probe = subprocess.run([sys.executable, "-c", _STYLESHEET_PROBE, CHROMIUM,
+                                json.dumps(CHROMIUM_ARGS), f"http://127.0.0.1:{port}/",
+                                STYLE_RULE], capture_output=True, text=True, timeout=300)
+        assert probe.returncode == 0, probe.stderr[-3000:]
+        found = probe.stdout.strip().splitlines()[-1] == "True"
         assert found, "the packaged stylesheet is not in the page"
     finally:
         stop_server(proc)
