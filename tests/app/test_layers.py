@@ -41,7 +41,7 @@ LAYERS: dict[str, int] = {
     "state": MODEL, "jobs": MODEL, "pin_jobs": MODEL, "pinning": MODEL, "sharing": MODEL,
     "messages": MODEL, "theme": MODEL, "tables": MODEL, "snapshot_fields": MODEL,
     "snapshot_schema": MODEL, "snapshot_reader": MODEL, "snapshot_check": MODEL,
-    "presets": MODEL,
+    "presets": MODEL, "atomic": MODEL,
     # views: the page, live plots, export figures and the snapshot bundle that holds them
     "layout": VIEWS, "controls": VIEWS, "results_view": VIEWS, "pin_view": VIEWS,
     "snapshot_view": VIEWS, "compare_panes": VIEWS, "plots": VIEWS, "plots_bias": VIEWS,
@@ -49,7 +49,7 @@ LAYERS: dict[str, int] = {
     "figures_page": VIEWS, "snapshot_bundle": VIEWS, "session_files": VIEWS,
     # entry points
     "cli": ENTRY, "cli_common": ENTRY, "snapshot_cli": ENTRY, "server": ENTRY,
-    "__main__": ENTRY,
+    "__main__": ENTRY, "console": ENTRY,
 }
 #: Top-level packages a model or physics module must not import.
 UI_PACKAGES = ("panel", "bokeh", "matplotlib")
