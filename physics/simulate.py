@@ -78,6 +78,8 @@ class BiasPoint:
     window_eV : (e_min, e_max) tunnel window, or None when closed [eV]
     spectrum : band-to-band J(E) and T(E)
     btbt_uA_per_um, electron_thermionic_uA_per_um, hole_thermionic_uA_per_um : parts
+    pair_currents_uA_per_um : band-to-band current of each (valence, conduction) subband
+        pair, e.g. {"HH1-C1": ...}, weighted by its interband coupling [uA/um]
     current_uA_per_um : total drain current per width [uA/um]
     timings_s : wall time of each stage [s]
     warnings : model-validity warnings (e.g. an indirect-gap material)
@@ -103,6 +105,7 @@ class BiasPoint:
     timings_s: dict[str, float] = field(default_factory=dict)
     warnings: tuple[str, ...] = ()
     solver_notes: tuple[str, ...] = ()
+    pair_currents_uA_per_um: dict[str, float] = field(default_factory=dict)
 
     @property
     def subband_ec_eV(self) -> np.ndarray:
@@ -274,7 +277,7 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
     x = es.x_nm
     cprof = [BandProfile(s.label, cond[i], s.inplane_mass) for i, s in enumerate(sb.conduction)]
     vprof = [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)]
-    spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model)
+    spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model, pair_weights=sb.pair_weights())
     i_n = thermionic_current(cprof, "conduction", efs, efd, kT)
     i_p = thermionic_current(vprof, "valence", efs, efd, kT)
     if es.vd_V == 0:
@@ -289,6 +292,7 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         valence_labels=tuple(s.label for s in sb.valence),
         efs_eV=efs, efd_eV=efd, window_eV=window, spectrum=spectrum,
         btbt_uA_per_um=spectrum.current_uA_per_um,
+        pair_currents_uA_per_um=dict(spectrum.pair_currents_uA_per_um),
         electron_thermionic_uA_per_um=i_n, hole_thermionic_uA_per_um=i_p,
         timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1},
         warnings=design_warnings(d) + _bending_warning(es, sb))

@@ -14,6 +14,25 @@ Conduction: electron mass of the Gamma valley, same in-plane (isotropic). Holes:
 heavy and light holes with the Luttinger masses along [001] for confinement and in
 the (001) plane for transport and transverse motion (Luttinger 1956; Davies 1998 —
 from memory); the two kinds are treated as uncoupled.
+
+Interband coupling of a (valence m, conduction n) pair, used to weight its tunnelling
+current (`pair_weights`):
+
+    w_mn = M_m |<phi_c,n | phi_v,m>|^2                                          (2)
+
+The envelope overlap is the selection rule of the confined states (parity: in a
+symmetric well only pairs of equal parity couple; Chuang, Physics of Optoelectronic
+Devices, Wiley 1995, ch. 9 — from memory). M_m is the share of the bulk two-band
+coupling carried by the hole kind for transport in the plane of the body. With the
+Bloch functions of the J = 3/2 quartet quantised along the confinement axis z
+(HH: (X + iY)/sqrt2, LH: [(X + iY) down - 2 Z up]/sqrt6 up to phases) and P = <S|p_x|X>,
+summing over spins gives |<S|p_x|HH>|^2 = P^2/2, |<S|p_x|LH>|^2 = P^2/6 and, for the
+split-off band, P^2/3 (derived here; these are the "TE" band-edge weights 3/2 M_b^2 and
+1/2 M_b^2 with M_b^2 = P^2/3 of Chuang 1995, ch. 9 — from memory). The two-band (Kane)
+tunnelling model represents the bulk channel along x: quantised along x, the light hole
+carries 2/3 P^2 and the heavy hole none. Relative to that channel M_HH = (1/2)/(2/3) =
+3/4 and M_LH = (1/6)/(2/3) = 1/4, which sum to 1: a thick body with nearly degenerate
+HH and LH subbands gets back the bulk two-band current.
 """
 
 from __future__ import annotations
@@ -27,6 +46,8 @@ from sub60.physics.confinement import solve_subbands, subband_weights
 from sub60.physics.design import Design
 from sub60.physics.materials import BURIED_OXIDE, get_dielectric, get_semiconductor
 
+#: share of the bulk two-band interband coupling for in-plane transport, eq. (2) [-]
+MOMENTUM_WEIGHT = {"conduction": 1.0, "HH": 0.75, "LH": 0.25}
 N_CONDUCTION = 2
 N_HEAVY = 2
 N_LIGHT = 1
@@ -41,7 +62,9 @@ class Subband:
     label : e.g. "C1", "HH1", "LH1"; kind : "conduction" or "valence";
     energy_eV : confinement energy, above E_c (conduction) or below E_v (valence) [eV];
     inplane_mass : mass for motion along x and across the width [m0];
-    y_nm, density : |phi(y)|^2 on the fine well grid [nm, 1/nm], y in mesh coordinates.
+    y_nm, density : |phi(y)|^2 on the fine well grid [nm, 1/nm], y in mesh coordinates;
+    wavefunction : phi(y), signed, normalised to trapezoid(phi^2, y) = 1 [nm^-1/2];
+    momentum_weight : share of the bulk two-band coupling, eq. (2) [-].
     """
 
     label: str
@@ -50,6 +73,8 @@ class Subband:
     inplane_mass: float
     y_nm: np.ndarray
     density: np.ndarray
+    wavefunction: np.ndarray
+    momentum_weight: float = 1.0
 
 
 @dataclass(frozen=True, eq=False)
@@ -68,6 +93,16 @@ class DeviceSubbands:
     def valence_shift_eV(self) -> float:
         """Highest valence subband below the bulk edge [eV] (feeds the charge)."""
         return min(s.energy_eV for s in self.valence)
+
+    def pair_weights(self) -> np.ndarray:
+        """Interband coupling w_mn of each (valence m, conduction n) pair, eq. (2) [-].
+
+        Returns
+        -------
+        (n_v, n_c) array: M_m |<phi_c,n|phi_v,m>|^2 (trapezoid rule on the common well
+        grid); 0 for a parity-forbidden pair of a symmetric body.
+        """
+        return _pair_weights_cached(self)
 
     def profiles(self, y_nodes_nm: np.ndarray, ec_map_eV: np.ndarray, eg_eV: float):
         """Subband edge profiles along x, eq. (1).
@@ -89,6 +124,16 @@ class DeviceSubbands:
 
     def _weights(self, y_nodes_nm: np.ndarray, kind: str) -> np.ndarray:
         return _weights_cached(self, tuple(np.round(y_nodes_nm, 12)), kind)
+
+
+@lru_cache(maxsize=64)
+def _pair_weights_cached(sb: DeviceSubbands) -> np.ndarray:
+    out = np.empty((len(sb.valence), len(sb.conduction)))
+    for i, v in enumerate(sb.valence):
+        for j, c in enumerate(sb.conduction):
+            overlap = np.trapezoid(v.wavefunction * c.wavefunction, v.y_nm)
+            out[i, j] = v.momentum_weight * c.momentum_weight * overlap**2
+    return out
 
 
 @lru_cache(maxsize=64)
@@ -144,8 +189,10 @@ def device_subbands(design: Design) -> DeviceSubbands:
     def states(v, m_well, n, labels, kind, inplane, a=0.0):
         mass = np.where(body, m_well, m_bar)
         sb = solve_subbands(y, v, mass, n_states=n, nonparabolicity_per_eV=a)
+        weight = MOMENTUM_WEIGHT["conduction" if kind == "conduction" else labels]
         return [Subband(f"{labels}{i + 1}", kind, float(sb.energies_eV[i]), inplane,
-                        y + y0, sb.wavefunctions[i] ** 2) for i in range(n)]
+                        y + y0, sb.wavefunctions[i] ** 2, sb.wavefunctions[i].copy(), weight)
+                for i in range(n)]
 
     cond = states(ve, sc_rec.electron_mass, N_CONDUCTION, "C", "conduction",
                   sc_rec.electron_mass, alpha)

@@ -10,7 +10,12 @@ transverse kinetic energy raises the conduction edge by hbar^2 k^2 / 2 m_n and l
 the valence edge by hbar^2 k^2 / 2 m_m, widening the gap the electron sees; an energy
 carries current when it lies below the valence edge at the source end and above the
 conduction edge at the drain end, with T = exp(-2 int kappa dx) through every in-gap
-stretch between (`physics.tunneling`).
+stretch between (`physics.tunneling`). Each pair's current is multiplied by its
+interband coupling w_mn (envelope overlap squared times the hole kind's momentum-matrix
+share, `physics.subbands.DeviceSubbands.pair_weights`): a parity-forbidden pair carries
+no current. The weight multiplies the rate, as the squared interband matrix element does
+in a transfer-Hamiltonian (golden-rule) picture; the WKB exponent of each pair keeps the
+two-band kappa of its own masses.
 
 Thermionic part (T = 1 above the barrier): electrons over the highest point of each
 conduction subband, holes under the lowest point of each valence subband. With the
@@ -25,7 +30,7 @@ electrons flow from source to drain (V_d > 0), and exactly zero when f_s = f_d.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -65,13 +70,16 @@ class Spectrum:
     """Band-to-band spectral current.
 
     energy_eV : (nE,) [eV]; current_density : (nE,) J(E) [uA/um per eV];
-    transmission : (nE,) T(E, k=0) of the dominant pair [-]; current_uA_per_um : total.
+    transmission : (nE,) T(E, k=0) of the dominant pair [-]; current_uA_per_um : total;
+    pair_currents_uA_per_um : current of each (valence, conduction) pair, e.g.
+    "HH1-C1", weighted by its coupling [uA/um] (they sum to the total).
     """
 
     energy_eV: np.ndarray
     current_density: np.ndarray
     transmission: np.ndarray
     current_uA_per_um: float
+    pair_currents_uA_per_um: dict[str, float] = field(default_factory=dict)
 
     def columns(self) -> dict[str, np.ndarray]:
         """energy_eV, current_density_uA_per_um_per_eV and transmission_1 (T(E, k = 0))
@@ -160,7 +168,7 @@ def _pair_transmission_integral(
 def band_to_band(
     x_nm: np.ndarray, conduction: list[BandProfile], valence: list[BandProfile],
     efs_eV: float, efd_eV: float, kT_eV: float, model: str = "two-band",
-    energies_eV: np.ndarray | None = None,
+    energies_eV: np.ndarray | None = None, pair_weights: np.ndarray | None = None,
 ) -> Spectrum:
     """Band-to-band spectral current and total, eq. (1) [uA/um].
 
@@ -175,6 +183,9 @@ def band_to_band(
         k = 0 above 1e-7 of its peak; the k integral only narrows that range). J(E)
         has square-root edges where the transverse range k_max(E) closes, which a
         uniform grid resolves poorly; in the cosine variable they are smooth.
+    pair_weights : (n_valence, n_conduction) interband coupling of each pair [-]
+        (`physics.subbands.DeviceSubbands.pair_weights`); None gives every pair weight 1
+        (independent bulk-like channels). Pairs of weight below 1e-9 are skipped.
     """
     fixed = energies_eV is not None
     e = np.asarray(energies_eV, float) if fixed else \
@@ -192,15 +203,20 @@ def band_to_band(
     density = np.zeros_like(e)
     t_best = np.zeros_like(e)
     current = 0.0
-    for vb in valence:
-        for cb in conduction:
-            if vb.edge_eV[0] - cb.edge_eV[-1] <= 0:
+    pairs: dict[str, float] = {}
+    for iv, vb in enumerate(valence):
+        for ic, cb in enumerate(conduction):
+            w = 1.0 if pair_weights is None else float(pair_weights[iv, ic])
+            name = f"{vb.label}-{cb.label}"
+            pairs[name] = 0.0
+            if vb.edge_eV[0] - cb.edge_eV[-1] <= 0 or w < 1e-9:
                 continue
             if fixed:
                 tk, t0 = _pair_transmission_integral(x_nm, cb, vb, e, model)
-                pair = G0_S * tk * occ  # (2q/h)(q 1 eV) per eV -> A/m per eV = uA/um per eV
+                pair = w * G0_S * tk * occ  # (2q/h)(q 1 eV) per eV -> A/m per eV = uA/um per eV
                 density += pair
-                current += float(np.trapezoid(pair, e))
+                pairs[name] = float(np.trapezoid(pair, e))
+                current += pairs[name]
                 t_best = np.maximum(t_best, t0)
                 continue
             _, t0 = _pair_transmission_integral(x_nm, cb, vb, e, model, k_integral=False)
@@ -215,10 +231,11 @@ def band_to_band(
             theta = np.linspace(0.0, np.pi, N_E)
             e_fine = 0.5 * (lo + hi) - 0.5 * (hi - lo) * np.cos(theta)
             tk, _ = _pair_transmission_integral(x_nm, cb, vb, e_fine, model)
-            pair = G0_S * tk * occupancy(e_fine)
-            current += float(np.trapezoid(pair * 0.5 * (hi - lo) * np.sin(theta), theta))
+            pair = w * G0_S * tk * occupancy(e_fine)
+            pairs[name] = float(np.trapezoid(pair * 0.5 * (hi - lo) * np.sin(theta), theta))
+            current += pairs[name]
             density += np.interp(e, e_fine, pair, left=0.0, right=0.0)
-    return Spectrum(e, density, t_best, current)
+    return Spectrum(e, density, t_best, current, pairs)
 
 
 def tunnel_window(
