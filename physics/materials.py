@@ -253,6 +253,28 @@ class Semiconductor:
         return varshni_gap_eV(self.eg0_eV, self.varshni_alpha_eV_per_K, self.varshni_beta_K,
                               temperature_K)
 
+    def nonparabolicity_at_per_eV(self, temperature_K: float) -> float:
+        """Conduction-band non-parabolicity at a temperature [1/eV].
+
+        Direct-gap records take the two-band k.p estimate `kane_nonparabolicity_per_eV`
+        with the gap at that temperature (Varshni), since alpha ~ 1/Eg (Kane 1957, from
+        memory); indirect records (Si, Ge: Monte Carlo values of their satellite valleys)
+        keep their constant ``nonparabolicity_per_eV``.
+
+        Parameters
+        ----------
+        temperature_K : float
+            lattice temperature, >= 0 [K].
+
+        Returns
+        -------
+        float
+            alpha [1/eV]; e.g. InAs 2.28 at 0 K, 2.68 at 300 K.
+        """
+        if not self.direct_gap:
+            return self.nonparabolicity_per_eV
+        return kane_nonparabolicity_per_eV(self.electron_mass, float(self.bandgap_eV(temperature_K)))
+
     @property
     def heavy_hole_mass_confined(self) -> float:
         """Heavy-hole mass along [001], the confinement axis: 1/(g1 - 2 g2) [m0].

@@ -10,7 +10,12 @@ e.g. Davies, The Physics of Low-dimensional Semiconductors, 1998, ch. 6 — from
     E_v,m(x) = -E_v,m^0 + int |phi_m(y)|^2 E_v(x, y) dy
 
 with E_c,n^0 (E_v,m^0) the confinement energy above (below) the bulk edge.
-Conduction: electron mass of the Gamma valley, same in-plane (isotropic). Holes:
+Conduction: electron mass of the Gamma valley with Kane non-parabolicity alpha (taken
+from the gap at the working temperature), E(1 + alpha E) = hbar^2 k^2 / 2m*; a subband
+whose edge lies E_n above the band edge moves in the plane with the band's mass at that
+energy, m_n = m* (1 + 2 alpha E_n) (differentiate E(1 + alpha E) = hbar^2 (k_n^2 +
+k_par^2)/2m* at k_par = 0; e.g. Nag, Electron Transport in Compound Semiconductors,
+Springer 1980 — from memory), used for transport and the transverse integral. Holes:
 heavy and light holes with the Luttinger masses along [001] for confinement and in
 the (001) plane for transport and transverse motion (Luttinger 1956; Davies 1998 —
 from memory); the two kinds are treated as uncoupled.
@@ -184,18 +189,20 @@ def device_subbands(design: Design) -> DeviceSubbands:
     vh = barrier(bottom.electron_affinity_eV + bottom.bandgap_eV - sc_rec.electron_affinity_eV - eg,
                  top.electron_affinity_eV + top.bandgap_eV - sc_rec.electron_affinity_eV - eg)
     m_bar = barrier(bottom.tunnelling_mass, top.tunnelling_mass)
-    alpha = np.where(body, sc_rec.nonparabolicity_per_eV, 0.0)
+    alpha_body = sc_rec.nonparabolicity_at_per_eV(design.temperature_K)
+    alpha = np.where(body, alpha_body, 0.0)
 
-    def states(v, m_well, n, labels, kind, inplane, a=0.0):
+    def states(v, m_well, n, labels, kind, inplane, a=0.0, a_inplane=0.0):
         mass = np.where(body, m_well, m_bar)
         sb = solve_subbands(y, v, mass, n_states=n, nonparabolicity_per_eV=a)
         weight = MOMENTUM_WEIGHT["conduction" if kind == "conduction" else labels]
-        return [Subband(f"{labels}{i + 1}", kind, float(sb.energies_eV[i]), inplane,
+        return [Subband(f"{labels}{i + 1}", kind, float(sb.energies_eV[i]),
+                        inplane * (1.0 + 2.0 * a_inplane * float(sb.energies_eV[i])),
                         y + y0, sb.wavefunctions[i] ** 2, sb.wavefunctions[i].copy(), weight)
                 for i in range(n)]
 
     cond = states(ve, sc_rec.electron_mass, N_CONDUCTION, "C", "conduction",
-                  sc_rec.electron_mass, alpha)
+                  sc_rec.electron_mass, alpha, alpha_body)
     hh = states(vh, sc_rec.heavy_hole_mass_confined, N_HEAVY, "HH", "valence",
                 sc_rec.heavy_hole_mass_inplane)
     lh = states(vh, sc_rec.light_hole_mass_confined, N_LIGHT, "LH", "valence",
