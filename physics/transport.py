@@ -48,6 +48,7 @@ from sub60.physics.tunneling import wkb_exponent_transverse
 N_K = 6  # Gauss-Legendre nodes of the transverse-k integral (per energy; 2e-4 rel. vs 40)
 N_E = 48  # energies of each pair's current integral, over where it flows
 N_E_SCAN = 100  # energies of the k = 0 scan and of the reported spectrum
+PAIR_NEGLIGIBLE = 1e-6  # pairs below this share of the largest k = 0 current are skipped
 _GL_K = np.polynomial.legendre.leggauss(N_K)
 
 
@@ -180,7 +181,9 @@ def band_to_band(
     energies_eV : a fixed energy grid for every pair; by default each pair is first
         scanned at k = 0 on `energy_grid` (N_E_SCAN points), and its current integrated
         on N_E cosine-spaced points spanning only the energies where it flows (J at
-        k = 0 above 1e-7 of its peak; the k integral only narrows that range). J(E)
+        k = 0 above 1e-7 of its peak; the k integral only narrows that range); a pair
+        whose weighted k = 0 current is below PAIR_NEGLIGIBLE of the largest pair's is
+        reported as 0. J(E)
         has square-root edges where the transverse range k_max(E) closes, which a
         uniform grid resolves poorly; in the cosine variable they are smooth.
     pair_weights : (n_valence, n_conduction) interband coupling of each pair [-]
@@ -204,6 +207,7 @@ def band_to_band(
     t_best = np.zeros_like(e)
     current = 0.0
     pairs: dict[str, float] = {}
+    scanned: list[tuple] = []
     for iv, vb in enumerate(valence):
         for ic, cb in enumerate(conduction):
             w = 1.0 if pair_weights is None else float(pair_weights[iv, ic])
@@ -222,19 +226,26 @@ def band_to_band(
             _, t0 = _pair_transmission_integral(x_nm, cb, vb, e, model, k_integral=False)
             t_best = np.maximum(t_best, t0)
             j0 = np.abs(t0 * occ)
-            if j0.max() <= 0:
-                continue
-            on = np.flatnonzero(j0 > 1e-7 * j0.max())
-            lo, hi = e[max(on[0] - 1, 0)], e[min(on[-1] + 1, e.size - 1)]
-            # cosine-spaced energies: J(E) has square-root edges where k_max(E) -> 0 (the
-            # source valence and drain conduction edges); in theta they are smooth
-            theta = np.linspace(0.0, np.pi, N_E)
-            e_fine = 0.5 * (lo + hi) - 0.5 * (hi - lo) * np.cos(theta)
-            tk, _ = _pair_transmission_integral(x_nm, cb, vb, e_fine, model)
-            pair = w * G0_S * tk * occupancy(e_fine)
-            pairs[name] = float(np.trapezoid(pair * 0.5 * (hi - lo) * np.sin(theta), theta))
-            current += pairs[name]
-            density += np.interp(e, e_fine, pair, left=0.0, right=0.0)
+            if j0.max() > 0:
+                scanned.append((name, cb, vb, w, j0, w * float(np.trapezoid(j0, e))))
+    # full k integral for the pairs that matter: a pair whose k = 0 current is below
+    # PAIR_NEGLIGIBLE of the largest one is left out (its share of the total is of that
+    # order: the transverse integral changes a pair's current by a factor of a few)
+    top = max((sc_[5] for sc_ in scanned), default=0.0)
+    for name, cb, vb, w, j0, j0_total in scanned:
+        if j0_total < PAIR_NEGLIGIBLE * top:
+            continue
+        on = np.flatnonzero(j0 > 1e-7 * j0.max())
+        lo, hi = e[max(on[0] - 1, 0)], e[min(on[-1] + 1, e.size - 1)]
+        # cosine-spaced energies: J(E) has square-root edges where k_max(E) -> 0 (the
+        # source valence and drain conduction edges); in theta they are smooth
+        theta = np.linspace(0.0, np.pi, N_E)
+        e_fine = 0.5 * (lo + hi) - 0.5 * (hi - lo) * np.cos(theta)
+        tk, _ = _pair_transmission_integral(x_nm, cb, vb, e_fine, model)
+        pair = w * G0_S * tk * occupancy(e_fine)
+        pairs[name] = float(np.trapezoid(pair * 0.5 * (hi - lo) * np.sin(theta), theta))
+        current += pairs[name]
+        density += np.interp(e, e_fine, pair, left=0.0, right=0.0)
     return Spectrum(e, density, t_best, current, pairs)
 
 
