@@ -36,7 +36,12 @@ from sub60.physics._threads import single_blas_thread
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
 from sub60.physics.materials import check_tunnelling_material, get_semiconductor
-from sub60.physics.metrics import Metrics, figures_of_merit, point_swing_mV_per_dec
+from sub60.physics.metrics import (
+    Metrics,
+    figures_of_merit,
+    point_swing_mV_per_dec,
+    refine_curve,
+)
 from sub60.physics.poisson import SolverError
 from sub60.physics.statistics import inverse_fermi_half
 from sub60.physics.structure import band_parameters
@@ -184,7 +189,13 @@ class BiasPoint:
 
 @dataclass(frozen=True)
 class TransferCurve:
-    """Id-Vg of a design at fixed V_d, with its figures of merit."""
+    """Id-Vg of a design at fixed V_d, with its figures of merit.
+
+    vg_V, id_uA_per_um, btbt_uA_per_um, thermionic_uA_per_um, ss_mV_per_dec : at the
+    requested gate voltages; vg_refined_V, id_refined_uA_per_um : the requested samples
+    plus those added by `physics.metrics.refine_curve`, from which the metrics and the
+    point swing are taken (equal to the requested ones without refinement).
+    """
 
     design: Design
     vd_V: float
@@ -194,6 +205,8 @@ class TransferCurve:
     thermionic_uA_per_um: np.ndarray
     ss_mV_per_dec: np.ndarray
     metrics: Metrics
+    vg_refined_V: np.ndarray | None = None
+    id_refined_uA_per_um: np.ndarray | None = None
 
     def columns(self) -> dict[str, np.ndarray]:
         """vg_V, id_uA_per_um, ss_mV_per_dec (point swing), btbt_uA_per_um and
@@ -467,15 +480,22 @@ class Simulator:
         progress: Callable[[int, int], None] | None = None,
         cancelled: Callable[[], bool] | None = None,
         slots: threading.Semaphore | None = None,
+        refine: bool = True, ss_floor_uA_per_um: float | None = None,
     ) -> TransferCurve:
         """Id-Vg at fixed V_d with continuation along V_g, and its figures of merit.
 
         The temperature is the design's (``design.temperature_K``); ``ioff_target_uA_per_um``
         [uA/um] and ``vdd_V`` [V] set the figures of merit (`figures_of_merit`).
-        progress(i, n) is called after each point; cancelled() before each point (True
-        stops the sweep with InterruptedError); with ``slots`` each point is solved while
-        holding one slot of that semaphore, so that many concurrent sweeps share the
-        cores point by point and leave room for single bias points.
+        progress(i, n) is called after each requested point; cancelled() before each
+        point (True stops the sweep with InterruptedError); with ``slots`` each point is
+        solved while holding one slot of that semaphore, so that many concurrent sweeps
+        share the cores point by point and leave room for single bias points.
+
+        With ``refine`` (default) the curve is then refined where the figures of merit
+        are read (`physics.metrics.refine_curve`, bisection down to 2.5 mV), each new
+        point warm-started from its nearest solved neighbour, so that the metrics do not
+        depend on the requested spacing; ``ss_floor_uA_per_um`` is the SS_min floor
+        (None: Ioff target / 100).
         """
         vg = np.asarray(vg_V, float)
         points: list[BiasPoint] = []
@@ -490,9 +510,31 @@ class Simulator:
         current = np.array([p.current_uA_per_um for p in points])
         btbt = np.array([p.btbt_uA_per_um for p in points])
         therm = current - btbt
-        metrics = figures_of_merit(vg, current, design.temperature_K, ioff_target_uA_per_um, vdd_V)
-        return TransferCurve(design, float(vd_V), vg, current, btbt, therm,
-                             point_swing_mV_per_dec(vg, current), metrics)
+        settings = {"temperature_K": design.temperature_K,
+                    "ioff_target_uA_per_um": ioff_target_uA_per_um, "vdd_V": vdd_V,
+                    "ss_floor_uA_per_um": ss_floor_uA_per_um}
+        vg_all, id_all = vg, current
+        if refine and vg.size >= 3 and np.all(np.diff(vg) > 0):
+            solved = {float(v): p for v, p in zip(vg, points, strict=True)}
+
+            def evaluate(new: np.ndarray) -> np.ndarray:
+                out = []
+                for v in new:
+                    if cancelled is not None and cancelled():
+                        raise InterruptedError("transfer curve superseded")
+                    with slots if slots is not None else contextlib.nullcontext():
+                        bp = self.solve_bias(design, float(v), vd_V,
+                                             initial=_between(solved, float(v)))
+                    solved[float(v)] = bp
+                    out.append(bp.current_uA_per_um)
+                return np.array(out)
+
+            vg_all, id_all = refine_curve(vg, current, evaluate, **settings)
+        metrics = figures_of_merit(vg_all, id_all, **settings)
+        swing = point_swing_mV_per_dec(vg_all, id_all)[np.searchsorted(vg_all, vg)] \
+            if vg.size >= 2 and np.all(np.diff(vg) > 0) else point_swing_mV_per_dec(vg, current)
+        return TransferCurve(design, float(vd_V), vg, current, btbt, therm, swing, metrics,
+                             vg_all, id_all)
 
     def output_curve(self, design: Design, vg_V: float, vd_V: np.ndarray,
                      slots: threading.Semaphore | None = None) -> OutputCurve:
@@ -518,6 +560,18 @@ def _check_finite(bp: BiasPoint) -> None:
             raise SolverError(f"non-finite {name} at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V")
     if not np.isfinite(bp.current_uA_per_um):
         raise SolverError(f"non-finite current at Vg = {bp.vg_V:g} V, Vd = {bp.vd_V:g} V")
+
+
+def _between(solved: dict[float, BiasPoint], v: float) -> Electrostatics:
+    """Warm start for a gate voltage inside a solved sweep: the potential interpolated
+    linearly between the solved neighbours on either side (the nearest one at an end)."""
+    known = np.array(sorted(solved))
+    k = int(np.searchsorted(known, v))
+    if k == 0 or k == known.size:
+        return solved[float(known[min(k, known.size - 1)])].electrostatics
+    lo, hi = solved[float(known[k - 1])].electrostatics, solved[float(known[k])].electrostatics
+    f = (v - lo.vg_V) / (hi.vg_V - lo.vg_V)
+    return dataclasses.replace(lo, psi_V=lo.psi_V + f * (hi.psi_V - lo.psi_V))
 
 
 def _predict(points: list[BiasPoint], v: float, terminal: str) -> Electrostatics | None:
