@@ -11,6 +11,9 @@ import numba as _nb
 import numpy as np
 
 from sub60.physics.constants import HBAR2_2M0_EV_NM2
+from sub60.physics.tunneling import segment_integral_transverse
+
+_segment_integral_transverse = _nb.njit(cache=True, nogil=True)(segment_integral_transverse)
 
 
 @_nb.njit(cache=True, nogil=True, inline="always")
@@ -62,9 +65,16 @@ def wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
                 out[kk, ie] = np.inf
                 continue
             acc = 0.0
-            for i in range(nx - 1):
-                c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
-                v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
-                acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], two_band, gl_x, gl_w)
+            if two_band:  # kappa^2 = kappa_0^2 + k^2 on the k = 0 edges (tunneling eq. (3))
+                q = kvals[kk, ie] ** 2 / scale**2
+                for i in range(nx - 1):
+                    acc += _segment_integral_transverse(
+                        ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1], q,
+                        x[i + 1] - x[i], gl_x, gl_w)
+            else:  # one band: the rigid edge shift is exact
+                for i in range(nx - 1):
+                    c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
+                    v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
+                    acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], False, gl_x, gl_w)
             out[kk, ie] = 2.0 * scale * acc
     return out

@@ -138,9 +138,11 @@ def test_current_sign_follows_drain_bias(vd):
 
 @pytest.mark.parametrize("vd", [0.05, 0.1, 0.3, -0.1])
 def test_uniform_field_current_against_kane_double_integral(vd):
-    """Uniform-field junction, equal masses m: each transverse k sees a uniform field with
-    gap Eg + 2 hbar^2 k^2/2m, so T(E, k) = exp(-Kane exponent of that gap) (Kane 1961;
-    Sze & Ng 3rd ed.) for every connected energy. Independent reference: scipy dblquad of
+    """Uniform-field junction, equal masses m (= m_t): with kappa_x^2 = kappa_0^2 + k^2
+    (two-band dispersion, Kane 1961 — from memory) T(E, k) = exp(-[Kane exponent +
+    pi hbar k^2 Eg^1/2 / (q F sqrt(2 m))]) for every connected energy (derived in
+    physics.tunneling; Kane, J. Appl. Phys. 32, 83 (1961); Sze & Ng 3rd ed. for the k = 0
+    exponent). Independent reference: scipy dblquad of
     (2q/h) int dk/2pi int dE T [f_s - f_d]. Tolerance 2 %: sub60 integrates k with 10
     Gauss nodes on [0, k_max] across the step where an energy stops being connected, and
     E on a 90-point grid (quadrature error, measured ~1.4 % at the smallest bias)."""
@@ -153,8 +155,11 @@ def test_uniform_field_current_against_kane_double_integral(vd):
     kane_per_eg32 = (math.pi * math.sqrt(m * sc.m_e) * sc.e**1.5
                      / (2 * math.sqrt(2) * sc.e * sc.hbar * f * 1e9))
 
+    penalty_per_k2 = (math.pi * sc.hbar * 1e18 * math.sqrt(eg * sc.e)
+                      / (sc.e * f * 1e9 * math.sqrt(2 * m * sc.m_e)))  # per (1/nm)^2
+
     def integrand(e, k):
-        t = math.exp(-kane_per_eg32 * (eg + 2 * a * k * k) ** 1.5)
+        t = math.exp(-kane_per_eg32 * eg**1.5 - penalty_per_k2 * k * k)
         return t * (fd(e, 0.0, kT) - fd(e, -vd, kT))
 
     k_max = math.sqrt((0.0 - ec_drain) / (2 * a))

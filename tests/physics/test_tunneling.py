@@ -229,9 +229,10 @@ def test_unknown_model_raises_even_when_no_energy_is_in_the_gap(engine):
 
 
 def test_transverse_kernel_matches_numpy_reference_per_energy():
-    """The production kernel (transverse k per energy, compiled) against the numpy
-    reference `wkb_exponent` applied one energy at a time with the shifted edges
-    (the same WKB integral, REFERENCES §1); agreement to 1e-10 relative."""
+    """One-band model: the production kernel (transverse k per energy, compiled) against
+    the numpy reference `wkb_exponent` applied one energy at a time with the conduction
+    edge raised by hbar^2 k^2/2m (for one parabolic band that shift is exact); agreement
+    to 1e-10 relative."""
     rng = np.random.default_rng(3)
     x = np.cumsum(rng.uniform(0.1, 0.4, 120))
     ec = 0.6 - 0.5 * np.tanh((x - x.mean()) / 3.0) + 0.01 * rng.standard_normal(x.size)
@@ -239,12 +240,65 @@ def test_transverse_kernel_matches_numpy_reference_per_energy():
     e = np.linspace(-0.3, 0.3, 17)
     k = rng.uniform(0.0, 0.4, (4, e.size))
     up, down = 0.038 / 0.026, 0.038 / 0.09
-    got = wkb_exponent_transverse(x, ec, ev, up, down, k, e, 0.04)
+    got = wkb_exponent_transverse(x, ec, ev, up, down, k, e, 0.026, "one-band")
     for kk in range(k.shape[0]):
         for ie in range(e.size):
             ec_k, ev_k = ec + up * k[kk, ie] ** 2, ev - down * k[kk, ie] ** 2
             if e[ie] >= ev_k[0] or e[ie] <= ec_k[-1]:
                 assert got[kk, ie] == np.inf
             else:
-                ref = wkb_exponent(x, ec_k, ev_k, e[ie:ie + 1], 0.04)[0]
+                ref = wkb_exponent(x, ec_k, ev_k, e[ie:ie + 1], 0.026, "one-band")[0]
                 assert got[kk, ie] == pytest.approx(ref, rel=1e-10, abs=1e-12)
+
+
+def test_two_band_transverse_penalty_in_a_uniform_field():
+    """kappa_x^2 = kappa_0^2 + k^2 (two-band dispersion depends on |k|^2 only; Kane, J.
+    Appl. Phys. 32, 83 (1961), transverse-energy factor — from memory). In a uniform field
+    the exponent is then exactly Kane's plus pi hbar k^2 Eg^1/2 / (q F sqrt(2 m_t))
+    (derived: int sqrt(a (c^2 - u^2)) du = pi sqrt(a) c^2 / 2). The rigid edge shift by
+    hbar^2 k^2 / 2m_t used before gives a smaller penalty (half of it at midgap)."""
+    m = 0.04
+    x = np.linspace(-12.0, 12.0, 2401)
+    ec, ev = EG_INAS_EV / 2 - F_V_PER_NM * x, -EG_INAS_EV / 2 - F_V_PER_NM * x
+    h2m = sc.hbar**2 / (2 * sc.m_e * m) / sc.e * 1e18  # hbar^2/2m [eV nm^2]
+    k = np.array([[0.0], [0.1], [0.2], [0.3]])  # 1/nm
+    got = wkb_exponent_transverse(x, ec, ev, h2m, h2m, k, np.array([0.0]), m)[:, 0]
+    f_si = F_V_PER_NM * 1e9
+    penalty = (math.pi * sc.hbar * (k[:, 0] * 1e9) ** 2 * math.sqrt(EG_INAS_EV * sc.e)
+               / (sc.e * f_si * math.sqrt(2 * m * sc.m_e)))
+    want = kane_exponent(m, EG_INAS_EV, f_si) + penalty
+    np.testing.assert_allclose(got, want, rtol=2e-4)
+    # the former rigid shift of both edges: a smaller exponent at every k > 0
+    rigid = np.array([wkb_exponent(x, ec + h2m * kk**2, ev - h2m * kk**2, [0.0], m)[0]
+                      for kk in k[:, 0]])
+    assert np.all((rigid - rigid[0])[1:] < 0.9 * penalty[1:])
+
+
+@settings(max_examples=12, deadline=None)
+@given(st.integers(0, 10_000))
+def test_two_band_transverse_kernel_against_quad(seed):
+    """The compiled two-band transverse kernel against scipy.integrate.quad of
+    2 sqrt(max(kappa_0^2 + k^2, 0)) on the same piecewise-linear edges (independent
+    quadrature, breakpoints at the nodes); 1e-3 relative (Gauss-Legendre with square-root
+    turning points)."""
+    from scipy import integrate
+
+    from sub60.physics.constants import HBAR2_2M0_EV_NM2
+
+    rng = np.random.default_rng(seed)
+    x = np.cumsum(rng.uniform(0.05, 0.3, 150))
+    ec = 0.5 - 0.45 * np.tanh((x - x.mean()) / 2.5)
+    ev = ec - rng.uniform(0.3, 0.6)
+    e = np.array([rng.uniform(ec[-1] + 0.05, ev[0] - 0.05)])
+    m = rng.uniform(0.02, 0.08)
+    k = rng.uniform(0.0, 0.3)
+    got = wkb_exponent_transverse(x, ec, ev, 0.0, 0.0, np.array([[k]]), e, m)[0, 0]
+
+    def kappa(xx: float) -> float:
+        c = np.interp(xx, x, ec) - e[0]
+        v = e[0] - np.interp(xx, x, ev)
+        return math.sqrt(max(m / HBAR2_2M0_EV_NM2 * c * v / (c + v) + k * k, 0.0))
+
+    ref = 2 * integrate.quad(kappa, x[0], x[-1], points=x[1:-1], limit=400,
+                             epsabs=1e-10, epsrel=1e-10)[0]
+    assert got == pytest.approx(ref, rel=1e-3)
