@@ -502,13 +502,7 @@ def figures_of_merit(
       when that sample is not finite.
     """
     vg, current = _validated_curve(vg_V, id_uA_per_um)
-    for name, value in (
-        ("temperature_K", temperature_K),
-        ("ioff_target_uA_per_um", ioff_target_uA_per_um),
-        ("vdd_V", vdd_V),
-    ):
-        if not (math.isfinite(value) and value > 0.0):
-            raise ValueError(f"{name} must be finite and positive, got {value!r}")
+    _check_settings(temperature_K, ioff_target_uA_per_um, vdd_V)
     ith = DEFAULT_ITH_UA_PER_UM if ith_uA_per_um is None else float(ith_uA_per_um)
     if not (math.isfinite(ith) and ith > 0.0):
         raise ValueError(f"ith_uA_per_um must be finite and positive, got {ith_uA_per_um!r}")
@@ -599,6 +593,16 @@ def figures_of_merit(
     )
 
 
+def _check_settings(temperature_K: float, ioff_target_uA_per_um: float, vdd_V: float) -> None:
+    for name, value in (
+        ("temperature_K", temperature_K),
+        ("ioff_target_uA_per_um", ioff_target_uA_per_um),
+        ("vdd_V", vdd_V),
+    ):
+        if not (math.isfinite(value) and value > 0.0):
+            raise ValueError(f"{name} must be finite and positive, got {value!r}")
+
+
 def _ss_floor(ioff_target_uA_per_um: float, ss_floor_uA_per_um: float | None) -> float:
     floor = (DEFAULT_SS_FLOOR_PER_IOFF * ioff_target_uA_per_um if ss_floor_uA_per_um is None
              else float(ss_floor_uA_per_um))
@@ -657,6 +661,7 @@ def refinement_voltages(
     indicator is largest is common practice (no source).
     """
     vg, current = _validated_curve(vg_V, id_uA_per_um)
+    _check_settings(temperature_K, ioff_target_uA_per_um, vdd_V)
     floor = _ss_floor(ioff_target_uA_per_um, ss_floor_uA_per_um)
     log_all = _log10_current(current)
     slope = _log_slope_per_V(vg, log_all)

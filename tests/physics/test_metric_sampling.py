@@ -112,3 +112,11 @@ def test_default_design_metrics_agree_between_20_and_2p5_mV_steps():
     assert abs(a.ss_avg4_mV_per_dec.value - b.ss_avg4_mV_per_dec.value) <= 1.0
     assert a.i60_uA_per_um.value == pytest.approx(b.i60_uA_per_um.value, rel=0.03)
     assert a.ss_min_current_uA_per_um.value >= a.ss_floor_uA_per_um
+
+
+def test_refinement_rejects_bad_settings_by_name():
+    vg = np.linspace(0.0, 0.2, 5)
+    with pytest.raises(ValueError, match="ioff_target_uA_per_um"):
+        refinement_voltages(vg, current(vg), ioff_target_uA_per_um=0.0)
+    with pytest.raises(ValueError, match="ss_floor_uA_per_um"):
+        figures_of_merit(vg, current(vg), ss_floor_uA_per_um=-1.0)
