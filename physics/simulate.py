@@ -51,6 +51,7 @@ from sub60.physics.transport import (
     BandProfile,
     Spectrum,
     band_to_band,
+    pair_transmission,
     thermionic_current,
     tunnel_window,
 )
@@ -309,6 +310,58 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         electron_thermionic_uA_per_um=i_n, hole_thermionic_uA_per_um=i_p,
         timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1},
         warnings=design_warnings(d) + _bending_warning(es, sb))
+
+
+@dataclass(frozen=True)
+class TransmissionComparison:
+    """T(E) at k = 0 of one subband pair by WKB and by the exact two-band solver.
+
+    pair : e.g. "HH1-C1"; energy_eV : (nE,) [eV]; wkb, exact : (nE,) T [-]; wkb_model :
+    the WKB kappa model used ("two-band" or "one-band").
+    """
+
+    pair: str
+    energy_eV: np.ndarray
+    wkb: np.ndarray
+    exact: np.ndarray
+    wkb_model: str
+
+
+def compare_transmissions(bp: BiasPoint, pair: str | None = None, n: int = 200,
+                          wkb_model: str = "two-band") -> TransmissionComparison | None:
+    """WKB and exact two-band T(E, k = 0) of a bias point's subband pair, side by side.
+
+    Parameters
+    ----------
+    bp : a solved bias point; pair : "HH1-C1" etc., default the pair carrying the most
+    band-to-band current; n : energies, uniform between the drain conduction edge and
+    the source valence edge [-]; wkb_model : "two-band" or "one-band".
+
+    Returns
+    -------
+    TransmissionComparison, or None when no pair carries current or the pair's source
+    valence edge lies below its drain conduction edge (no band-to-band energies).
+    """
+    sb = device_subbands(bp.design)
+    if pair is None:
+        carrying = {k: v for k, v in bp.pair_currents_uA_per_um.items() if v != 0.0}
+        if not carrying:
+            return None
+        pair = max(carrying, key=lambda k: abs(carrying[k]))
+    names = [f"{v}-{c}" for v in bp.valence_labels for c in bp.conduction_labels]
+    if pair not in names:
+        raise ValueError(f"pair: {pair!r} unknown; allowed {', '.join(names)}")
+    vlab, clab = pair.split("-")
+    iv, ic = bp.valence_labels.index(vlab), bp.conduction_labels.index(clab)
+    cb = BandProfile(clab, bp.conduction_eV[ic], sb.conduction[ic].inplane_mass)
+    vb = BandProfile(vlab, bp.valence_eV[iv], sb.valence[iv].inplane_mass)
+    lo, hi = cb.edge_eV[-1], vb.edge_eV[0]
+    if hi <= lo:
+        return None
+    e = np.linspace(lo, hi, n + 2)[1:-1]
+    _, t_wkb = pair_transmission(bp.x_nm, cb, vb, e, wkb_model)
+    _, t_exact = pair_transmission(bp.x_nm, cb, vb, e, "two-band-exact")
+    return TransmissionComparison(pair, e, t_wkb, t_exact, wkb_model)
 
 
 def _bending_warning(es: Electrostatics, sb) -> tuple[str, ...]:

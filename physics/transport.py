@@ -42,8 +42,9 @@ from sub60.physics.constants import (
     HBAR_J_S,
     PLANCK_J_S,
 )
+from sub60.physics.quantum import two_band_transmission
 from sub60.physics.statistics import fermi_half
-from sub60.physics.tunneling import wkb_exponent_transverse
+from sub60.physics.tunneling import TUNNELLING_MODELS, wkb_exponent_transverse
 
 N_K = 6  # Gauss-Legendre nodes of the transverse-k integral (per energy; 2e-4 rel. vs 40)
 N_E = 48  # energies of each pair's current integral, over where it flows
@@ -147,7 +148,7 @@ def _pair_transmission_integral(
     """For one (valence, conduction) subband pair: (1/pi) int_0^inf T(E, k) dk [1/m]
     (zero without ``k_integral``) and T(E, k = 0), at each energy."""
     m_r = cb.mass * vb.mass / (cb.mass + vb.mass)
-    m_t = 2 * m_r if model == "two-band" else cb.mass
+    m_t = cb.mass if model == "one-band" else 2 * m_r
     # transverse kinetic energy closes the source-valence/drain-conduction overlap:
     # energy E stays connected for a k^2 < min((Ev_src - E)/b, (E - Ec_drn)/a),
     # so each energy gets its own Gauss-Legendre nodes on [0, k_max(E)]
@@ -160,10 +161,34 @@ def _pair_transmission_integral(
         wk = np.vstack([np.zeros_like(e), 0.5 * k_max[None, :] * wg[:, None]])
     else:
         k, wk = np.zeros((1, e.size)), np.zeros((1, e.size))
-    expo = wkb_exponent_transverse(x_nm, cb.edge_eV, vb.edge_eV, a, b, k, e, m_t, model)
-    trans = np.where(k_max[None, :] > 0, np.exp(-expo), 0.0)
+    if model == "two-band-exact":
+        trans = np.where(k_max[None, :] > 0,
+                         two_band_transmission(x_nm, cb.edge_eV, vb.edge_eV, m_t, k, e), 0.0)
+    else:
+        expo = wkb_exponent_transverse(x_nm, cb.edge_eV, vb.edge_eV, a, b, k, e, m_t, model)
+        trans = np.where(k_max[None, :] > 0, np.exp(-expo), 0.0)
     # int dk/2pi over all k = (1/pi) int_0^inf dk ; k in 1/nm -> 1/m
     return (wk * trans).sum(axis=0) / np.pi * 1e9, trans[0]
+
+
+def pair_transmission(
+    x_nm: np.ndarray, cb: BandProfile, vb: BandProfile, energy_eV: np.ndarray,
+    model: str = "two-band",
+) -> tuple[np.ndarray, np.ndarray]:
+    """Transmission of one (valence, conduction) subband pair.
+
+    Parameters
+    ----------
+    x_nm : (nx,) [nm]; cb, vb : the pair's profiles; energy_eV : (nE,) [eV];
+    model : one of TUNNELLING_MODELS.
+
+    Returns
+    -------
+    (tk, t0) : (1/pi) int_0^inf T(E, k) dk [1/m] and T(E, k = 0) [-], each (nE,).
+    """
+    if model not in TUNNELLING_MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
+    return _pair_transmission_integral(x_nm, cb, vb, np.asarray(energy_eV, float), model)
 
 
 def band_to_band(
@@ -177,7 +202,9 @@ def band_to_band(
     ----------
     x_nm : (nx,) path along transport [nm]; conduction, valence : subband profiles;
     efs_eV, efd_eV : source and drain Fermi levels [eV]; kT_eV : thermal energy [eV];
-    model : imaginary wave-vector model ("two-band" or "one-band");
+    model : "two-band" or "one-band" (WKB with that imaginary wave-vector) or
+        "two-band-exact" (exact transmission of the two-band Hamiltonian,
+        `physics.quantum`);
     energies_eV : a fixed energy grid for every pair; by default each pair is first
         scanned at k = 0 on `energy_grid` (N_E_SCAN points), and its current integrated
         on N_E cosine-spaced points spanning only the energies where it flows (J at
@@ -190,6 +217,8 @@ def band_to_band(
         (`physics.subbands.DeviceSubbands.pair_weights`); None gives every pair weight 1
         (independent bulk-like channels). Pairs of weight below 1e-9 are skipped.
     """
+    if model not in TUNNELLING_MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
     fixed = energies_eV is not None
     e = np.asarray(energies_eV, float) if fixed else \
         energy_grid(conduction, valence, efs_eV, efd_eV, kT_eV, n=N_E_SCAN)

@@ -39,8 +39,11 @@ import numpy as np
 from sub60.physics.constants import HBAR2_2M0_EV_NM2
 
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(3)
-#: The imaginary wave-vector models, eqs. (1) and (2): the names every caller uses.
-TUNNELLING_MODELS: tuple[str, ...] = ("two-band", "one-band")
+#: The WKB imaginary wave-vector models, eqs. (1) and (2).
+WKB_MODELS: tuple[str, ...] = ("two-band", "one-band")
+#: Every tunnelling model, the names every caller uses: the WKB ones and the exact
+#: transmission of the two-band Hamiltonian (`physics.quantum`).
+TUNNELLING_MODELS: tuple[str, ...] = (*WKB_MODELS, "two-band-exact")
 
 
 def kappa_per_nm(
@@ -63,7 +66,7 @@ def kappa_per_nm(
     elif model == "one-band":
         arg = gc
     else:
-        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {WKB_MODELS}")
     return np.where(inside, np.sqrt(np.abs(arg) * mass_rel / HBAR2_2M0_EV_NM2), 0.0)
 
 
@@ -94,8 +97,8 @@ def wkb_exponent(
     -------
     (..., nE) WKB exponent (T = exp(-exponent)).
     """
-    if model not in TUNNELLING_MODELS:
-        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
+    if model not in WKB_MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {WKB_MODELS}")
     x = np.asarray(x_nm, float)
     h = np.diff(x)
     e = np.asarray(energy_eV, float)[:, None]
@@ -141,8 +144,8 @@ def wkb_exponent_transverse(
     -------
     (nk, nE) exponent.
     """
-    if model not in TUNNELLING_MODELS:
-        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
+    if model not in WKB_MODELS:
+        raise ValueError(f"tunnelling model: {model!r} unknown; allowed {WKB_MODELS}")
     kv = np.atleast_2d(np.asarray(k_per_nm, float))
     e = np.asarray(energy_eV, float)
     ec = np.asarray(ec_eV, float)

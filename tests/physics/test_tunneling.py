@@ -18,7 +18,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from sub60.physics.tunneling import (
-    TUNNELLING_MODELS,
+    WKB_MODELS,
     kappa_per_nm,
     wkb_exponent,
     wkb_exponent_transverse,
@@ -184,7 +184,7 @@ def random_profiles(draw):
     lo, hi = float(ev.min()) - 0.1, float(ec.max()) + 0.1
     energies = np.array([lo + (hi - lo) * draw(unit) for _ in range(ne)])
     mass = draw(st.floats(0.01, 1.0))
-    model = draw(st.sampled_from(TUNNELLING_MODELS))
+    model = draw(st.sampled_from(WKB_MODELS))
     return x, ec, ev, energies, mass, model
 
 
