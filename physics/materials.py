@@ -12,8 +12,10 @@ Conventions
 * Electron affinity chi is the 300 K value and is kept constant with temperature, so
   the whole temperature shift of the gap goes into the valence-band edge.
 * Direct-gap III-Vs: one isotropic Gamma valley of mass `electron_mass`; the satellite
-  L and X valleys are not counted (GaSb's L valleys lie only ~0.06 eV above Gamma (VMR
-  2001, from memory), so its conduction-band density of states is underestimated).
+  L and X valleys are not counted in the charge or the tunnelling (GaSb's L valleys lie
+  only ~0.06 eV above Gamma at 0 K (VMR 2001, from memory), so its conduction-band
+  density of states is underestimated). Their gaps and masses (`SATELLITE_VALLEYS`)
+  serve a warning when a confined satellite state lies below the Gamma subband C1.
 * Si and Ge: `electron_mass` is the density-of-states mass of one valley,
   (m_l m_t^2)^(1/3), and `electron_dos_mass` that of the whole valley set.
 * Holes: heavy- and light-hole masses from the Luttinger parameters (Luttinger, Phys.
@@ -761,3 +763,69 @@ def _lookup(name: str, records: dict, kind: str, hint: str = ""):
         if key.lower() == wanted:
             return record
     raise ValueError(f"unknown {kind} {name!r}; known: {', '.join(records)}{hint}")
+
+
+# --- satellite conduction valleys ----------------------------------------------------
+@dataclass(frozen=True)
+class SatelliteValley:
+    """A conduction-band valley away from Gamma (L or X) of a direct-gap III-V.
+
+    Parameters
+    ----------
+    name : "L" or "X"
+    eg0_eV : gap from the valence-band maximum to the valley minimum at 0 K [eV]
+    varshni_alpha_eV_per_K, varshni_beta_K : Varshni law of that gap [eV/K], [K]
+    longitudinal_mass, transverse_mass : valley masses m_l, m_t [m0]
+    source : where the numbers come from
+    """
+
+    name: str
+    eg0_eV: float
+    varshni_alpha_eV_per_K: float
+    varshni_beta_K: float
+    longitudinal_mass: float
+    transverse_mass: float
+    source: str
+
+    def gap_eV(self, temperature_K: float) -> float:
+        """Gap to this valley at a temperature (Varshni) [eV]."""
+        return float(varshni_gap_eV(self.eg0_eV, self.varshni_alpha_eV_per_K, self.varshni_beta_K,
+                                    temperature_K))
+
+    def confinement_masses(self) -> tuple[float, ...]:
+        """Masses along [001] of the valleys of this set, lowest confinement first [m0].
+
+        L: four valleys along <111>, 1/m_z = cos^2(t)/m_l + sin^2(t)/m_t with cos^2(t) = 1/3
+        (all four alike). X: the [001] pair has m_z = m_l, the [100] and [010] pairs m_t
+        (ellipsoidal valleys; e.g. Davies 1998 — common practice, no source).
+        """
+        if self.name == "L":
+            return (1.0 / (1.0 / (3.0 * self.longitudinal_mass)
+                           + 2.0 / (3.0 * self.transverse_mass)),)
+        return (self.longitudinal_mass, self.transverse_mass)
+
+
+_VMR_MEMORY = f"{_VMR}, Tables (from memory: confirm before relying on an exact figure)"
+#: L and X valleys of the direct-gap III-Vs (VMR 2001, from memory). InSb's valley masses
+#: were not recalled: InAs's are used as an estimate. In0.53Ga0.47As: linear interpolation
+#: of GaAs and InAs without the bowing parameters (which would lower both gaps).
+SATELLITE_VALLEYS: dict[str, tuple[SatelliteValley, ...]] = {
+    "GaAs": (SatelliteValley("L", 1.815, 0.605e-3, 204.0, 1.9, 0.0754, _VMR_MEMORY),
+             SatelliteValley("X", 1.981, 0.460e-3, 204.0, 1.3, 0.23, _VMR_MEMORY)),
+    "InAs": (SatelliteValley("L", 1.133, 0.276e-3, 93.0, 0.64, 0.05, _VMR_MEMORY),
+             SatelliteValley("X", 1.433, 0.276e-3, 93.0, 1.13, 0.16, _VMR_MEMORY)),
+    "GaSb": (SatelliteValley("L", 0.875, 0.597e-3, 140.0, 1.3, 0.10, _VMR_MEMORY),
+             SatelliteValley("X", 1.141, 0.475e-3, 94.0, 1.51, 0.22, _VMR_MEMORY)),
+    "InSb": (SatelliteValley("L", 0.93, 0.32e-3, 170.0, 0.64, 0.05,
+                             _VMR_MEMORY + "; masses: InAs values as an estimate"),
+             SatelliteValley("X", 0.63, 0.32e-3, 170.0, 1.13, 0.16,
+                             _VMR_MEMORY + "; masses: InAs values as an estimate")),
+}
+SATELLITE_VALLEYS["In0.53Ga0.47As"] = tuple(
+    SatelliteValley(g.name, _ga_in_as(_X_GA, g.eg0_eV, i.eg0_eV),
+                    _ga_in_as(_X_GA, g.varshni_alpha_eV_per_K, i.varshni_alpha_eV_per_K),
+                    _ga_in_as(_X_GA, g.varshni_beta_K, i.varshni_beta_K),
+                    _ga_in_as(_X_GA, g.longitudinal_mass, i.longitudinal_mass),
+                    _ga_in_as(_X_GA, g.transverse_mass, i.transverse_mass),
+                    "derived: linear GaAs-InAs interpolation (no bowing) of " + _VMR_MEMORY)
+    for g, i in zip(SATELLITE_VALLEYS["GaAs"], SATELLITE_VALLEYS["InAs"], strict=True))

@@ -45,7 +45,7 @@ from sub60.physics.metrics import (
 from sub60.physics.poisson import SolverError
 from sub60.physics.statistics import inverse_fermi_half
 from sub60.physics.structure import band_parameters
-from sub60.physics.subbands import device_subbands
+from sub60.physics.subbands import device_subbands, valley_warning
 from sub60.physics.tables import table
 from sub60.physics.transport import (
     BandProfile,
@@ -384,7 +384,9 @@ DEGENERACY_WARN_EV = 0.5  # Fermi level this far inside a band: parabolic DOS ov
 def design_warnings(design: Design) -> tuple[str, ...]:
     """Warnings about the model's validity for a design (empty when none).
 
-    An indirect gap (no phonon-assisted tunnelling), and contacts doped so heavily that
+    An indirect gap (no phonon-assisted tunnelling), a body so thin that a satellite (L
+    or X) valley's confined state lies below the Gamma subband C1, and contacts doped
+    so heavily that
     the parabolic density of states puts the Fermi level more than 0.5 eV inside the
     band (non-parabolicity and satellite valleys, not modelled in the charge, would
     hold it lower).
@@ -398,6 +400,9 @@ def _design_warnings(design: Design) -> tuple[str, ...]:
     text = check_tunnelling_material(get_semiconductor(design.material))
     if text:
         out.append(text)
+    valley = valley_warning(design)
+    if valley:
+        out.append(valley)
     bands = band_parameters(design)
     n_src = ("source_doping_cm3", design.source_doping_cm3,
              bands.nv_cm3 if design.source_type == "p" else bands.nc_cm3)

@@ -88,6 +88,8 @@ class DeviceSubbands:
 
     conduction: tuple[Subband, ...]
     valence: tuple[Subband, ...]
+    #: (y [nm], body mask per cell, electron barrier per cell [eV], barrier mass [m0])
+    electron_well: tuple = ()
 
     @property
     def conduction_shift_eV(self) -> float:
@@ -208,4 +210,53 @@ def device_subbands(design: Design) -> DeviceSubbands:
     lh = states(vh, sc_rec.light_hole_mass_confined, N_LIGHT, "LH", "valence",
                 sc_rec.light_hole_mass_inplane)
     val = sorted(hh + lh, key=lambda s: s.energy_eV)
-    return DeviceSubbands(conduction=tuple(cond), valence=tuple(val))
+    return DeviceSubbands(conduction=tuple(cond), valence=tuple(val),
+                          electron_well=(y, body, ve, m_bar))
+
+
+@lru_cache(maxsize=64)
+def satellite_edges(design: Design) -> dict[str, float]:
+    """Lowest confined state of each satellite valley set (L, X) of the body [eV].
+
+    Energies above the bulk Gamma conduction edge, comparable with the confinement
+    energy of C1 (`DeviceSubbands.conduction[0].energy_eV`): the valley offset
+    E_g^valley(T) - E_g^Gamma(T) (Varshni laws of `materials.SATELLITE_VALLEYS`) plus the
+    ground state of the same finite well with the valley's mass along the confinement
+    axis, parabolic, the barrier lowered by the offset. Empty for materials without
+    satellite data (Si, Ge: their indirect gap is flagged elsewhere).
+    """
+    from sub60.physics.materials import SATELLITE_VALLEYS
+
+    rec = get_semiconductor(design.material)
+    valleys = SATELLITE_VALLEYS.get(rec.name, ())
+    if not valleys:
+        return {}
+    y, body, ve, m_bar = device_subbands(design).electron_well
+    eg = float(rec.bandgap_eV(design.temperature_K))
+    out = {}
+    for v in valleys:
+        offset = v.gap_eV(design.temperature_K) - eg
+        best = np.inf
+        for m_z in v.confinement_masses():
+            barrier = np.where(body, 0.0, np.maximum(ve - offset, 0.0))
+            sb = solve_subbands(y, barrier, np.where(body, m_z, m_bar), n_states=1)
+            best = min(best, offset + float(sb.energies_eV[0]))
+        out[v.name] = best
+    return out
+
+
+def valley_warning(design: Design) -> str | None:
+    """A sentence when a satellite valley's lowest confined state lies below the Gamma
+    subband C1 that the tunnelling model uses (None otherwise)."""
+    edges = satellite_edges(design)
+    if not edges:
+        return None
+    c1 = device_subbands(design).conduction[0].energy_eV
+    name = min(edges, key=edges.get)
+    if edges[name] >= c1:
+        return None
+    return (f"the lowest conduction state of this {design.body_thickness_nm:g} nm "
+            f"{design.material} body is {name}-like ({edges[name]:.3f} eV above the bulk "
+            f"Gamma edge, Gamma C1 at {c1:.3f} eV): the tunnelling model uses the Gamma "
+            "subbands only, so band-to-band currents (an indirect, phonon-assisted path "
+            "here) and the electron charge are not reliable.")
