@@ -676,9 +676,8 @@ def refinement_voltages(
     # where log Id changes fastest
     dlog = np.abs(np.diff(log_all))
     top = np.fmax(log_all[:-1], log_all[1:])
-    with np.errstate(invalid="ignore"):
-        fast = (dlog > max_decades) & (top >= math.log10(floor) if floor > 0 else True)
-    split |= np.nan_to_num(fast, nan=False).astype(bool)
+    above = top >= math.log10(floor) if floor > 0 else np.isfinite(top)
+    split |= (dlog > max_decades) & above  # NaN (missing samples) compares False
     # around the SS_min sample
     i_ss = _ss_min_index(current, slope, floor)
     if i_ss is not None:

@@ -589,8 +589,8 @@ class Simulator:
 
             vg_all, id_all = refine_curve(vg, current, evaluate, **settings)
         metrics = figures_of_merit(vg_all, id_all, **settings)
-        swing = point_swing_mV_per_dec(vg_all, id_all)[np.searchsorted(vg_all, vg)] \
-            if vg.size >= 2 and np.all(np.diff(vg) > 0) else point_swing_mV_per_dec(vg, current)
+        # the point swing at the requested samples, from their nearest (refined) neighbours
+        swing = point_swing_mV_per_dec(vg_all, id_all)[np.searchsorted(vg_all, vg)]
         return TransferCurve(design, float(vd_V), vg, current, btbt, therm, swing, metrics,
                              vg_all, id_all)
 
