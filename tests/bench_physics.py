@@ -7,8 +7,9 @@
    unknowns, and the ratio (time per Newton step) / (one sparse LU factor + solve of the
    same Jacobian with scipy.sparse.linalg.splu), both measured here.
 2. Pipeline: a 41-point transfer curve of the default design (fresh simulator each
-   time) with the split Poisson / confinement / tunnelling+current, and one warm bias
-   point with its current.
+   time, metrics refined adaptively) with the split Poisson / confinement /
+   tunnelling+current, the same without refinement, and one warm bias point with its
+   current for the WKB model and for the exact two-band model.
 3. Thread limit: the cost of the scoped one-BLAS-thread limit the solver takes around
    each solve (cached threadpoolctl controller), beside a fresh
    ``threadpoolctl.threadpool_limits`` context, and its ratio to a warm solve.
@@ -93,21 +94,30 @@ def bench_pipeline(repeats: int) -> None:
         pts = [sim.solve_bias(d, float(v), 0.3) for v in vg]  # cached: read the timings
         for k in split:
             split[k].append(sum(p.timings_s[k] for p in pts))
-    print("Pipeline, default design")
-    print(f"  41-point transfer curve: median {median_ms(totals):.0f} ms "
-          f"(Poisson {median_ms(split['poisson']):.0f} ms, confinement "
-          f"{median_ms(split['confinement']):.0f} ms, tunnelling+current "
-          f"{median_ms(split['tunnelling']):.0f} ms)")
-    sim = Simulator()
-    sim.solve_bias(d, 0.2, 0.3)
-    warm = []
-    for i in range(repeats):
-        v = 0.2 + 0.02 * ((i % 2) + 1) + 1e-4 * i  # a new point each time, 20 mV away
+    plain = []
+    for _ in range(max(3, repeats // 3)):
         t = time.perf_counter()
-        bp = sim.solve_bias(d, v, 0.3)
-        warm.append(time.perf_counter() - t)
-    print(f"  warm bias point with current: median {median_ms(warm):.1f} ms "
-          f"(Id = {bp.current_uA_per_um:.3g} uA/um)")
+        Simulator().transfer_curve(d, vg, 0.3, refine=False)
+        plain.append(time.perf_counter() - t)
+    n_refined = Simulator().transfer_curve(d, vg, 0.3).vg_refined_V.size
+    print("Pipeline, default design")
+    print(f"  41-point transfer curve (refined to {n_refined} points for the metrics): median "
+          f"{median_ms(totals):.0f} ms (requested points: Poisson "
+          f"{median_ms(split['poisson']):.0f} ms, confinement "
+          f"{median_ms(split['confinement']):.0f} ms, tunnelling+current "
+          f"{median_ms(split['tunnelling']):.0f} ms); without refinement "
+          f"{median_ms(plain):.0f} ms")
+    for model in ("two-band", "two-band-exact"):
+        sim = Simulator(model=model)
+        sim.solve_bias(d, 0.2, 0.3)
+        warm = []
+        for i in range(repeats):
+            v = 0.2 + 0.02 * ((i % 2) + 1) + 1e-4 * i  # a new point each time, 20 mV away
+            t = time.perf_counter()
+            bp = sim.solve_bias(d, v, 0.3)
+            warm.append(time.perf_counter() - t)
+        print(f"  warm bias point with current, model {model}: median {median_ms(warm):.1f} ms "
+              f"(Id = {bp.current_uA_per_um:.3g} uA/um)")
 
 
 def bench_thread_limit(repeats: int) -> None:
