@@ -359,8 +359,8 @@ def compare_transmissions(bp: BiasPoint, pair: str | None = None, n: int = 200,
     if hi <= lo:
         return None
     e = np.linspace(lo, hi, n + 2)[1:-1]
-    _, t_wkb = pair_transmission(bp.x_nm, cb, vb, e, wkb_model)
-    _, t_exact = pair_transmission(bp.x_nm, cb, vb, e, "two-band-exact")
+    _, t_wkb = pair_transmission(bp.x_nm, cb, vb, e, wkb_model, k_integral=False)
+    _, t_exact = pair_transmission(bp.x_nm, cb, vb, e, "two-band-exact", k_integral=False)
     return TransmissionComparison(pair, e, t_wkb, t_exact, wkb_model)
 
 

@@ -173,22 +173,24 @@ def _pair_transmission_integral(
 
 def pair_transmission(
     x_nm: np.ndarray, cb: BandProfile, vb: BandProfile, energy_eV: np.ndarray,
-    model: str = "two-band",
+    model: str = "two-band", k_integral: bool = True,
 ) -> tuple[np.ndarray, np.ndarray]:
     """Transmission of one (valence, conduction) subband pair.
 
     Parameters
     ----------
     x_nm : (nx,) [nm]; cb, vb : the pair's profiles; energy_eV : (nE,) [eV];
-    model : one of TUNNELLING_MODELS.
+    model : one of TUNNELLING_MODELS; k_integral : also integrate over k.
 
     Returns
     -------
-    (tk, t0) : (1/pi) int_0^inf T(E, k) dk [1/m] and T(E, k = 0) [-], each (nE,).
+    (tk, t0) : (1/pi) int_0^inf T(E, k) dk [1/m] (zeros without ``k_integral``) and
+    T(E, k = 0) [-], each (nE,).
     """
     if model not in TUNNELLING_MODELS:
         raise ValueError(f"tunnelling model: {model!r} unknown; allowed {TUNNELLING_MODELS}")
-    return _pair_transmission_integral(x_nm, cb, vb, np.asarray(energy_eV, float), model)
+    return _pair_transmission_integral(x_nm, cb, vb, np.asarray(energy_eV, float), model,
+                                       k_integral)
 
 
 def band_to_band(
