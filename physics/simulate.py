@@ -193,9 +193,10 @@ class TransferCurve:
     """Id-Vg of a design at fixed V_d, with its figures of merit.
 
     vg_V, id_uA_per_um, btbt_uA_per_um, thermionic_uA_per_um, ss_mV_per_dec : at the
-    requested gate voltages; vg_refined_V, id_refined_uA_per_um : the requested samples
-    plus those added by `physics.metrics.refine_curve`, from which the metrics and the
-    point swing are taken (equal to the requested ones without refinement).
+    requested gate voltages (the point swing from those samples alone); vg_refined_V,
+    id_refined_uA_per_um : the requested samples plus those added by
+    `physics.metrics.refine_curve`, from which the metrics are taken (equal to the
+    requested ones without refinement).
     """
 
     design: Design
@@ -465,8 +466,13 @@ class Simulator:
             self._last.clear()
 
     def solve_bias(self, design: Design, vg_V: float, vd_V: float,
-                   initial: Electrostatics | None = None) -> BiasPoint:
-        """One bias point; cached; warm-started from the design's last solution."""
+                   initial: Electrostatics | None = None, store: bool = True) -> BiasPoint:
+        """One bias point; cached; warm-started from the design's last solution.
+
+        ``store=False`` (used for the points a transfer curve adds by refinement) reads
+        the cache but neither stores the point nor makes it the design's warm start, so
+        that later sweeps follow the same continuation path with or without refinement.
+        """
         vg_V, vd_V = check_bias(vg_V, vd_V)
         key = (design, vg_V, vd_V)
         hit = self._cache.get(key)
@@ -483,6 +489,8 @@ class Simulator:
         if notes:
             bp = dataclasses.replace(bp, solver_notes=notes)
         _check_finite(bp)
+        if not store:
+            return bp
         with self._lock:
             self._last[design] = es
             if len(self._last) > 16:
@@ -582,15 +590,16 @@ class Simulator:
                         raise InterruptedError("transfer curve superseded")
                     with slots if slots is not None else contextlib.nullcontext():
                         bp = self.solve_bias(design, float(v), vd_V,
-                                             initial=_between(solved, float(v)))
+                                             initial=_between(solved, float(v)), store=False)
                     solved[float(v)] = bp
                     out.append(bp.current_uA_per_um)
                 return np.array(out)
 
             vg_all, id_all = refine_curve(vg, current, evaluate, **settings)
         metrics = figures_of_merit(vg_all, id_all, **settings)
-        # the point swing at the requested samples, from their nearest (refined) neighbours
-        swing = point_swing_mV_per_dec(vg_all, id_all)[np.searchsorted(vg_all, vg)]
+        # the point swing of the requested samples alone: a refinement decision (which
+        # can differ between two solves of the same curve at round-off) never changes it
+        swing = point_swing_mV_per_dec(vg, current)
         return TransferCurve(design, float(vd_V), vg, current, btbt, therm, swing, metrics,
                              vg_all, id_all)
 

@@ -159,11 +159,8 @@ def test_transfer_twin_json(capsys):
             else:
                 assert value == pytest.approx(expected, rel=1e-4, abs=1e-9), key
         # SS_min is read from the refined curve (physics.metrics.refine_curve) above the
-        # floor Ioff/100, so it is at most the least printed swing above that floor
-        finite = [s for s, i in zip(part["ss_mV_per_dec"], part["id_uA_per_um"], strict=True)
-                  if s is not None and i >= 1e-5]
-        if part["metrics"]["ss_min_mV_per_dec"] is not None and finite:
-            assert part["metrics"]["ss_min_mV_per_dec"] <= min(finite) * (1 + 1e-9)
+        # floor Ioff/100, not from the printed swings of the requested samples; it equals
+        # the Python interface's value (checked above)
 
 
 def test_transfer_csv_with_twin(capsys):

@@ -75,9 +75,11 @@ def test_subband_edges_lie_above_the_bulk_edges_by_confinement(point):
 
 
 def test_curve_metrics_and_swing_are_those_of_its_points(curve):
-    """The curve's figures of merit and point swing are `figures_of_merit` and
-    `point_swing_mV_per_dec` of its own Id(Vg) (one definition of each)."""
-    ref = figures_of_merit(VG, curve.id_uA_per_um, 300.0)
+    """The curve's figures of merit are `figures_of_merit` of its refined Id(Vg) (the
+    requested samples plus those `refine_curve` added) and its point swing is
+    `point_swing_mV_per_dec` of the requested samples (one definition of each)."""
+    assert np.all(np.isin(VG, curve.vg_refined_V))
+    ref = figures_of_merit(curve.vg_refined_V, curve.id_refined_uA_per_um, 300.0)
     assert ref.to_dict() == curve.metrics.to_dict()
     np.testing.assert_array_equal(point_swing_mV_per_dec(VG, curve.id_uA_per_um),
                                   curve.ss_mV_per_dec)
@@ -289,7 +291,7 @@ def test_import_has_no_side_effects_and_a_clean_namespace():
     assert r["physics"] == r["root"]
     submodules = {"design", "simulate", "electrostatics", "poisson", "structure", "mesh",
                   "materials", "constants", "statistics", "subbands", "confinement",
-                  "transport", "tunneling", "metrics", "tables"}
+                  "transport", "tunneling", "metrics", "tables", "quantum"}
     assert set(r["public"]) <= set(r["physics"]) | submodules
     assert "scipy" not in r["public"] and "threadpool_limits" not in r["public"]
 
