@@ -34,7 +34,7 @@ from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_
 SCHEMA_NAME = "sub60.snapshot"
 SCHEMA_VERSION = 1
 #: Version written when the installed package metadata cannot be read.
-FALLBACK_VERSION = "0.1.0+unknown"
+FALLBACK_VERSION = "0.2.0+unknown"
 
 #: Limits of the settings (engineering choices, no source).
 VG_POINTS_RANGE = (3, 201)
