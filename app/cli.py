@@ -162,6 +162,8 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--vdd", type=float, default=0.3, help="supply for Ion = Id(Voff + Vdd) [V]")
     common(sub.add_parser("output", help="output curves Id-Vd"), "0.3", "0:0.5:11")
     add_snapshot_parser(sub)
+    from sub60.app.sweep_cli import add_sweep_parser
+    add_sweep_parser(sub)
     return p
 
 
@@ -177,6 +179,8 @@ def main(argv: list[str] | None = None) -> int:
         status = 0
         if a.command == "snapshot":
             out, status = run_snapshot(a)
+        elif a.command == "sweep":
+            out, status = a.sweep_handler(a)
         else:
             out = handlers[a.command](a)
     except UsageError as exc:

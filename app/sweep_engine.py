@@ -1,0 +1,488 @@
+"""Run a sweep on Dask: one task per design, a content-addressed cache, a streamed results table.
+
+Each design's transfer curve and figures of merit is one task, `evaluate_design`, a pure
+function of (design, bias plan, physics options, model version). The task key is the
+SHA-256 of the canonical JSON of those inputs (`task_key`), so Dask deduplicates equal
+designs and the output directory's cache (``cache/<2 hex>/<key>.json``, one file per
+design, written atomically) lets a rerun or an extended sweep compute only what is new.
+
+The client is a `dask.distributed.LocalCluster` (one single-threaded worker process per
+core) unless a scheduler address is given. Results arrive in completion order; the table
+(``results.parquet`` and ``results.csv``, rows in sweep order) is rewritten atomically
+every few seconds and at the end, so an interrupted sweep keeps what it computed. A
+design whose solver fails is a row with the failure message; a task lost with its worker
+is rescheduled by Dask (``retries``) and, if it is lost again, recorded as a failed row
+that is not cached.
+
+UI-free: this module imports no Panel/Bokeh; a page drives `run_sweep` through its
+``progress`` callback and ``cancel`` event and reads the returned `SweepResult`.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import dataclasses
+import hashlib
+import importlib.resources
+import json
+import math
+import os
+import socket
+import tempfile
+import threading
+import time
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from functools import lru_cache
+from pathlib import Path
+from typing import Any
+
+from sub60.app.sweep_spec import SweepSpec
+from sub60.physics import Design
+
+#: Metric columns of the results table (the physics' figures of merit, in this order).
+METRICS = ("ss_min_mV_per_dec", "ss_avg4_mV_per_dec", "i60_uA_per_um", "ioff_uA_per_um", "voff_V",
+           "ion_uA_per_um", "ion_ioff", "vth_V", "ambipolar_uA_per_um")
+#: Times Dask reruns a task that raised or whose worker was lost.
+TASK_RETRIES = 2
+#: Seconds between rewrites of the partial results table.
+TABLE_EVERY_S = 5.0
+CACHE_DIR = "cache"
+TABLE_NAME = "results"
+
+
+# ------------------------------------------------------------------ model version and keys
+@lru_cache(maxsize=1)
+def model_version() -> str:
+    """Version of the physics: the package version and a hash of the physics sources.
+
+    Any edit to ``sub60.physics`` changes it, so cached results never outlive the model
+    that produced them; a worker running other code is detected by comparing it.
+    """
+    import sub60
+
+    h = hashlib.sha256()
+    root = importlib.resources.files("sub60.physics")
+    for item in sorted(root.iterdir(), key=lambda p: p.name):
+        if item.name.endswith(".py"):
+            h.update(item.name.encode())
+            h.update(item.read_bytes())
+    return f"{sub60.__version__}+{h.hexdigest()[:16]}"
+
+
+def canonical_json(obj: Any) -> str:
+    """Sorted-key, compact JSON; floats as Python's shortest round-trip repr."""
+    return json.dumps(obj, sort_keys=True, separators=(",", ":"), allow_nan=False)
+
+
+def task_inputs(design: Design, spec: SweepSpec, version: str) -> dict[str, Any]:
+    """Everything a design's result depends on."""
+    return {"design": design.to_dict(), "bias": spec.bias.to_dict(),
+            "physics": spec.physics.to_dict(), "model": version}
+
+
+def task_key(inputs: dict[str, Any]) -> str:
+    """SHA-256 hex digest of the canonical JSON of the task's inputs."""
+    return hashlib.sha256(canonical_json(inputs).encode()).hexdigest()
+
+
+# ------------------------------------------------------------------ the task
+def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
+    """Transfer curve and figures of merit of one design (the Dask task; pure).
+
+    Parameters
+    ----------
+    inputs : `task_inputs` dictionary (design fields, bias plan, physics options, model version)
+
+    Returns
+    -------
+    dict
+        ``status`` "ok" or "failed"; ``metrics`` {name: value or None}; ``missing``
+        {name: reason} for undefined metrics; ``solver_notes`` and ``warnings`` (lists of
+        text); ``error`` (text or None); ``cacheable`` (False for failures that are not a
+        property of the inputs); ``compute_s`` [s]; ``model`` (this worker's model version).
+        A fresh `Simulator` per task: no warm start crosses designs, so the result depends
+        on the inputs only.
+    """
+    from sub60.physics import Simulator
+    from sub60.physics.poisson import SolverError
+    from sub60.physics.simulate import design_warnings
+
+    t0 = time.perf_counter()
+    out: dict[str, Any] = {"status": "failed", "metrics": {}, "missing": {}, "solver_notes": [],
+                           "warnings": [], "error": None, "cacheable": True,
+                           "model": model_version(), "host": socket.gethostname()}
+    if out["model"] != inputs["model"]:
+        out.update(error=f"worker runs model {out['model']}, the sweep expects {inputs['model']}",
+                   cacheable=False, compute_s=0.0)
+        return out
+    try:
+        design = Design.from_dict(inputs["design"])
+        b, p = inputs["bias"], inputs["physics"]
+        import numpy as np
+
+        vg = np.linspace(float(b["vg_V"][0]), float(b["vg_V"][1]), int(b["vg_V"][2]))
+        sim = Simulator(resolution=p["resolution"], model=p["tunnelling_model"],
+                        cache_size=max(64, vg.size + 8))
+        tc = sim.transfer_curve(design, vg, b["vd_V"], ioff_target_uA_per_um=b["ioff_target_uA_per_um"],
+                                vdd_V=b["vdd_V"])
+        notes: list[str] = []
+        for v in tc.vg_V:  # cached points: the notes of the fallbacks each one needed
+            for n in sim.solve_bias(design, float(v), b["vd_V"]).solver_notes:
+                if n not in notes:
+                    notes.append(n)
+        m = tc.metrics
+        out.update(status="ok", solver_notes=notes, warnings=list(design_warnings(design)),
+                   metrics={k: getattr(m, k).value for k in METRICS},
+                   missing={k: getattr(m, k).reason for k in METRICS if getattr(m, k).value is None})
+    except (SolverError, ValueError, ArithmeticError) as exc:
+        out["error"] = f"{type(exc).__name__}: {exc}"
+    except Exception as exc:  # noqa: BLE001 - any other failure is a row, never a lost sweep
+        out.update(error=f"{type(exc).__name__}: {exc}", cacheable=False)
+    out["compute_s"] = time.perf_counter() - t0
+    return out
+
+
+# ------------------------------------------------------------------ cache and table files
+def _atomic_write(path: Path, data: bytes) -> None:
+    """Write ``data`` to ``path`` through a temporary file in the same folder and a rename."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.chmod(tmp, 0o644)  # mkstemp makes it private; results are ordinary files
+        os.replace(tmp, path)
+    except BaseException:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        raise
+
+
+class ResultCache:
+    """Content-addressed store of task results: ``DIR/cache/<key[:2]>/<key>.json``."""
+
+    def __init__(self, out_dir: str | Path):
+        self.root = Path(out_dir) / CACHE_DIR
+
+    def path(self, key: str) -> Path:
+        return self.root / key[:2] / f"{key}.json"
+
+    def get(self, key: str) -> dict[str, Any] | None:
+        """The stored result, or None (also for a damaged entry, which is then recomputed)."""
+        try:
+            data = json.loads(self.path(key).read_text(encoding="utf-8"))
+        except (OSError, ValueError):
+            return None
+        return data.get("result") if isinstance(data, dict) and data.get("key") == key else None
+
+    def put(self, key: str, inputs: dict[str, Any], result: dict[str, Any]) -> None:
+        body = json.dumps({"key": key, "inputs": inputs, "result": result}, indent=1,
+                          allow_nan=False)
+        _atomic_write(self.path(key), body.encode())
+
+    def __len__(self) -> int:
+        return sum(1 for _ in self.root.glob("*/*.json")) if self.root.exists() else 0
+
+
+def _row(index: int, design: Design, key: str, result: dict[str, Any] | None, cached: bool,
+         status: str | None = None, error: str | None = None) -> dict[str, Any]:
+    row: dict[str, Any] = {"index": index}
+    row.update(design.to_dict())
+    r = result or {}
+    row["status"] = status or r.get("status", "failed")
+    metrics = r.get("metrics", {})
+    for k in METRICS:
+        v = metrics.get(k)
+        row[k] = float(v) if v is not None and math.isfinite(v) else None
+    row["metrics_missing"] = "; ".join(f"{k}: {v}" for k, v in r.get("missing", {}).items())
+    row["solver_notes"] = "; ".join(r.get("solver_notes", []))
+    row["warnings"] = " | ".join(r.get("warnings", []))
+    row["error"] = error if error is not None else (r.get("error") or "")
+    row["cached"] = cached
+    row["compute_s"] = r.get("compute_s")
+    row["key"] = key
+    return row
+
+
+def write_table(rows: list[dict[str, Any]], out_dir: str | Path, metadata: dict[str, Any]) -> Path:
+    """Write the rows as ``results.parquet`` and ``results.csv`` (each atomically).
+
+    Text columns hold "" rather than null; metric columns are null where undefined (the
+    reason is in ``metrics_missing``). The Parquet schema metadata carries ``metadata``
+    (the spec, the model version) as JSON under the key ``sub60_sweep``.
+    """
+    import io
+
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+    import pyarrow.parquet as pq
+
+    out = Path(out_dir)
+    columns = list(rows[0]) if rows else ["index"]
+    types = {"index": pa.int64(), "cached": pa.bool_(), "compute_s": pa.float64(),
+             **{k: pa.float64() for k in METRICS}}
+    for f in dataclasses.fields(Design):
+        types[f.name] = pa.float64() if f.name in _float_fields() else pa.string()
+    arrays = {c: pa.array([r.get(c) for r in rows], type=types.get(c, pa.string())) for c in columns}
+    table = pa.table(arrays).replace_schema_metadata({"sub60_sweep": canonical_json(metadata)})
+    buf = io.BytesIO()
+    pq.write_table(table, buf)
+    _atomic_write(out / f"{TABLE_NAME}.parquet", buf.getvalue())
+    cbuf = io.BytesIO()
+    pcsv.write_csv(table, cbuf)
+    _atomic_write(out / f"{TABLE_NAME}.csv", cbuf.getvalue())
+    return out / f"{TABLE_NAME}.parquet"
+
+
+@lru_cache(maxsize=1)
+def _float_fields() -> frozenset[str]:
+    from sub60.physics.design import FIELD_RANGES
+
+    return frozenset(k for k, s in FIELD_RANGES.items() if s.kind is float)
+
+
+def read_table(out_dir: str | Path) -> list[dict[str, Any]]:
+    """The rows of a sweep's ``results.parquet`` (as dictionaries, in sweep order)."""
+    import pyarrow.parquet as pq
+
+    return pq.read_table(Path(out_dir) / f"{TABLE_NAME}.parquet").to_pylist()
+
+
+# ------------------------------------------------------------------ progress and result
+@dataclass
+class Progress:
+    """State of a running sweep, passed to the progress callback.
+
+    Attributes: total designs; done (rows known); computed / cached / failed counts;
+    elapsed_s [s]; eta_s [s] (None until a design has been computed); rate [designs/s]
+    of the computed ones.
+    """
+
+    total: int
+    done: int = 0
+    computed: int = 0
+    cached: int = 0
+    failed: int = 0
+    elapsed_s: float = 0.0
+    eta_s: float | None = None
+    rate: float | None = None
+
+    def line(self) -> str:
+        eta = "" if self.eta_s is None else f", ETA {_duration(self.eta_s)}"
+        rate = "" if self.rate is None else f", {self.rate:.2f} designs/s"
+        return (f"{self.done}/{self.total} designs ({self.computed} computed, {self.cached} cached, "
+                f"{self.failed} failed){rate}{eta}")
+
+
+def _duration(s: float) -> str:
+    s = max(0.0, s)
+    if s < 90:
+        return f"{s:.0f} s"
+    if s < 5400:
+        return f"{s / 60:.1f} min"
+    return f"{s / 3600:.1f} h"
+
+
+@dataclass
+class SweepResult:
+    """Outcome of a sweep: the rows (sweep order), counts and files written."""
+
+    rows: list[dict[str, Any]]
+    total: int
+    computed: int
+    cached: int
+    failed: int
+    cancelled: bool
+    wall_s: float
+    table_path: Path | None
+    scheduler: str = ""
+    workers: int = 0
+    compute_s: list[float] = field(default_factory=list)
+
+    def ok_rows(self) -> list[dict[str, Any]]:
+        return [r for r in self.rows if r["status"] == "ok"]
+
+
+def best_designs(rows: list[dict[str, Any]], metric: str = "ion_uA_per_um", n: int = 5,
+                 largest: bool = True) -> list[dict[str, Any]]:
+    """The n rows with the largest (or smallest) value of ``metric``, skipping undefined ones."""
+    have = [r for r in rows if r.get("status") == "ok" and r.get(metric) is not None]
+    return sorted(have, key=lambda r: r[metric], reverse=largest)[:n]
+
+
+def pareto_front(rows: list[dict[str, Any]], maximize: str = "ion_uA_per_um",
+                 minimize: str = "ss_avg4_mV_per_dec") -> list[dict[str, Any]]:
+    """Rows not dominated in (largest ``maximize``, smallest ``minimize``), by ``minimize``.
+
+    A row is dominated when another is at least as good in both and better in one.
+    """
+    have = [r for r in rows if r.get("status") == "ok" and r.get(maximize) is not None
+            and r.get(minimize) is not None]
+    have.sort(key=lambda r: (r[minimize], -r[maximize]))
+    front, best = [], -math.inf
+    for r in have:
+        if r[maximize] > best:
+            front.append(r)
+            best = r[maximize]
+    return front
+
+
+# ------------------------------------------------------------------ the run
+def _client(scheduler: str | None, workers: int | None):
+    from distributed import Client, LocalCluster
+
+    if scheduler:
+        return Client(scheduler, timeout="20s"), None
+    n = workers or os.cpu_count() or 1
+    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True, host="127.0.0.1",
+                           dashboard_address=None)
+    return Client(cluster), cluster
+
+
+def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = None,
+              workers: int | None = None, client: Any = None,
+              progress: Callable[[Progress], None] | None = None,
+              cancel: threading.Event | None = None, retry_failed: bool = False,
+              table_every_s: float = TABLE_EVERY_S) -> SweepResult:
+    """Compute every design of ``spec`` not yet in the cache of ``out_dir``; write the table.
+
+    Parameters
+    ----------
+    spec : a validated sweep (see `sweep_spec.load_spec`)
+    out_dir : output folder (created): ``cache/``, ``results.parquet``, ``results.csv``,
+        ``sweep.json``
+    scheduler : address of a running Dask scheduler (``tcp://HOST:PORT``); default a
+        LocalCluster of ``workers`` single-threaded processes (default: the cores)
+    client : an existing ``distributed.Client`` to use instead (not closed here)
+    progress : called with a `Progress` after each batch of finished designs
+    cancel : when set, pending tasks are cancelled and the rows so far are written
+    retry_failed : recompute designs whose cached result is a failure
+
+    Returns
+    -------
+    SweepResult
+        rows in sweep order (status "ok", "failed" or "cancelled"), counts, wall time [s].
+
+    Raises
+    ------
+    SpecError
+        when a design of the sweep is invalid (before anything is computed).
+    """
+    t0 = time.perf_counter()
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    designs = spec.designs()  # validates every design before anything runs
+    version = model_version()
+    cache = ResultCache(out)
+    inputs = [task_inputs(d, spec, version) for d in designs]
+    keys = [task_key(i) for i in inputs]
+    rows: list[dict[str, Any] | None] = [None] * len(designs)
+    by_key: dict[str, list[int]] = {}
+    st = Progress(total=len(designs))
+    for i, k in enumerate(keys):
+        hit = cache.get(k)
+        if hit is not None and not (retry_failed and hit.get("status") != "ok"):
+            rows[i] = _row(i, designs[i], k, hit, cached=True)
+            st.cached += 1
+            st.failed += hit.get("status") != "ok"
+        else:
+            by_key.setdefault(k, []).append(i)
+    st.done = st.cached
+    meta = {"spec": spec.to_dict(), "model": version}
+    res = SweepResult([], len(designs), 0, st.cached, 0, False, 0.0, None)
+    compute_s: list[float] = []
+    cancelled = False
+    last_table = time.perf_counter()
+
+    def tick() -> None:
+        st.elapsed_s = time.perf_counter() - t0
+        if st.computed:
+            st.rate = st.computed / st.elapsed_s
+            st.eta_s = (st.total - st.done) / st.rate
+        if progress is not None:
+            progress(dataclasses.replace(st))
+
+    def table(final: bool = False) -> Path | None:
+        have = [r for r in rows if r is not None]
+        return write_table(have, out, meta) if (have or final) else None
+
+    tick()
+    own = None
+    if by_key:
+        cl, own = (client, None) if client is not None else _client(scheduler, workers)
+        res.scheduler = cl.scheduler.address
+        res.workers = len(cl.scheduler_info().get("workers", {}))
+        try:
+            cancelled = _gather(cl, by_key, inputs, designs, keys, rows, cache, st, compute_s, tick,
+                                cancel, lambda: table(), table_every_s, last_table)
+        finally:
+            if client is None:
+                cl.close()
+                if own is not None:
+                    own.close()
+    for i, r in enumerate(rows):
+        if r is None:
+            rows[i] = _row(i, designs[i], keys[i], None, cached=False, status="cancelled",
+                           error="sweep cancelled before this design ran")
+    path = table(final=True)
+    res.rows = [r for r in rows if r is not None]
+    res.computed, res.failed, res.cancelled = st.computed, st.failed, cancelled
+    res.cached, res.compute_s = st.cached, compute_s
+    res.wall_s = time.perf_counter() - t0
+    res.table_path = path
+    summary = {"title": spec.title, "model": version, "designs": res.total, "computed": res.computed,
+               "cached": res.cached, "failed": res.failed, "cancelled": cancelled,
+               "wall_s": round(res.wall_s, 3), "scheduler": res.scheduler, "workers": res.workers,
+               "finished_utc": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()),
+               "spec": spec.to_dict()}
+    _atomic_write(out / "sweep.json", json.dumps(summary, indent=1).encode())
+    return res
+
+
+def _gather(cl, by_key, inputs, designs, keys, rows, cache, st, compute_s, tick, cancel, table,
+            table_every_s, last_table) -> bool:
+    """Submit the missing designs and collect them as they finish; True when cancelled."""
+    from distributed import as_completed
+
+    futures = {}
+    for k, idx in by_key.items():
+        f = cl.submit(evaluate_design, inputs[idx[0]], key=f"sub60-design-{k}", pure=True,
+                      retries=TASK_RETRIES)
+        futures[f] = k
+    ac = as_completed(list(futures))
+    pending = set(futures)
+    try:
+        while not ac.is_empty():
+            if cancel is not None and cancel.is_set():
+                raise KeyboardInterrupt
+            if not ac.has_ready():
+                time.sleep(0.05)
+                continue
+            for f in ac.next_batch(block=False):
+                pending.discard(f)
+                k = futures[f]
+                try:
+                    result, error = f.result(), None
+                except Exception as exc:  # noqa: BLE001 - a lost worker (twice), a cancelled task
+                    result, error = None, f"task lost: {type(exc).__name__}: {exc}"
+                if result is not None and result.get("cacheable") and result.get("model") == \
+                        inputs[by_key[k][0]]["model"]:
+                    cache.put(k, inputs[by_key[k][0]], result)
+                if result is not None:
+                    compute_s.append(result.get("compute_s") or 0.0)
+                for i in by_key[k]:
+                    rows[i] = _row(i, designs[i], keys[i], result, cached=False, error=error)
+                    st.done += 1
+                    st.computed += 1
+                    st.failed += rows[i]["status"] != "ok"
+            tick()
+            if time.perf_counter() - last_table > table_every_s:
+                table()
+                last_table = time.perf_counter()
+    except KeyboardInterrupt:
+        cl.cancel(list(pending))
+        return True
+    return False
