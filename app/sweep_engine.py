@@ -372,9 +372,9 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
         when a design of the sweep is invalid (before anything is computed).
     """
     t0 = time.perf_counter()
+    designs = spec.designs()  # validates every design before anything runs or is written
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
-    designs = spec.designs()  # validates every design before anything runs
     version = model_version()
     cache = ResultCache(out)
     inputs = [task_inputs(d, spec, version) for d in designs]
