@@ -48,6 +48,10 @@ TASK_RETRIES = 2
 #: Seconds between rewrites of the partial results table.
 TABLE_EVERY_S = 5.0
 CACHE_DIR = "cache"
+#: LocalCluster options: loopback only; the scheduler's HTTP endpoint (always started by
+#: Dask) on a random port, and no dashboard pages.
+LOCAL_CLUSTER_OPTIONS: dict[str, Any] = {"host": "127.0.0.1", "dashboard_address": "127.0.0.1:0",
+                                         "scheduler_kwargs": {"dashboard": False}}
 TABLE_NAME = "results"
 
 
@@ -337,8 +341,8 @@ def _client(scheduler: str | None, workers: int | None):
     if scheduler:
         return Client(scheduler, timeout="20s"), None
     n = workers or os.cpu_count() or 1
-    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True, host="127.0.0.1",
-                           dashboard_address=None)
+    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
+                           **LOCAL_CLUSTER_OPTIONS)
     return Client(cluster), cluster
 
 

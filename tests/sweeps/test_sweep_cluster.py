@@ -52,7 +52,8 @@ def test_sweep_through_a_scheduler_survives_a_killed_worker(tmp_path: Path) -> N
     try:
         procs.append(subprocess.Popen(
             [sys.executable, "-m", "distributed.cli.dask_scheduler", "--host", "127.0.0.1",
-             "--port", "0", "--no-dashboard", "--scheduler-file", str(sched_file)],
+             "--port", "0", "--no-dashboard", "--dashboard-address", "127.0.0.1:0",
+             "--scheduler-file", str(sched_file)],
             stdout=log, stderr=subprocess.STDOUT, env=env))
         _wait_for(lambda: sched_file.exists() and sched_file.stat().st_size > 0, 30, "the scheduler")
         address = json.loads(sched_file.read_text())["address"]
@@ -60,7 +61,8 @@ def test_sweep_through_a_scheduler_survives_a_killed_worker(tmp_path: Path) -> N
         for _ in range(2):
             procs.append(subprocess.Popen(
                 [sys.executable, "-m", "distributed.cli.dask_worker", "--scheduler-file", str(sched_file),
-                 "--host", "127.0.0.1", "--nthreads", "1", "--no-nanny", "--no-dashboard"],
+                 "--host", "127.0.0.1", "--nthreads", "1", "--no-nanny", "--no-dashboard",
+                 "--dashboard-address", "127.0.0.1:0"],
                 stdout=log, stderr=subprocess.STDOUT, env=env))
         from distributed import Client
 

@@ -20,6 +20,7 @@ import pyarrow.parquet as pq
 import pytest
 
 from sub60.app.sweep_engine import (
+    LOCAL_CLUSTER_OPTIONS,
     METRICS,
     best_designs,
     evaluate_design,
@@ -43,8 +44,8 @@ PLAN = '[bias]\nvg_V = [-0.1, 0.6, 15]\nvd_V = 0.3\nioff_target_uA_per_um = 1e-3
 def client():
     from distributed import Client, LocalCluster
 
-    cluster = LocalCluster(n_workers=1, threads_per_worker=1, processes=True, host="127.0.0.1",
-                           dashboard_address=None)
+    cluster = LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
+                           **LOCAL_CLUSTER_OPTIONS)
     c = Client(cluster)
     yield c
     c.close()

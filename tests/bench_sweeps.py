@@ -1,0 +1,150 @@
+"""Benchmark of design sweeps on Dask: throughput, scaling, scheduler overhead, a big sweep.
+
+    python tests/bench_sweeps.py [--designs 32] [--repeats 3] [--big 500] [--vg-points 46]
+
+Prints, from one run (medians over the repeats; 1- and 2-worker runs interleaved):
+
+- designs per second with 1 and 2 local worker processes (one thread each) on the same
+  designs, and the scaling ratio;
+- the scheduler overhead per task: (a) from the sweep itself, (wall x workers - sum of the
+  tasks' own compute times) / tasks, against the median task; (b) the round trip of
+  trivial tasks through the same cluster;
+- the wall time of a ``--big``-design sweep on 2 local workers;
+- an estimate for 100,000 designs on 64 workers from the measured per-task figures.
+
+Every sweep writes into a fresh temporary folder (no cache hits). Worker start-up (process
+spawn, imports, the compiled kernels' first call) is excluded by a warm-up task per worker
+and reported separately. The machine may be shared: the figures are then noisy.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import statistics
+import tempfile
+import time
+
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+os.environ.setdefault("OMP_NUM_THREADS", "1")
+
+
+def _noop(i: int) -> int:
+    return i
+
+
+def _spec(n_body: int, n_wf: int, vg_points: int):
+    from sub60.app.sweep_spec import spec_from_text
+
+    return spec_from_text(
+        f'title = "benchmark"\n[[knob]]\nfield = "body_thickness_nm"\nlow = 4.0\nhigh = 12.0\n'
+        f'steps = {n_body}\n[[knob]]\nfield = "gate_workfunction_eV"\nlow = 4.7\nhigh = 5.1\n'
+        f'steps = {n_wf}\n[bias]\nvg_V = [-0.3, 0.6, {vg_points}]\nvd_V = 0.3\n', allow_large=True)
+
+
+def _cluster(n: int):
+    from distributed import Client, LocalCluster
+
+    from sub60.app.sweep_engine import LOCAL_CLUSTER_OPTIONS, evaluate_design, model_version, task_inputs
+    from sub60.physics import Design
+
+    t0 = time.perf_counter()
+    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
+                           **LOCAL_CLUSTER_OPTIONS)
+    client = Client(cluster)
+    started = time.perf_counter() - t0
+    warm = task_inputs(Design(), _spec(2, 2, 5), model_version())
+    for w in client.scheduler_info()["workers"]:  # imports and compiled kernels, once per worker
+        client.submit(evaluate_design, warm, workers=[w], pure=False).result()
+    return cluster, client, started, time.perf_counter() - t0
+
+
+def _sweep(client, spec) -> tuple[float, list[float], int]:
+    from sub60.app.sweep_engine import run_sweep
+
+    with tempfile.TemporaryDirectory(prefix="sub60-bench-") as out:
+        res = run_sweep(spec, out, client=client)
+    assert res.computed == res.total and res.cached == 0
+    return res.wall_s, res.compute_s, res.failed
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--designs", type=int, default=32, help="designs of the scaling sweeps (even)")
+    ap.add_argument("--repeats", type=int, default=3)
+    ap.add_argument("--big", type=int, default=500, help="designs of the big sweep (0: skip)")
+    ap.add_argument("--vg-points", type=int, default=46, help="gate voltages per transfer curve")
+    ap.add_argument("--noop", type=int, default=1000, help="trivial tasks for the round trip")
+    a = ap.parse_args()
+
+    print(f"cores: {os.cpu_count()}, load average before: {os.getloadavg()[0]:.2f}")
+    spec = _spec(a.designs // 2, 2, a.vg_points)
+    c1, cl1, s1, w1 = _cluster(1)
+    c2, cl2, s2, w2 = _cluster(2)
+    print(f"cluster start: 1 worker {s1:.1f} s (+ warm-up {w1 - s1:.1f} s), "
+          f"2 workers {s2:.1f} s (+ warm-up {w2 - s2:.1f} s)")
+    walls: dict[int, list[float]] = {1: [], 2: []}
+    tasks: dict[int, list[float]] = {1: [], 2: []}
+    failed = 0
+    try:
+        for _ in range(a.repeats):
+            for n, client in ((1, cl1), (2, cl2)):
+                wall, comp, f = _sweep(client, spec)
+                walls[n].append(wall)
+                tasks[n].extend(comp)
+                failed += f
+        n_d = spec.size()
+        rate = {n: n_d / statistics.median(w) for n, w in walls.items()}
+        print(f"\nscaling sweep: {n_d} designs, {a.vg_points} gate voltages each, {a.repeats} repeats "
+              f"({failed} failed designs in all)")
+        for n in (1, 2):
+            print(f"  {n} worker{'s' if n > 1 else ' '}: median wall {statistics.median(walls[n]):.2f} s "
+                  f"-> {rate[n]:.3f} designs/s (walls {', '.join(f'{w:.2f}' for w in walls[n])})")
+        print(f"  scaling ratio 2 workers / 1 worker: {rate[2] / rate[1]:.2f}")
+        task_med = statistics.median(tasks[1])
+        print(f"  task compute time (inside the task, 1 worker): median {task_med:.3f} s, "
+              f"min {min(tasks[1]):.3f} s, max {max(tasks[1]):.3f} s")
+        for n in (1, 2):
+            over = [(w * n - sum(tasks[n][i * n_d:(i + 1) * n_d])) / n_d
+                    for i, w in enumerate(walls[n])]
+            o = statistics.median(over)
+            print(f"  overhead per task, {n} worker{'s' if n > 1 else ''} (wall x workers - sum of task "
+                  f"times) / tasks: {o * 1e3:.1f} ms = {100 * o / task_med:.1f} % of the median task")
+
+        t0 = time.perf_counter()
+        futs = cl2.map(_noop, range(a.noop), pure=False)
+        cl2.gather(futs)
+        rt = (time.perf_counter() - t0) / a.noop
+        print(f"  trivial tasks through the 2-worker cluster: {rt * 1e3:.2f} ms per task "
+              f"({a.noop} tasks) = {100 * rt / task_med:.2f} % of the median task")
+
+        big_wall = None
+        if a.big:
+            nb = max(2, round(a.big / 20))
+            big = _spec(nb, 20, a.vg_points)
+            big_wall, comp, f = _sweep(cl2, big)
+            print(f"\nbig sweep: {big.size()} designs on 2 workers: wall {big_wall:.1f} s "
+                  f"({big.size() / big_wall:.3f} designs/s, {f} failed; median task "
+                  f"{statistics.median(comp):.3f} s)")
+
+        # 100,000 designs on 64 workers: compute time divided over the workers, plus the
+        # measured per-task overhead, bounded below by the scheduler's serial per-task cost
+        n, w = 100_000, 64
+        per_task = task_med
+        over2 = statistics.median([(wl * 2 - sum(tasks[2][i * n_d:(i + 1) * n_d])) / n_d
+                                   for i, wl in enumerate(walls[2])])
+        est = n * (per_task + max(over2, 0.0)) / w
+        floor = n * rt
+        print(f"\nestimate, {n:,} designs on {w} workers: {n:,} x ({per_task:.3f} s task + "
+              f"{max(over2, 0) * 1e3:.1f} ms overhead) / {w} = {est / 60:.1f} min "
+              f"(scheduler floor {n:,} x {rt * 1e3:.2f} ms = {floor / 60:.1f} min; "
+              f"cluster start and the per-worker warm-up of ~{w1 - s1:.0f} s not included)")
+    finally:
+        for cl, c in ((cl1, c1), (cl2, c2)):
+            cl.close()
+            c.close()
+    print(f"load average after: {os.getloadavg()[0]:.2f}")
+
+
+if __name__ == "__main__":
+    main()
