@@ -6,12 +6,14 @@
 Prints progress (with an ETA) on stderr and a summary on stdout: designs computed, taken
 from the cache and failed, and the best designs by Ion. Exit status: 0 every design has a
 row (failed designs included: their reason is in the table); 2 a bad option or spec
-(nothing is computed); 130 cancelled (Ctrl-C), the rows computed so far are written.
+(nothing is computed); 130 cancelled (Ctrl-C or SIGTERM): the rows computed so far are
+written, the others are rows with status "cancelled", and a rerun computes only those.
 """
 
 from __future__ import annotations
 
 import argparse
+import signal
 import sys
 import threading
 import time
@@ -63,6 +65,10 @@ def summary(res, spec) -> str:
         lines.append(f"Pareto front (Ion vs SS_avg4): {len(front)} designs, rows "
                      + ", ".join(str(r["index"]) for r in front[:20])
                      + (" ..." if len(front) > 20 else ""))
+    left = sum(r["status"] == "cancelled" for r in res.rows)
+    if left:
+        lines.append(f"{left} designs not run (status 'cancelled'); the same command computes "
+                     "only those")
     failed = [r for r in res.rows if r["status"] == "failed"]
     for r in failed[:3]:
         lines.append(f"  failed #{r['index']}: {r['error'][:200]}")
@@ -98,6 +104,8 @@ def run_sweep(a: argparse.Namespace) -> tuple[str, int]:
         print(f"sweep: {p.line()}", file=sys.stderr, flush=True)
 
     cancel = threading.Event()
+    main_thread = threading.current_thread() is threading.main_thread()
+    previous = signal.signal(signal.SIGTERM, lambda *_: cancel.set()) if main_thread else None
     try:
         res = engine_run(spec, a.out, scheduler=a.scheduler, workers=a.workers, progress=show,
                          cancel=cancel, retry_failed=a.retry_failed)
@@ -105,4 +113,7 @@ def run_sweep(a: argparse.Namespace) -> tuple[str, int]:
         raise UsageError(f"--scheduler/--out: {exc}") from None
     except KeyboardInterrupt:  # before the first design was collected
         return "sweep: cancelled while starting; nothing computed", 130
+    finally:
+        if main_thread:
+            signal.signal(signal.SIGTERM, previous)
     return summary(res, spec), 130 if res.cancelled else 0
