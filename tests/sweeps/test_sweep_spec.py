@@ -156,3 +156,12 @@ def test_space_filling_designs_stay_in_range_and_fill_strata(method: str) -> Non
     for u in ((body - 4.0) / 8.0, (drain - 17) / 2):
         assert sorted(np.minimum((u * n).astype(int), n - 1)) == list(range(n))
     assert spec.points() == pts  # the seed fixes the designs
+
+
+def test_the_readme_example_is_a_valid_spec() -> None:
+    text = (Path(__file__).resolve().parents[2] / "README.md").read_text(encoding="utf-8")
+    section = text.split("## Design sweeps", 1)[1]
+    toml = section.split("```toml\n", 1)[1].split("```", 1)[0]
+    spec = spec_from_text(toml)
+    assert spec.size() == 24 and len(spec.designs()) == 24
+    assert spec.knob_fields == ("body_thickness_nm", "source_doping_cm3", "oxide")
