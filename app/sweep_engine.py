@@ -399,29 +399,46 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     res = SweepResult([], len(designs), 0, st.cached, 0, False, 0.0, None)
     compute_s: list[float] = []
     cancelled = False
-    last_table = time.perf_counter()
+    table_at = [time.perf_counter(), table_every_s]  # last rewrite, interval [s]
 
-    def tick() -> None:
+    def table(final: bool = False) -> Path | None:
+        have = [r for r in rows if r is not None]
+        return write_table(have, out, meta) if (have or final) else None
+
+    def record(k: str, result: dict[str, Any] | None, error: str | None) -> None:
+        """One finished task: cache it (when it is a property of its inputs), fill its rows."""
+        first = by_key[k][0]
+        if result is not None and result.get("cacheable") and result.get("model") == version:
+            cache.put(k, inputs[first], result)
+        if result is not None:
+            compute_s.append(result.get("compute_s") or 0.0)
+        for i in by_key[k]:
+            rows[i] = _row(i, designs[i], keys[i], result, cached=False, error=error)
+            st.done += 1
+            st.computed += 1
+            st.failed += rows[i]["status"] != "ok"
+
+    def after_batch() -> None:
         st.elapsed_s = time.perf_counter() - t0
         if st.computed:
             st.rate = st.computed / st.elapsed_s
             st.eta_s = (st.total - st.done) / st.rate
         if progress is not None:
             progress(dataclasses.replace(st))
+        now = time.perf_counter()
+        if now - table_at[0] > table_at[1]:
+            table()
+            # a big table takes a while to write: never spend more than ~10 % of the time on it
+            table_at[:] = [time.perf_counter(), max(table_every_s, 10 * (time.perf_counter() - now))]
 
-    def table(final: bool = False) -> Path | None:
-        have = [r for r in rows if r is not None]
-        return write_table(have, out, meta) if (have or final) else None
-
-    tick()
-    own = None
+    after_batch()
     if by_key:
         cl, own = (client, None) if client is not None else _client(scheduler, workers)
-        res.scheduler = cl.scheduler.address
-        res.workers = len(cl.scheduler_info().get("workers", {}))
         try:
-            cancelled = _gather(cl, by_key, inputs, designs, keys, rows, cache, st, compute_s, tick,
-                                cancel, lambda: table(), table_every_s, last_table)
+            res.scheduler = cl.scheduler.address
+            res.workers = len(cl.scheduler_info().get("workers", {}))
+            todo = {k: inputs[idx[0]] for k, idx in by_key.items()}
+            cancelled = _gather(cl, todo, record, after_batch, cancel)
         finally:
             if client is None:
                 cl.close()
@@ -446,18 +463,24 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     return res
 
 
-def _gather(cl, by_key, inputs, designs, keys, rows, cache, st, compute_s, tick, cancel, table,
-            table_every_s, last_table) -> bool:
-    """Submit the missing designs and collect them as they finish; True when cancelled."""
+def _gather(cl, todo: dict[str, dict[str, Any]],
+            record: Callable[[str, dict[str, Any] | None, str | None], None],
+            after_batch: Callable[[], None], cancel: threading.Event | None) -> bool:
+    """Submit one task per key and hand each result to ``record`` as it finishes.
+
+    Returns True when cancelled (``cancel`` set, or KeyboardInterrupt): the tasks not yet
+    finished are cancelled on the cluster. A task that raised after its retries, or whose
+    worker was lost too often, is recorded with ``result=None`` and the error text.
+    """
     from distributed import as_completed
 
-    futures = {}
-    for k, idx in by_key.items():
-        f = cl.submit(evaluate_design, inputs[idx[0]], key=f"sub60-design-{k}", pure=True,
-                      retries=TASK_RETRIES)
-        futures[f] = k
-    ac = as_completed(list(futures))
-    pending = set(futures)
+    names = list(todo)
+    futures = cl.map(evaluate_design, [todo[k] for k in names],
+                     key=[f"sub60-design-{k}" for k in names], pure=True, retries=TASK_RETRIES)
+    key_of = {f.key: k for f, k in zip(futures, names, strict=True)}
+    pending = {f.key: f for f in futures}
+    ac = as_completed(futures)
+    del futures  # finished results are released as they are recorded
     try:
         while not ac.is_empty():
             if cancel is not None and cancel.is_set():
@@ -466,27 +489,15 @@ def _gather(cl, by_key, inputs, designs, keys, rows, cache, st, compute_s, tick,
                 time.sleep(0.05)
                 continue
             for f in ac.next_batch(block=False):
-                pending.discard(f)
-                k = futures[f]
+                pending.pop(f.key, None)
                 try:
                     result, error = f.result(), None
-                except Exception as exc:  # noqa: BLE001 - a lost worker (twice), a cancelled task
+                except Exception as exc:  # noqa: BLE001 - a lost worker (too often), a cancelled task
                     result, error = None, f"task lost: {type(exc).__name__}: {exc}"
-                if result is not None and result.get("cacheable") and result.get("model") == \
-                        inputs[by_key[k][0]]["model"]:
-                    cache.put(k, inputs[by_key[k][0]], result)
-                if result is not None:
-                    compute_s.append(result.get("compute_s") or 0.0)
-                for i in by_key[k]:
-                    rows[i] = _row(i, designs[i], keys[i], result, cached=False, error=error)
-                    st.done += 1
-                    st.computed += 1
-                    st.failed += rows[i]["status"] != "ok"
-            tick()
-            if time.perf_counter() - last_table > table_every_s:
-                table()
-                last_table = time.perf_counter()
+                record(key_of[f.key], result, error)
+                f.release()
+            after_batch()
     except KeyboardInterrupt:
-        cl.cancel(list(pending))
+        cl.cancel(list(pending.values()))
         return True
     return False
