@@ -501,3 +501,52 @@ def _gather(cl, todo: dict[str, dict[str, Any]],
         cl.cancel(list(pending.values()))
         return True
     return False
+
+
+class SweepJob:
+    """A sweep running in a background thread, for a page or any caller that must not block.
+
+    ``job = SweepJob(spec, out_dir, scheduler=...)`` starts at once; ``job.progress`` is
+    the latest `Progress` (None before the first), ``job.cancel()`` asks it to stop (the
+    rows so far are written), ``job.done`` tells whether it ended and ``job.result(timeout)``
+    returns the `SweepResult` or raises what the sweep raised. ``on_progress`` (optional)
+    is called from the sweep's thread: a UI must hand it over to its own event loop.
+    """
+
+    def __init__(self, spec: SweepSpec, out_dir: str | Path, *,
+                 on_progress: Callable[[Progress], None] | None = None, **kw: Any):
+        self._cancel = threading.Event()
+        self._on_progress = on_progress
+        self.progress: Progress | None = None
+        self._result: SweepResult | None = None
+        self._error: BaseException | None = None
+        self._thread = threading.Thread(target=self._run, args=(spec, out_dir, kw),
+                                        name="sub60-sweep", daemon=True)
+        self._thread.start()
+
+    def _report(self, p: Progress) -> None:
+        self.progress = p
+        if self._on_progress is not None:
+            self._on_progress(p)
+
+    def _run(self, spec: SweepSpec, out_dir: str | Path, kw: dict[str, Any]) -> None:
+        try:
+            self._result = run_sweep(spec, out_dir, progress=self._report, cancel=self._cancel, **kw)
+        except BaseException as exc:  # noqa: BLE001 - handed to the caller by result()
+            self._error = exc
+
+    def cancel(self) -> None:
+        self._cancel.set()
+
+    @property
+    def done(self) -> bool:
+        return not self._thread.is_alive()
+
+    def result(self, timeout: float | None = None) -> SweepResult:
+        self._thread.join(timeout)
+        if self._thread.is_alive():
+            raise TimeoutError(f"sweep still running after {timeout} s")
+        if self._error is not None:
+            raise self._error
+        assert self._result is not None
+        return self._result

@@ -152,3 +152,18 @@ def test_pareto_front_and_best_designs() -> None:
             for i, (ion, ss) in enumerate([(10, 50), (20, 60), (15, 70), (5, 40), (20, 55), (1, None)])]
     assert [r["index"] for r in pareto_front(rows)] == [3, 0, 4]  # (15, 70), (20, 60) dominated
     assert [r["index"] for r in best_designs(rows, n=2)] in ([1, 4], [4, 1])
+
+
+def test_background_job_reports_progress_and_returns_the_result(client, tmp_path: Path) -> None:
+    from sub60.app.sweep_engine import SweepJob
+
+    spec = spec_from_text('[[knob]]\nfield = "body_thickness_nm"\nvalues = [5.5, 6.5]\n' + PLAN)
+    seen = []
+    job = SweepJob(spec, tmp_path, client=client, on_progress=seen.append)
+    res = job.result(timeout=300)
+    assert job.done and res.computed == 2 and len(res.rows) == 2
+    assert seen[-1].done == 2 and job.progress is seen[-1]
+    assert seen[-1].eta_s == 0 and seen[-1].rate > 0
+    with pytest.raises(Exception, match="invalid"):  # an invalid design is raised by result()
+        SweepJob(spec_from_text('[fixed]\ngate_source_offset_nm = -8.0\n[[knob]]\nfield = '
+                                '"gate_length_nm"\nvalues = [5.0]\n'), tmp_path / "x").result(60)
