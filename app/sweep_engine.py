@@ -350,7 +350,8 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
               workers: int | None = None, client: Any = None,
               progress: Callable[[Progress], None] | None = None,
               cancel: threading.Event | None = None, retry_failed: bool = False,
-              table_every_s: float = TABLE_EVERY_S) -> SweepResult:
+              table_every_s: float = TABLE_EVERY_S,
+              designs: list[Design] | None = None) -> SweepResult:
     """Compute every design of ``spec`` not yet in the cache of ``out_dir``; write the table.
 
     Parameters
@@ -364,6 +365,8 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     progress : called with a `Progress` after each batch of finished designs
     cancel : when set, pending tasks are cancelled and the rows so far are written
     retry_failed : recompute designs whose cached result is a failure
+    designs : run these designs instead of the spec's grid or sample (the spec still gives
+        the bias plan, physics options and title); used by `sensitivity`
 
     Returns
     -------
@@ -376,7 +379,8 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
         when a design of the sweep is invalid (before anything is computed).
     """
     t0 = time.perf_counter()
-    designs = spec.designs()  # validates every design before anything runs or is written
+    if designs is None:
+        designs = spec.designs()  # validates every design before anything runs or is written
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
     version = model_version()
@@ -550,3 +554,87 @@ class SweepJob:
             raise self._error
         assert self._result is not None
         return self._result
+
+
+# ------------------------------------------------------------------ sensitivity
+#: Relative step of the central differences [-]. Small enough for the curvature error
+#: (O(h^2)) to stay below the solver's noise on the metrics, large enough for their
+#: differences to rise above it; engineering choice, no source.
+SENSITIVITY_STEP = 0.05
+
+
+def sensitivity_designs(design: Design, fields: list[str] | tuple[str, ...],
+                        rel_step: float = SENSITIVITY_STEP) -> list[tuple[str, float, Design, Design]]:
+    """For each numeric field, the designs one step below and above ``design``.
+
+    The step is ``rel_step`` of the value (of 1 for a zero value), shrunk near the ends of
+    the field's range so that both neighbours are valid; returns (field, h, below, above)
+    with ``h`` the half distance between the two values [field unit]. Fields whose range
+    leaves no room, or whose neighbours break a combination rule, raise ValueError.
+    """
+    from sub60.physics.design import FIELD_RANGES
+
+    out = []
+    for name in fields:
+        spec = FIELD_RANGES.get(name)
+        if spec is None or spec.kind is not float:
+            raise ValueError(f"{name}: not a numeric design field; sensitivity needs one of "
+                             + ", ".join(k for k, v in FIELD_RANGES.items() if v.kind is float))
+        x = getattr(design, name)
+        if x is None:
+            raise ValueError(f"{name}: not set in this design")
+        h = rel_step * (abs(x) if x != 0 else 1.0)
+        h = min(h, x - spec.low, spec.high - x)
+        if not h > 0:
+            raise ValueError(f"{name}: {x:g} sits at the end of its range {spec.describe()}; "
+                             "no central difference")
+        lo, hi = float(f"{x - h:.12g}"), float(f"{x + h:.12g}")
+        out.append((name, (hi - lo) / 2, design.replace(**{name: lo}), design.replace(**{name: hi})))
+    return out
+
+
+def sensitivity(design: Design, fields: list[str] | tuple[str, ...], spec: SweepSpec,
+                out_dir: str | Path, metrics: tuple[str, ...] = ("ion_uA_per_um", "ss_avg4_mV_per_dec"),
+                rel_step: float = SENSITIVITY_STEP, **kw: Any) -> list[dict[str, Any]]:
+    """Normalised sensitivities (x/M) dM/dx of metrics to design fields, ranked by size.
+
+    Central differences, dM/dx = (M(x+h) - M(x-h)) / 2h, error O(h^2) (e.g. W. H. Press
+    et al., *Numerical Recipes*, 3rd ed., section 5.7); the normalised form is the
+    relative change of the metric per relative change of the field [-], so fields of
+    different units compare. The 2 x len(fields) + 1 designs run as one sweep on the same
+    engine (and cache) with ``spec``'s bias plan and physics options; ``kw`` goes to
+    `run_sweep` (scheduler, workers, client, progress, cancel).
+
+    Returns
+    -------
+    list of dict
+        ``field``, ``metric``, ``value`` (None when a metric is undefined at one of the
+        three designs, with ``reason``), ``derivative`` [metric unit / field unit], sorted
+        by |value|, largest first, undefined ones last.
+    """
+    steps = sensitivity_designs(design, fields, rel_step)
+    designs = [design] + [d for _, _, lo, hi in steps for d in (lo, hi)]
+    sub = dataclasses.replace(spec, title=f"sensitivity at one design ({len(fields)} fields)")
+    res = run_sweep(sub, out_dir, designs=designs, **kw)
+    by_index = {r["index"]: r for r in res.rows}
+    centre = by_index[0]
+    out = []
+    for j, (name, h, _, _) in enumerate(steps):
+        lo, hi = by_index[1 + 2 * j], by_index[2 + 2 * j]
+        x = getattr(design, name)
+        for m in metrics:
+            vals = (lo.get(m), centre.get(m), hi.get(m))
+            item: dict[str, Any] = {"field": name, "metric": m, "value": None, "derivative": None,
+                                    "reason": None}
+            if any(v is None for v in vals):
+                bad = [r for r in (lo, centre, hi) if r.get(m) is None]
+                item["reason"] = (f"{m} undefined at {name} = {bad[0][name]!r}: "
+                                  + (bad[0]["error"] or bad[0]["metrics_missing"] or bad[0]["status"]))
+            elif vals[1] == 0:
+                item["reason"] = f"{m} is 0 at the design; no relative change"
+            else:
+                deriv = (vals[2] - vals[0]) / (2 * h)
+                item.update(derivative=deriv, value=deriv * x / vals[1])
+            out.append(item)
+    out.sort(key=lambda r: (r["value"] is None, -abs(r["value"] or 0.0)))
+    return out

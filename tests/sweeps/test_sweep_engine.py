@@ -167,3 +167,33 @@ def test_background_job_reports_progress_and_returns_the_result(client, tmp_path
     with pytest.raises(Exception, match="invalid"):  # an invalid design is raised by result()
         SweepJob(spec_from_text('[fixed]\ngate_source_offset_nm = -8.0\n[[knob]]\nfield = '
                                 '"gate_length_nm"\nvalues = [5.0]\n'), tmp_path / "x").result(60)
+
+
+def test_sensitivity_is_the_central_difference_of_independent_solves(client, tmp_path: Path) -> None:
+    from sub60.app.sweep_engine import sensitivity, sensitivity_designs
+
+    spec = spec_from_text('[[knob]]\nfield = "body_thickness_nm"\nvalues = [7.0]\n' + PLAN)
+    centre = Design(body_thickness_nm=6.0)
+    fields = ["body_thickness_nm", "gate_workfunction_eV"]
+    ranked = sensitivity(centre, fields, spec, tmp_path, client=client)
+    assert len(ranked) == 4
+    defined = [r["value"] for r in ranked if r["value"] is not None]
+    assert defined == sorted(defined, key=abs, reverse=True)
+    # recompute one entry by hand: (M(x+h) - M(x-h)) / 2h * x / M(x), each curve solved
+    # here with a fresh simulator (Numerical Recipes 3rd ed., 5.7: central difference)
+    name, h, lo, hi = sensitivity_designs(centre, fields)[0]
+    assert (lo.body_thickness_nm, hi.body_thickness_nm, h) == (5.7, 6.3, pytest.approx(0.3))
+
+    def ion(d: Design) -> float:
+        return Simulator().transfer_curve(d, spec.bias.vg_V(), 0.3).metrics.ion_uA_per_um.value
+
+    expected = (ion(hi) - ion(lo)) / (2 * h) * 6.0 / ion(centre)
+    got = next(r for r in ranked if r["field"] == name and r["metric"] == "ion_uA_per_um")
+    assert got["value"] == pytest.approx(expected, rel=1e-9)
+    seen = []  # the same request again: all 5 designs from the cache, the same ranking
+    assert sensitivity(centre, fields, spec, tmp_path, client=client, progress=seen.append) == ranked
+    assert (seen[-1].computed, seen[-1].cached) == (0, 5)
+    with pytest.raises(ValueError, match="oxide: not a numeric design field"):
+        sensitivity_designs(centre, ["oxide"])
+    with pytest.raises(ValueError, match="temperature_K: 450 sits at the end of its range"):
+        sensitivity_designs(Design(temperature_K=450.0), ["temperature_K"])
