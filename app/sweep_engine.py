@@ -379,8 +379,9 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
         when a design of the sweep is invalid (before anything is computed).
     """
     t0 = time.perf_counter()
+    spec_designs = None
     if designs is None:
-        designs = spec.designs()  # validates every design before anything runs or is written
+        designs = spec_designs = spec.designs()  # every design validated before anything runs
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
     version = model_version()
@@ -399,11 +400,13 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
         else:
             by_key.setdefault(k, []).append(i)
     st.done = st.cached
-    meta = {"spec": spec.to_dict(), "model": version}
+    explicit = designs is not None and designs is not spec_designs
+    meta = {"spec": spec.to_dict(), "model": version, "explicit_designs": explicit}
     res = SweepResult([], len(designs), 0, st.cached, 0, False, 0.0, None)
     compute_s: list[float] = []
     cancelled = False
     table_at = [time.perf_counter(), table_every_s]  # last rewrite, interval [s]
+    ready = [t0]  # when the cluster was ready: the rate and ETA count from there
 
     def table(final: bool = False) -> Path | None:
         have = [r for r in rows if r is not None]
@@ -425,7 +428,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     def after_batch() -> None:
         st.elapsed_s = time.perf_counter() - t0
         if st.computed:
-            st.rate = st.computed / st.elapsed_s
+            st.rate = st.computed / max(time.perf_counter() - ready[0], 1e-9)
             st.eta_s = (st.total - st.done) / st.rate
         if progress is not None:
             progress(dataclasses.replace(st))
@@ -442,6 +445,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
             res.scheduler = cl.scheduler.address
             res.workers = len(cl.scheduler_info().get("workers", {}))
             todo = {k: inputs[idx[0]] for k, idx in by_key.items()}
+            ready[0] = time.perf_counter()
             cancelled = _gather(cl, todo, record, after_batch, cancel)
         finally:
             if client is None:
@@ -462,7 +466,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
                "cached": res.cached, "failed": res.failed, "cancelled": cancelled,
                "wall_s": round(res.wall_s, 3), "scheduler": res.scheduler, "workers": res.workers,
                "finished_utc": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()),
-               "spec": spec.to_dict()}
+               "explicit_designs": explicit, "spec": spec.to_dict()}
     _atomic_write(out / "sweep.json", json.dumps(summary, indent=1).encode())
     return res
 
