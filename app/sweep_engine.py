@@ -335,11 +335,11 @@ def pareto_front(rows: list[dict[str, Any]], maximize: str = "ion_uA_per_um",
 
 
 # ------------------------------------------------------------------ the run
-def _client(scheduler: str | None, workers: int | None):
+def _client(scheduler: str | None, workers: int | None, connect_timeout_s: float = 20.0):
     from distributed import Client, LocalCluster
 
     if scheduler:
-        return Client(scheduler, timeout="20s"), None
+        return Client(scheduler, timeout=f"{connect_timeout_s}s"), None
     n = workers or os.cpu_count() or 1
     cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
                            **LOCAL_CLUSTER_OPTIONS)
@@ -351,7 +351,8 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
               progress: Callable[[Progress], None] | None = None,
               cancel: threading.Event | None = None, retry_failed: bool = False,
               table_every_s: float = TABLE_EVERY_S,
-              designs: list[Design] | None = None) -> SweepResult:
+              designs: list[Design] | None = None,
+              connect_timeout_s: float = 20.0) -> SweepResult:
     """Compute every design of ``spec`` not yet in the cache of ``out_dir``; write the table.
 
     Parameters
@@ -367,6 +368,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     retry_failed : recompute designs whose cached result is a failure
     designs : run these designs instead of the spec's grid or sample (the spec still gives
         the bias plan, physics options and title); used by `sensitivity`
+    connect_timeout_s : how long to try to reach ``scheduler`` [s] (then OSError)
 
     Returns
     -------
@@ -440,7 +442,10 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
 
     after_batch()
     if by_key:
-        cl, own = (client, None) if client is not None else _client(scheduler, workers)
+        if client is not None:
+            cl, own = client, None
+        else:
+            cl, own = _client(scheduler, workers, connect_timeout_s)
         try:
             res.scheduler = cl.scheduler.address
             res.workers = len(cl.scheduler_info().get("workers", {}))

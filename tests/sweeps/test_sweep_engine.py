@@ -197,3 +197,15 @@ def test_sensitivity_is_the_central_difference_of_independent_solves(client, tmp
         sensitivity_designs(centre, ["oxide"])
     with pytest.raises(ValueError, match="temperature_K: 450 sits at the end of its range"):
         sensitivity_designs(Design(temperature_K=450.0), ["temperature_K"])
+
+
+def test_unreachable_scheduler_is_an_error_before_anything_is_computed(tmp_path: Path) -> None:
+    import socket
+
+    with socket.socket() as s:  # a free loopback port with nothing listening
+        s.bind(("127.0.0.1", 0))
+        port = s.getsockname()[1]
+    spec = spec_from_text('[[knob]]\nfield = "body_thickness_nm"\nvalues = [5.0]\n' + PLAN)
+    with pytest.raises(OSError):
+        run_sweep(spec, tmp_path, scheduler=f"tcp://127.0.0.1:{port}", connect_timeout_s=2)
+    assert not list(tmp_path.glob("cache/*/*.json"))
