@@ -104,7 +104,9 @@ def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
         ``status`` "ok" or "failed"; ``metrics`` {name: value or None}; ``missing``
         {name: reason} for undefined metrics; ``solver_notes`` and ``warnings`` (lists of
         text); ``error`` (text or None); ``cacheable`` (False for failures that are not a
-        property of the inputs); ``compute_s`` [s]; ``model`` (this worker's model version).
+        property of the inputs); ``compute_s`` wall time and ``cpu_s`` CPU time of the
+        task's process [s] (cpu_s < compute_s: the task waited for a core); ``model`` (this
+        worker's model version).
         A fresh `Simulator` per task: no warm start crosses designs, so the result depends
         on the inputs only.
     """
@@ -112,13 +114,13 @@ def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
     from sub60.physics.poisson import SolverError
     from sub60.physics.simulate import design_warnings
 
-    t0 = time.perf_counter()
+    t0, c0 = time.perf_counter(), time.process_time()
     out: dict[str, Any] = {"status": "failed", "metrics": {}, "missing": {}, "solver_notes": [],
                            "warnings": [], "error": None, "cacheable": True,
                            "model": model_version(), "host": socket.gethostname()}
     if out["model"] != inputs["model"]:
         out.update(error=f"worker runs model {out['model']}, the sweep expects {inputs['model']}",
-                   cacheable=False, compute_s=0.0)
+                   cacheable=False, compute_s=0.0, cpu_s=0.0)
         return out
     try:
         design = Design.from_dict(inputs["design"])
@@ -144,6 +146,7 @@ def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
     except Exception as exc:  # noqa: BLE001 - any other failure is a row, never a lost sweep
         out.update(error=f"{type(exc).__name__}: {exc}", cacheable=False)
     out["compute_s"] = time.perf_counter() - t0
+    out["cpu_s"] = time.process_time() - c0
     return out
 
 
@@ -207,6 +210,7 @@ def _row(index: int, design: Design, key: str, result: dict[str, Any] | None, ca
     row["error"] = error if error is not None else (r.get("error") or "")
     row["cached"] = cached
     row["compute_s"] = r.get("compute_s")
+    row["cpu_s"] = r.get("cpu_s")
     row["key"] = key
     return row
 
@@ -227,6 +231,7 @@ def write_table(rows: list[dict[str, Any]], out_dir: str | Path, metadata: dict[
     out = Path(out_dir)
     columns = list(rows[0]) if rows else ["index"]
     types = {"index": pa.int64(), "cached": pa.bool_(), "compute_s": pa.float64(),
+             "cpu_s": pa.float64(),
              **{k: pa.float64() for k in METRICS}}
     for f in dataclasses.fields(Design):
         types[f.name] = pa.float64() if f.name in _float_fields() else pa.string()
@@ -305,6 +310,7 @@ class SweepResult:
     scheduler: str = ""
     workers: int = 0
     compute_s: list[float] = field(default_factory=list)
+    cpu_s: list[float] = field(default_factory=list)
 
     def ok_rows(self) -> list[dict[str, Any]]:
         return [r for r in self.rows if r["status"] == "ok"]
@@ -406,6 +412,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     meta = {"spec": spec.to_dict(), "model": version, "explicit_designs": explicit}
     res = SweepResult([], len(designs), 0, st.cached, 0, False, 0.0, None)
     compute_s: list[float] = []
+    cpu_s: list[float] = []
     cancelled = False
     table_at = [time.perf_counter(), table_every_s]  # last rewrite, interval [s]
     ready = [t0]  # when the cluster was ready: the rate and ETA count from there
@@ -421,6 +428,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
             cache.put(k, inputs[first], result)
         if result is not None:
             compute_s.append(result.get("compute_s") or 0.0)
+            cpu_s.append(result.get("cpu_s") or 0.0)
         for i in by_key[k]:
             rows[i] = _row(i, designs[i], keys[i], result, cached=False, error=error)
             st.done += 1
@@ -464,7 +472,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     path = table(final=True)
     res.rows = [r for r in rows if r is not None]
     res.computed, res.failed, res.cancelled = st.computed, st.failed, cancelled
-    res.cached, res.compute_s = st.cached, compute_s
+    res.cached, res.compute_s, res.cpu_s = st.cached, compute_s, cpu_s
     res.wall_s = time.perf_counter() - t0
     res.table_path = path
     summary = {"title": spec.title, "model": version, "designs": res.total, "computed": res.computed,

@@ -7,8 +7,11 @@ Prints, from one run (medians over the repeats; 1- and 2-worker runs interleaved
 - designs per second with 1 and 2 local worker processes (one thread each) on the same
   designs, and the scaling ratio;
 - the scheduler overhead per task: (a) from the sweep itself, (wall x workers - sum of the
-  tasks' own compute times) / tasks, against the median task; (b) the round trip of
-  trivial tasks through the same cluster;
+  tasks' own compute times) / tasks, against the median task, also without the per-sweep
+  fixed cost (validation, cache reads, table writes: the wall time of a fully cached
+  rerun); (b) the round trip of trivial tasks through the same cluster;
+- the CPU share of the tasks (CPU / wall time inside each task): below 1 when other
+  processes hold the cores, which then also caps the scaling ratio;
 - the wall time of a ``--big``-design sweep on 2 local workers;
 - an estimate for 100,000 designs on 64 workers from the measured per-task figures.
 
@@ -59,12 +62,20 @@ def _cluster(n: int):
     return cluster, client, started, time.perf_counter() - t0
 
 
+CPU_SHARE: dict[int, list[float]] = {1: [], 2: []}
+FIXED_S: list[float] = []
+
+
 def _sweep(client, spec) -> tuple[float, list[float], int]:
     from sub60.app.sweep_engine import run_sweep
 
     with tempfile.TemporaryDirectory(prefix="sub60-bench-") as out:
         res = run_sweep(spec, out, client=client)
-    assert res.computed == res.total and res.cached == 0
+        again = run_sweep(spec, out, client=client)  # all cached: the per-sweep fixed cost
+    assert res.computed == res.total and res.cached == 0 and again.cached == res.total
+    FIXED_S.append(again.wall_s)
+    n = len(client.scheduler_info()["workers"])
+    CPU_SHARE.setdefault(n, []).append(sum(res.cpu_s) / max(sum(res.compute_s), 1e-9))
     return res.wall_s, res.compute_s, res.failed
 
 
@@ -101,6 +112,10 @@ def main() -> None:
             print(f"  {n} worker{'s' if n > 1 else ' '}: median wall {statistics.median(walls[n]):.2f} s "
                   f"-> {rate[n]:.3f} designs/s (walls {', '.join(f'{w:.2f}' for w in walls[n])})")
         print(f"  scaling ratio 2 workers / 1 worker: {rate[2] / rate[1]:.2f}")
+        print("  CPU share of the tasks (CPU time / wall time inside the task; < 1: waiting for a "
+              "core held by other processes): "
+              + ", ".join(f"{n} worker{'s' if n > 1 else ''} {statistics.median(CPU_SHARE[n]):.2f}"
+                          for n in (1, 2)))
         task_med = statistics.median(tasks[1])
         print(f"  task compute time (inside the task, 1 worker): median {task_med:.3f} s, "
               f"min {min(tasks[1]):.3f} s, max {max(tasks[1]):.3f} s")
@@ -108,9 +123,14 @@ def main() -> None:
             over = [(w * n - sum(tasks[n][i * n_d:(i + 1) * n_d])) / n_d
                     for i, w in enumerate(walls[n])]
             o = statistics.median(over)
+            o_net = o - statistics.median(FIXED_S) * n / n_d
             print(f"  overhead per task, {n} worker{'s' if n > 1 else ''} (wall x workers - sum of task "
-                  f"times) / tasks: {o * 1e3:.1f} ms = {100 * o / task_med:.1f} % of the median task")
+                  f"times) / tasks: {o * 1e3:.1f} ms = {100 * o / task_med:.1f} % of the median task; "
+                  f"without the per-sweep fixed cost: {o_net * 1e3:.1f} ms = "
+                  f"{100 * o_net / task_med:.1f} %")
 
+        print(f"  per-sweep fixed cost (validate, read the cache, write the tables; a fully "
+              f"cached rerun): median {statistics.median(FIXED_S) * 1e3:.0f} ms")
         t0 = time.perf_counter()
         futs = cl2.map(_noop, range(a.noop), pure=False)
         cl2.gather(futs)
