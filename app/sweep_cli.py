@@ -77,7 +77,7 @@ def summary(res, spec) -> str:
 
 def run_sweep(a: argparse.Namespace) -> tuple[str, int]:
     """Run `sub60 sweep`; returns (summary text, exit status)."""
-    from sub60.app.cli import UsageError
+    from sub60.app.cli_common import UsageError
     from sub60.app.sweep_spec import SpecError, load_spec
 
     if a.workers is not None and a.scheduler:

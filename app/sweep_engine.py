@@ -48,6 +48,9 @@ TASK_RETRIES = 2
 #: Seconds between rewrites of the partial results table.
 TABLE_EVERY_S = 5.0
 CACHE_DIR = "cache"
+#: Bias-point cache of a task's simulator [bytes]: room for a whole curve (401 points at
+#: resolution 3 take ~0.4 GB); the simulator is dropped with the task.
+CURVE_CACHE_BYTES = 2**30
 #: LocalCluster options: loopback only; the scheduler's HTTP endpoint (always started by
 #: Dask) on a random port, and no dashboard pages.
 LOCAL_CLUSTER_OPTIONS: dict[str, Any] = {"host": "127.0.0.1", "dashboard_address": "127.0.0.1:0",
@@ -110,8 +113,7 @@ def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
         A fresh `Simulator` per task: no warm start crosses designs, so the result depends
         on the inputs only.
     """
-    from sub60.physics import Simulator
-    from sub60.physics.poisson import SolverError
+    from sub60.physics import Simulator, SolverError
     from sub60.physics.simulate import design_warnings
 
     t0, c0 = time.perf_counter(), time.process_time()
@@ -128,8 +130,10 @@ def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
         import numpy as np
 
         vg = np.linspace(float(b["vg_V"][0]), float(b["vg_V"][1]), int(b["vg_V"][2]))
+        # the cache must keep every point of the curve (~0.1 MB each at resolution 1) so
+        # that the solver notes are read back below without solving again
         sim = Simulator(resolution=p["resolution"], model=p["tunnelling_model"],
-                        cache_size=max(64, vg.size + 8))
+                        cache_bytes=CURVE_CACHE_BYTES)
         tc = sim.transfer_curve(design, vg, b["vd_V"], ioff_target_uA_per_um=b["ioff_target_uA_per_um"],
                                 vdd_V=b["vdd_V"])
         notes: list[str] = []

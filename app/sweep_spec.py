@@ -62,7 +62,7 @@ from typing import Any
 
 import numpy as np
 
-from sub60.physics import Design
+from sub60.physics import TUNNELLING_MODELS, Design
 from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V
 
 #: Knobs per sweep.
@@ -80,8 +80,6 @@ IOFF_RANGE_UA_PER_UM = (1e-12, 1e3)
 VDD_RANGE_V = (0.05, 2.0)
 #: Grid refinement factor of the solver [-].
 RESOLUTION_RANGE = (0.5, 3.0)
-#: Tunnelling models of the physics (imaginary wave-vector dispersion).
-TUNNELLING_MODELS = ("two-band", "one-band")
 SAMPLING_METHODS = ("grid", "sobol", "latin-hypercube")
 #: Largest spec file read [bytes].
 MAX_SPEC_BYTES = 1_000_000
