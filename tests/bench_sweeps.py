@@ -116,6 +116,12 @@ def main() -> None:
               "core held by other processes): "
               + ", ".join(f"{n} worker{'s' if n > 1 else ''} {statistics.median(CPU_SHARE[n]):.2f}"
                           for n in (1, 2)))
+        share = {n: statistics.median(CPU_SHARE[n]) for n in (1, 2)}
+        cores = {n: n * share[n] for n in (1, 2)}
+        print(f"  cores the tasks actually got: 1 worker {cores[1]:.2f}, 2 workers {cores[2]:.2f}; "
+              f"scaling per core obtained: {rate[2] / rate[1] / (cores[2] / cores[1]):.2f} "
+              "(1.00 = the engine adds no loss; the scaling ratio on idle cores would be about "
+              f"{2 * rate[2] / rate[1] / (cores[2] / cores[1]):.2f})")
         task_med = statistics.median(tasks[1])
         print(f"  task compute time (inside the task, 1 worker): median {task_med:.3f} s, "
               f"min {min(tasks[1]):.3f} s, max {max(tasks[1]):.3f} s")
