@@ -113,8 +113,7 @@ def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
         A fresh `Simulator` per task: no warm start crosses designs, so the result depends
         on the inputs only.
     """
-    from sub60.physics import Simulator, SolverError
-    from sub60.physics.simulate import design_warnings
+    from sub60.physics import Simulator, SolverError, design_warnings
 
     t0, c0 = time.perf_counter(), time.process_time()
     out: dict[str, Any] = {"status": "failed", "metrics": {}, "missing": {}, "solver_notes": [],
@@ -252,7 +251,7 @@ def write_table(rows: list[dict[str, Any]], out_dir: str | Path, metadata: dict[
 
 @lru_cache(maxsize=1)
 def _float_fields() -> frozenset[str]:
-    from sub60.physics.design import FIELD_RANGES
+    from sub60.physics import FIELD_RANGES
 
     return frozenset(k for k, s in FIELD_RANGES.items() if s.kind is float)
 
@@ -593,7 +592,7 @@ def sensitivity_designs(design: Design, fields: list[str] | tuple[str, ...],
     with ``h`` the half distance between the two values [field unit]. Fields whose range
     leaves no room, or whose neighbours break a combination rule, raise ValueError.
     """
-    from sub60.physics.design import FIELD_RANGES
+    from sub60.physics import FIELD_RANGES
 
     out = []
     for name in fields:

@@ -62,8 +62,7 @@ from typing import Any
 
 import numpy as np
 
-from sub60.physics import TUNNELLING_MODELS, Design
-from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V
+from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_V, Design
 
 #: Knobs per sweep.
 MAX_KNOBS = 6

@@ -41,14 +41,14 @@ LAYERS: dict[str, int] = {
     "state": MODEL, "jobs": MODEL, "pin_jobs": MODEL, "pinning": MODEL, "sharing": MODEL,
     "messages": MODEL, "theme": MODEL, "tables": MODEL, "snapshot_fields": MODEL,
     "snapshot_schema": MODEL, "snapshot_reader": MODEL, "snapshot_check": MODEL,
-    "presets": MODEL, "atomic": MODEL,
+    "presets": MODEL, "atomic": MODEL, "sweep_spec": MODEL, "sweep_engine": MODEL,
     # views: the page, live plots, export figures and the snapshot bundle that holds them
     "layout": VIEWS, "controls": VIEWS, "results_view": VIEWS, "pin_view": VIEWS,
     "snapshot_view": VIEWS, "compare_panes": VIEWS, "plots": VIEWS, "plots_bias": VIEWS,
     "plots_curves": VIEWS, "plot_style": VIEWS, "metrics_strip": VIEWS, "figures": VIEWS,
     "figures_page": VIEWS, "snapshot_bundle": VIEWS, "session_files": VIEWS,
     # entry points
-    "cli": ENTRY, "cli_common": ENTRY, "snapshot_cli": ENTRY, "server": ENTRY,
+    "cli": ENTRY, "cli_common": ENTRY, "snapshot_cli": ENTRY, "sweep_cli": ENTRY, "server": ENTRY,
     "__main__": ENTRY, "console": ENTRY,
 }
 #: Top-level packages a model or physics module must not import.
