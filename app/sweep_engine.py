@@ -20,7 +20,6 @@ UI-free: this module imports no Panel/Bokeh; a page drives `run_sweep` through i
 
 from __future__ import annotations
 
-import contextlib
 import dataclasses
 import hashlib
 import importlib.resources
@@ -28,7 +27,6 @@ import json
 import math
 import os
 import socket
-import tempfile
 import threading
 import time
 from collections.abc import Callable
@@ -155,20 +153,11 @@ def evaluate_design(inputs: dict[str, Any]) -> dict[str, Any]:
 
 # ------------------------------------------------------------------ cache and table files
 def _atomic_write(path: Path, data: bytes) -> None:
-    """Write ``data`` to ``path`` through a temporary file in the same folder and a rename."""
+    """Write ``data`` to ``path`` (folder created) through a temporary file and a rename."""
+    from sub60.app.atomic import write_bytes_atomic
+
     path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp, 0o644)  # mkstemp makes it private; results are ordinary files
-        os.replace(tmp, path)
-    except BaseException:
-        with contextlib.suppress(OSError):
-            os.unlink(tmp)
-        raise
+    write_bytes_atomic(path, data)
 
 
 class ResultCache:
