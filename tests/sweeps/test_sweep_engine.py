@@ -100,7 +100,8 @@ def test_rerun_computes_nothing_and_an_extension_only_the_new_designs(client, tm
     meta = json.loads(pq.read_schema(tmp_path / "results.parquet").metadata[b"sub60_sweep"])
     assert meta["model"] == model_version() and meta["spec"]["knob"][0]["high"] == 5.0
     assert len((tmp_path / "results.csv").read_text().strip().splitlines()) == 4
-    assert not list(tmp_path.glob(".*.tmp"))  # no temporary file left behind
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["cache", "results.csv", "results.parquet",
+                                                      "sweep.json"]  # no temporary file left
 
 
 def test_failed_design_is_a_row_with_its_reason(client, tmp_path: Path) -> None:
