@@ -18,6 +18,7 @@ class SnapshotError(ValueError):
 
 
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
+_SURROGATE = re.compile(r"[\ud800-\udfff]")
 
 
 class FieldReader:
@@ -60,6 +61,9 @@ class FieldReader:
             raise SnapshotError(f"{self.at(key)}: expected text, got {show_value(v)}")
         if len(v) > max_chars:
             raise SnapshotError(f"{self.at(key)}: {len(v)} characters; the limit is {max_chars}")
+        if _SURROGATE.search(v):  # not Unicode text: cannot be written as UTF-8 or shown
+            raise SnapshotError(f"{self.at(key)}: holds a lone surrogate (\\ud800-\\udfff), "
+                                "which is not a character; a byte that is not UTF-8 text?")
         bad = _CONTROL.search(v) if multiline else re.search(r"[\x00-\x1f\x7f]", v)
         if bad:
             raise SnapshotError(f"{self.at(key)}: control character {bad.group()!r} not allowed")

@@ -11,14 +11,14 @@ is a `SnapshotError` naming the problem. UI-free.
 from __future__ import annotations
 
 import io
-import json
-import math
 import re
 import stat
 import zipfile
+import zlib
 from dataclasses import dataclass, field
 from typing import Any
 
+from sub60.app.number_rules import InputError, parse_json
 from sub60.app.snapshot_check import METRIC_REL_TOL, Difference, verify_snapshot
 from sub60.app.snapshot_fields import SnapshotError
 from sub60.app.snapshot_schema import SETTINGS_MEMBER, SnapshotSettings, sub60_version
@@ -35,42 +35,12 @@ MAX_UNCOMPRESSED_BYTES = 64 * 1024 * 1024
 
 # ---------------------------------------------------------------------- bytes -> settings
 def _parse_json(raw: bytes, what: str) -> Any:
-    """Strict JSON: UTF-8, no NaN/Infinity, no overflowing numbers, no repeated keys."""
+    """Strict JSON by the shared rules (`app.number_rules.parse_json`): UTF-8, no
+    NaN/Infinity, no overflowing numbers, no repeated keys, no lone surrogates."""
     try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        raise SnapshotError(f"{what}: not UTF-8 text (bad byte at offset {exc.start})") from None
-
-    def constant(name: str) -> float:
-        raise SnapshotError(f"{what}: {name} is not allowed; numbers must be finite")
-
-    def parse_float(s: str) -> float:
-        v = float(s)
-        if not math.isfinite(v):
-            raise SnapshotError(f"{what}: the number {s[:40]} is too large (not finite)")
-        return v
-
-    def parse_int(s: str) -> int:
-        if len(s.lstrip("-")) > 30:
-            raise SnapshotError(f"{what}: the integer {s[:40]} is too large")
-        return int(s)
-
-    def pairs(items: list[tuple[str, Any]]) -> dict[str, Any]:
-        out: dict[str, Any] = {}
-        for k, v in items:
-            if k in out:
-                raise SnapshotError(f"{what}: the key {k!r} appears twice in one object")
-            out[k] = v
-        return out
-
-    try:
-        return json.loads(text, parse_constant=constant, parse_float=parse_float,
-                          parse_int=parse_int, object_pairs_hook=pairs)
-    except json.JSONDecodeError as exc:
-        raise SnapshotError(f"{what}: not valid JSON ({exc.msg} at line {exc.lineno} "
-                            f"column {exc.colno})") from None
-    except RecursionError:
-        raise SnapshotError(f"{what}: JSON nested too deeply") from None
+        return parse_json(raw, what)
+    except InputError as exc:
+        raise SnapshotError(str(exc)) from None
 
 
 def _mb(n: int) -> str:
@@ -104,7 +74,35 @@ def _check_member(info: zipfile.ZipInfo) -> None:
         raise SnapshotError(f"zip member {name!r}: encrypted members are not supported")
 
 
+#: What the standard zip reader raises on a damaged or unusual archive besides its own
+#: BadZipFile: a corrupt deflate stream (zlib.error), an unsupported zip version or
+#: feature (NotImplementedError), a password needed (RuntimeError), header fields that
+#: do not fit (struct.error is a subclass of Exception only; OverflowError, ValueError,
+#: EOFError, OSError), a member name that is not text (UnicodeDecodeError).
+_ZIP_FAILURES = (zipfile.BadZipFile, zipfile.LargeZipFile, zlib.error, NotImplementedError,
+                 RuntimeError, OverflowError, ValueError, EOFError, OSError, LookupError)
+
+
 def _settings_from_zip(data: bytes, max_settings_bytes: int) -> tuple[bytes, list[str]]:
+    """The raw settings.json of a zip, read in memory; every failure of the zip reader on
+    a damaged archive becomes one `SnapshotError`."""
+    try:
+        return _read_zip(data, max_settings_bytes)
+    except SnapshotError:
+        raise
+    except _ZIP_FAILURES as exc:
+        raise SnapshotError(f"snapshot: a damaged or unsupported zip archive ({_reason(exc)})") \
+            from None
+    except Exception as exc:  # noqa: BLE001 - a hostile file: one message, never a traceback
+        raise SnapshotError(f"snapshot: a damaged zip archive ({_reason(exc)})") from None
+
+
+def _reason(exc: BaseException) -> str:
+    text = str(exc).strip() or type(exc).__name__
+    return ascii(text)[1:-1][:160]
+
+
+def _read_zip(data: bytes, max_settings_bytes: int) -> tuple[bytes, list[str]]:
     """The raw settings.json of a zip, read in memory; checks every member's header."""
     try:
         zf = zipfile.ZipFile(io.BytesIO(data))
@@ -141,8 +139,9 @@ def _settings_from_zip(data: bytes, max_settings_bytes: int) -> tuple[bytes, lis
         try:
             with zf.open(info) as fh:  # in memory; capped whatever the header claims
                 raw = fh.read(max_settings_bytes + 1)
-        except (zipfile.BadZipFile, OSError, EOFError, ValueError) as exc:
-            raise SnapshotError(f"zip member {SETTINGS_MEMBER!r}: cannot be read ({exc})") from None
+        except _ZIP_FAILURES as exc:
+            raise SnapshotError(f"zip member {SETTINGS_MEMBER!r}: cannot be read "
+                                f"({_reason(exc)})") from None
         if len(raw) > max_settings_bytes:
             raise SnapshotError(f"{SETTINGS_MEMBER}: over the limit of {_mb(max_settings_bytes)} "
                                 "(more data than its zip header states)")

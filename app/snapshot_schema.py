@@ -21,6 +21,7 @@ from typing import Any
 
 import numpy as np
 
+from sub60.app.number_rules import IOFF_TARGET_RANGE_UA_PER_UM, VDD_RANGE_V
 from sub60.app.snapshot_fields import (
     FieldReader,
     SnapshotError,
@@ -36,13 +37,12 @@ SCHEMA_VERSION = 1
 #: Version written when the installed package metadata cannot be read.
 FALLBACK_VERSION = "0.2.0+unknown"
 
-#: Limits of the settings (engineering choices, no source).
+#: Limits of the settings (engineering choices, no source); the Vdd and Ioff target ranges
+#: are shared with every other door (`app.number_rules`).
 VG_POINTS_RANGE = (3, 201)
 VD_POINTS_RANGE = (2, 101)
 MAX_OUTPUT_CURVES = 8
 MAX_PINNED = 8
-VDD_RANGE_V = (0.01, 2.0)
-IOFF_TARGET_RANGE_UA_PER_UM = (1e-12, 1e3)
 RESOLUTION_RANGE = (0.5, 3.0)
 MAX_TITLE_CHARS = 200
 MAX_NOTE_CHARS = 4000
