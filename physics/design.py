@@ -311,7 +311,7 @@ def _check(name: str, value: Any) -> Any:
     if isinstance(value, (bool, np.bool_)) or not isinstance(value, (numbers.Real, np.integer)):
         raise ValueError(f"{name}: expected a number, got {value!r}; "
                          f"allowed {spec.describe()}")
-    value = float(value)
+    value = _as_float(name, value, f"allowed {spec.describe()}")
     if not math.isfinite(value):
         raise ValueError(f"{name}: {value} is not a finite number; allowed {spec.describe()}")
     if not spec.low <= value <= spec.high:
@@ -319,12 +319,28 @@ def _check(name: str, value: Any) -> Any:
     return value
 
 
+def _as_float(name: str, value: Any, allowed: str) -> float:
+    """float(value), or ValueError naming the field for an integer too large for a float
+    (``float(10**400)`` raises OverflowError; an integer of over 4300 digits cannot even be
+    printed)."""
+    if isinstance(value, (int, np.integer)) and abs(int(value)).bit_length() > 1000:
+        digits = int(abs(int(value)).bit_length() * math.log10(2)) + 1
+        raise ValueError(f"{name}: an integer of about {digits} digits is too large; {allowed}")
+    try:
+        return float(value)
+    except (OverflowError, ValueError, TypeError):
+        raise ValueError(f"{name}: not a usable number (too large?); {allowed}") from None
+
+
 def check_bias(vg_V: float, vd_V: float) -> tuple[float, float]:
     """Validate a bias point; ValueError names the terminal and the allowed range [V]."""
     out = []
     for label, v, (lo, hi) in (("vg_V", vg_V, VG_RANGE_V), ("vd_V", vd_V, VD_RANGE_V)):
-        if isinstance(v, (bool, np.bool_)) or not isinstance(v, (numbers.Real, np.integer)) \
-                or not math.isfinite(v):
+        if isinstance(v, (bool, np.bool_)) or not isinstance(v, (numbers.Real, np.integer)):
+            raise ValueError(f"{label}: expected a finite number, got {v!r}; "
+                             f"allowed [{lo:g}, {hi:g}] V")
+        v = _as_float(label, v, f"allowed [{lo:g}, {hi:g}] V")
+        if not math.isfinite(v):
             raise ValueError(f"{label}: expected a finite number, got {v!r}; "
                              f"allowed [{lo:g}, {hi:g}] V")
         if not lo <= v <= hi:
