@@ -29,11 +29,13 @@ from sub60.app.cli_common import (
     Parser,
     UsageError,
     apply_overrides,
+    ioff_option,
     load_design,
     parse_sweep,
     parse_value,
     single_voltage,
     solve,
+    vdd_option,
     warn_design,
 )
 from sub60.app.snapshot_cli import add_snapshot_parser, run_snapshot
@@ -158,8 +160,9 @@ def build_parser() -> argparse.ArgumentParser:
     t = sub.add_parser("transfer", help="transfer curve Id-Vg with figures of merit")
     common(t, "-0.3:0.6:46", "0.3")
     t.add_argument("--twin", action="store_true", help="also the n+ source MOSFET twin")
-    t.add_argument("--ioff", type=float, default=1e-3, help="Ioff target [uA/um]")
-    t.add_argument("--vdd", type=float, default=0.3, help="supply for Ion = Id(Voff + Vdd) [V]")
+    t.add_argument("--ioff", type=ioff_option, default=1e-3, help="Ioff target [uA/um]")
+    t.add_argument("--vdd", type=vdd_option, default=0.3,
+                   help="supply for Ion = Id(Voff + Vdd) [V]")
     common(sub.add_parser("output", help="output curves Id-Vd"), "0.3", "0:0.5:11")
     add_snapshot_parser(sub)
     from sub60.app.sweep_cli import add_sweep_parser

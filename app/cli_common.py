@@ -8,7 +8,6 @@ import this module; it imports neither, so the two do not import each other.
 from __future__ import annotations
 
 import argparse
-import json
 import re
 import sys
 from collections.abc import Callable
@@ -17,6 +16,16 @@ from typing import Any
 import numpy as np
 
 from sub60.app.messages import short_error
+from sub60.app.number_rules import (
+    IOFF_TARGET_RANGE_UA_PER_UM,
+    VDD_RANGE_V,
+    InputError,
+    check_text,
+    looks_like_number,
+    parse_integer,
+    parse_json,
+    parse_number,
+)
 
 
 class UsageError(Exception):
@@ -36,34 +45,62 @@ class Parser(argparse.ArgumentParser):
         raise UsageError(message)
 
 
+#: Range of each voltage option [V] (the physics bias ranges, as snapshots use them).
+def _voltage_range(name: str) -> tuple[float, float]:
+    from sub60.physics import VD_RANGE_V, VG_RANGE_V
+
+    return VD_RANGE_V if name.startswith("vd") else VG_RANGE_V
+
+
 def parse_sweep(text: str, name: str) -> np.ndarray:
-    """'V' or 'START:STOP:N' -> voltages [V]."""
+    """'V' or 'START:STOP:N' -> voltages [V], each number by the shared rules
+    (`app.number_rules`) and within the bias range of `name` ("vg..." or "vd...")."""
+    lo, hi = _voltage_range(name)
     parts = text.split(":")
     try:
         if len(parts) == 1:
-            values = np.array([float(parts[0])])
-        elif len(parts) == 3:
-            n = int(parts[2])
-            if not 1 <= n <= 2001:
-                raise UsageError(f"--{name}: N = {n} outside [1, 2001]")
-            values = np.linspace(float(parts[0]), float(parts[1]), n)
-        else:
-            raise ValueError
-    except ValueError:
-        raise UsageError(f"--{name}: expected V or START:STOP:N, got {text!r}") from None
-    if not np.all(np.isfinite(values)):
-        raise UsageError(f"--{name}: values must be finite, got {text!r}")
-    return values
+            return np.array([parse_number(parts[0], f"--{name}", lo, hi, "V")])
+        if len(parts) == 3:
+            n = parse_integer(parts[2], f"--{name}: N", 1, 2001)
+            return np.linspace(parse_number(parts[0], f"--{name}: START", lo, hi, "V"),
+                               parse_number(parts[1], f"--{name}: STOP", lo, hi, "V"), n)
+    except InputError as exc:
+        raise UsageError(str(exc)) from None
+    raise UsageError(f"--{name}: expected V or START:STOP:N, got {ascii(text)}")
 
 
-def parse_value(text: str) -> Any:
-    """Value of a --set override: number, 'none', or text."""
+def number_option(name: str, low: float, high: float, unit: str = "") -> Callable[[str], float]:
+    """An argparse ``type`` reading one number by the shared rules, within [low, high]."""
+
+    def read(text: str) -> float:
+        try:
+            return parse_number(text, name, low, high, unit)
+        except InputError as exc:
+            raise argparse.ArgumentTypeError(str(exc).removeprefix(f"{name}: ")) from None
+
+    read.__name__ = name  # argparse names the type in some messages
+    return read
+
+
+#: --vdd and --ioff: the ranges a snapshot accepts (`app.number_rules`).
+vdd_option = number_option("vdd", *VDD_RANGE_V, "V")
+ioff_option = number_option("ioff", *IOFF_TARGET_RANGE_UA_PER_UM, "uA/um")
+
+
+def parse_value(text: str, name: str = "value") -> Any:
+    """Value of a --set override: a number (by the shared rules), 'none', or text.
+
+    Text that was evidently meant as a number but breaks the rules (``1_0``, ``１``,
+    ``inf``) is refused (UsageError) rather than passed on as a name.
+    """
     if text.lower() in ("none", "null"):
         return None
     try:
-        return float(text)
-    except ValueError:
-        return text
+        if looks_like_number(text):
+            return parse_number(text, f"--set {name}")
+        return check_text(text, f"--set {name}")
+    except InputError as exc:
+        raise UsageError(str(exc)) from None
 
 
 def warn_design(design) -> list[str]:
@@ -76,25 +113,33 @@ def warn_design(design) -> list[str]:
     return notes
 
 
-def load_design(path: str | None, overrides: list[str]):
-    """Design from a JSON file (or the default) with name=value overrides."""
+#: Largest design file read [bytes] (a design is under 1 kB; engineering choice).
+MAX_DESIGN_FILE_BYTES = 1024 * 1024
 
-    data: dict[str, Any] = {}
+
+def load_design(path: str | None, overrides: list[str]):
+    """Design from a JSON file (or the default) with name=value overrides; the file is
+    read by the shared JSON rules (`app.number_rules.parse_json`) and at most
+    `MAX_DESIGN_FILE_BYTES`."""
+
+    data: Any = {}
     if path:
         try:
-            with open(path, encoding="utf-8") as fh:
-                data = json.load(fh)
+            with open(path, "rb") as fh:
+                raw = fh.read(MAX_DESIGN_FILE_BYTES + 1)  # never more than the limit
         except OSError as exc:
-            raise UsageError(f"--design: cannot read {path!r} ({exc.strerror})") from None
-        except UnicodeDecodeError:
-            raise UsageError(f"--design: {path!r} is not UTF-8 text") from None
-        except json.JSONDecodeError as exc:
-            raise UsageError(f"--design: {path!r} is not valid JSON ({exc.msg}, line {exc.lineno})") \
-                from None
+            raise UsageError(f"--design: cannot read {ascii(path)} ({exc.strerror})") from None
+        if len(raw) > MAX_DESIGN_FILE_BYTES:
+            raise UsageError(f"--design: {ascii(path)} is larger than the limit of "
+                             f"{MAX_DESIGN_FILE_BYTES // 1024} kB for a design file")
+        try:
+            data = parse_json(raw, f"--design: {ascii(path)}")
+        except InputError as exc:
+            raise UsageError(str(exc)) from None
         if isinstance(data, dict) and "design" in data and isinstance(data["design"], dict):
             data = data["design"]
         if not isinstance(data, dict):
-            raise UsageError(f"--design: {path!r} must hold a JSON object")
+            raise UsageError(f"--design: {ascii(path)} must hold a JSON object")
     return apply_overrides(data, overrides)
 
 
@@ -107,7 +152,7 @@ def apply_overrides(data: dict[str, Any], overrides: list[str]):
         if "=" not in item:
             raise UsageError(f"--set: expected name=value, got {item!r}")
         key, value = item.split("=", 1)
-        data[key.strip()] = parse_value(value.strip())
+        data[key.strip()] = parse_value(value.strip(), ascii(key.strip())[1:-1])
     try:
         return Design.from_dict(data)
     except ValueError as exc:

@@ -81,7 +81,7 @@ def check_range(value: float, name: str, low: float | None = None, high: float |
 def looks_like_number(text: str) -> bool:
     """True when `text` was evidently meant as a number (accepted form or not)."""
     t = text.strip(" \t")
-    if _NUMBER_LIKE.fullmatch(t):
+    if _NUMBER_LIKE.fullmatch(t.strip("\ufeff\u00a0\u3000")):  # a byte order mark, odd spaces
         return True
     try:
         float(t)

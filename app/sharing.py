@@ -22,6 +22,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 from urllib.parse import parse_qsl, urlencode
 
+from sub60.app.number_rules import InputError, parse_integer, parse_number
 from sub60.app.snapshot_fields import SnapshotError
 from sub60.app.snapshot_schema import (
     BiasSettings,
@@ -212,16 +213,17 @@ def _parse(name: str, raw: str, state: ExplorerState) -> Any:
     if name == "vg_sweep_V":
         parts = text.split(",")
         if len(parts) != 2:
-            raise ValueError(f"{raw!r} is not two voltages 'first,last'")
+            raise ValueError(f"{ascii(raw)} is not two voltages 'first,last'")
         lo, hi = (_finite(p, raw) for p in parts)
         if not lo < hi:
-            raise ValueError(f"{raw!r}: the first gate voltage must be below the last")
+            raise ValueError(f"{ascii(raw)}: the first gate voltage must be below the last")
         return (lo, hi)
     if name == "vg_points":
         try:
-            return int(text)
-        except ValueError:
-            raise ValueError(f"{raw!r} is not a whole number") from None
+            return parse_integer(text, name)
+        except InputError:
+            raise ValueError(f"{ascii(raw)} is not a whole number written with ASCII digits") \
+                from None
     value = _finite(text, raw)
     if name in _POWERS:
         if name == "channel_doping_log10_cm3" and 0 <= value < CHANNEL_DOPING_FLOOR_CM3:
@@ -234,13 +236,12 @@ def _parse(name: str, raw: str, state: ExplorerState) -> Any:
 
 
 def _finite(text: str, raw: str) -> float:
+    """A number by the shared rules (`app.number_rules`): ASCII digits, finite."""
     try:
-        value = float(text)
-    except ValueError:
-        raise ValueError(f"{raw!r} is not a number") from None
-    if not math.isfinite(value):
-        raise ValueError(f"{raw!r} is not a finite number")
-    return value
+        return parse_number(text, "value")
+    except InputError:
+        raise ValueError(f"{ascii(raw)} is not a number written with ASCII digits "
+                         "(e.g. 0.3 or 4e19)") from None
 
 
 def _range_text(name: str, state: ExplorerState) -> str:

@@ -17,7 +17,15 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from sub60.app.cli_common import UsageError, apply_overrides, load_design, parse_sweep, solve
+from sub60.app.cli_common import (
+    UsageError,
+    apply_overrides,
+    ioff_option,
+    load_design,
+    parse_sweep,
+    solve,
+    vdd_option,
+)
 
 
 def add_snapshot_parser(sub) -> None:
@@ -33,8 +41,8 @@ def add_snapshot_parser(sub) -> None:
     e.add_argument("--vg", help="gate voltage of the band diagram [V]")
     e.add_argument("--vd", help="drain voltage of the band diagram and transfer curves [V]")
     e.add_argument("--sweep", help="gate sweep of the transfer curves START:STOP:N [V]")
-    e.add_argument("--vdd", type=float, help="supply for Ion = Id(Voff + Vdd) [V]")
-    e.add_argument("--ioff", type=float, help="Ioff target [uA/um]")
+    e.add_argument("--vdd", type=vdd_option, help="supply for Ion = Id(Voff + Vdd) [V]")
+    e.add_argument("--ioff", type=ioff_option, help="Ioff target [uA/um]")
     e.add_argument("--output-vg", help="gate voltages of the output curves, V1,V2,... [V]")
     e.add_argument("--title", help="title stored in the snapshot")
     e.add_argument("--out", required=True, help="snapshot zip to write")
@@ -106,10 +114,10 @@ def _export_settings(a):
         sweep = TransferSweep(float(values[0]), float(values[-1]), int(values.size), sweep.vd_V)
     output = base.output_sweep
     if a.output_vg:
-        try:
-            vgs = tuple(float(v) for v in a.output_vg.split(","))
-        except ValueError:
-            raise UsageError(f"--output-vg: expected V1,V2,..., got {a.output_vg!r}") from None
+        parts = a.output_vg.split(",")
+        if any(":" in p for p in parts):
+            raise UsageError(f"--output-vg: expected V1,V2,..., got {ascii(a.output_vg)}")
+        vgs = tuple(float(parse_sweep(p, "output-vg")[0]) for p in parts)
         output = OutputSweep(vgs, output.vd_start_V, output.vd_stop_V, output.vd_points)
     ms = base.metric_settings
     ms = MetricSettings(a.vdd if a.vdd is not None else ms.vdd_V,

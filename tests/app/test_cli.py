@@ -264,8 +264,8 @@ ERROR_CASES = [
     (["bands", "--format", "xml"], "--format"),                       # bad choice
     (["transfer", "--ioff", "abc"], "--ioff"),                        # bad number
     (["bands", "--vg", "abc"], "--vg"),                               # bad value
-    (["bands", "--vg", "5"], "vg_V"),                                 # bias out of range
-    (["bands", "--vd", "2"], "vd_V"),
+    (["bands", "--vg", "5"], "--vg"),                                 # bias out of range
+    (["bands", "--vd", "2"], "--vd"),
     (["bands", "--vg", "nan"], "--vg"),
     (["bands", "--set", "body_thickness_nm=100"], "body_thickness_nm"),  # out of range
     (["bands", "--set", "body_thickness_nm=abc"], "body_thickness_nm"),  # bad value
