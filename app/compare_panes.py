@@ -15,6 +15,7 @@ import html
 from collections.abc import Callable, Sequence
 
 import panel as pn
+from bokeh.models import CustomJS
 
 from sub60.app.pinning import (
     MAX_PINS,
@@ -24,6 +25,41 @@ from sub60.app.pinning import (
     comparison_header_html,
 )
 from sub60.app.session_files import UPLOAD_LIMIT_BYTES
+
+#: Client-side size check of an upload, installed once per page when its document is
+#: ready. The page's FileInput (Bokeh's) reads the chosen file with
+#: ``FileReader.readAsDataURL`` and sends it base64-encoded (4/3 larger) in one websocket
+#: message; a file over the websocket limit would silently cut the page's connection, and
+#: Panel's FileInput offers no size limit. So a file over ``limit`` bytes is not read at
+#: all: the read is left pending (nothing is sent) and the user is told in plain text.
+UPLOAD_GUARD_JS = """
+if (!window.sub60UploadGuard) {
+  window.sub60UploadGuard = true;
+  const read = FileReader.prototype.readAsDataURL;
+  FileReader.prototype.readAsDataURL = function (blob) {
+    if (blob instanceof Blob && blob.size > limit) {
+      const mb = (blob.size / 1048576).toFixed(1);
+      const name = (blob.name === undefined) ? "The file" : `The file "${blob.name}"`;
+      window.alert(`${name} is ${mb} MB; a snapshot opened here is at most ${limit_mb} MB. ` +
+                   "Nothing was sent.");
+      return;  // never read: the widget's read stays pending and sends nothing
+    }
+    return read.call(this, blob);
+  };
+}
+"""
+
+
+def install_upload_guard(limit_bytes: int = UPLOAD_LIMIT_BYTES) -> None:
+    """Refuse files over `limit_bytes` [bytes] in the browser, before they are sent
+    (`UPLOAD_GUARD_JS`), on the current session's page; nothing outside a session."""
+    doc = pn.state.curdoc
+    if doc is None:
+        return
+    doc.js_on_event("document_ready", CustomJS(
+        args={"limit": int(limit_bytes), "limit_mb": f"{limit_bytes / 1024 / 1024:g}"},
+        code=UPLOAD_GUARD_JS))
+
 
 #: Width of the name column and of the cells of a comparison row [px] (style.css sets
 #: each cell's width; these add up to the same).
@@ -176,6 +212,7 @@ class SnapshotControls:
             f"{limit_mb:g} MB)</div>", stylesheets=css, margin=(8, 10, 0, 10))
         self.upload = pn.widgets.FileInput(accept=".zip,.json", multiple=False, width=width,
                                            margin=(2, 10), css_classes=["snapshot-upload"])
+        install_upload_guard()
         self.report = pn.pane.HTML("", stylesheets=css, margin=(2, 12, 6, 12), visible=False,
                                    css_classes=["snapshot-report"])
         self.items = (self.presets, self.download, self.export_note, self.upload_label,
