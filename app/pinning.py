@@ -88,6 +88,9 @@ class PinBoard:
             raise PinError(f"the name has {len(clean)} characters; the limit is {MAX_NAME_CHARS}")
         if re.search(r"[\x00-\x1f\x7f]", clean):
             raise PinError("the name holds a control character")
+        if re.search(r"[\ud800-\udfff]", clean):  # a browser string can hold one
+            raise PinError("the name holds a lone surrogate (\\ud800-\\udfff), which is not "
+                           "a character")
         other = next((p for p in self._pins if p.name == clean and p.slot != slot), None)
         if other is not None:
             raise PinError(f"another pinned design is called {clean!r}")

@@ -86,6 +86,8 @@ def test_pin_board_refuses_bad_names_and_repeated_designs():
         board.rename(other.slot, "thin body")
     with pytest.raises(PinError, match="control character"):
         board.rename(other.slot, "a\x07b")
+    with pytest.raises(PinError, match="lone surrogate"):  # it could not be saved as UTF-8
+        board.rename(other.slot, "pin \udcff")
     with pytest.raises(PinError, match=f"limit is {MAX_NAME_CHARS}"):
         board.rename(other.slot, "x" * (MAX_NAME_CHARS + 1))
     with pytest.raises(PinError, match="needs a name"):
