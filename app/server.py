@@ -267,7 +267,7 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
 
     configure()
     server = pn.serve(
-        {"/": create_app}, port=port, address=host, show=show, start=False,
+        {"/": create_app}, port=port, address=host, show=show, start=threaded and start,
         threaded=threaded, title=TITLE, websocket_origin=allowed_origins(host, port),
         verbose=False, admin=False,
         # Bokeh's names: other spellings are silently taken as tornado settings
