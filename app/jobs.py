@@ -10,7 +10,14 @@
 Every request takes a new *generation* number; a result whose generation is no longer
 the newest is dropped, and a running sweep stops at its next point (the solver's
 ``cancelled`` callback). The sweep yields to a pending bias point, so that the band
-diagram stays quick while curves are computing.
+diagram stays quick while curves are computing; across sessions, every point is solved
+in a slot of one `PriorityGate` (one slot per core) that serves a page's first band
+diagram, then band diagrams, then pinned band edges, then sweep points.
+
+Closing (the page is gone) stops everything at once: queued jobs are skipped, a running
+sweep stops before its next point, nothing more is delivered, the results are dropped.
+The solved points are cached once for all sessions (`shared_simulator`, bounded by
+`SHARED_CACHE_BYTES`), so a session holds no cache of its own.
 
 Results reach the page through ``post(fn, *args)``: the view passes a function that runs
 ``fn`` on its document's event loop; by default it runs at once in the calling thread.

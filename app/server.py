@@ -19,6 +19,9 @@ locally served web tools, no source):
   ``X-Content-Type-Options: nosniff``, ``Referrer-Policy: no-referrer``.
 - **Signed session ids**: ids are signed with a secret drawn at start-up, so a link
   cannot make two browsers join one chosen session.
+- **Sessions end**: a session whose page is closed, or that never connected (a bare
+  GET), ends after `UNUSED_SESSION_LIFETIME_MS`; its work stops and what it held is
+  released (`app.layout.Explorer.close`).
 
 This module imports Panel only when a server is built, so the command line stays light.
 """
