@@ -24,9 +24,6 @@ from sub60.app import server as server_mod
 from sub60.app.jobs import LIVE_SESSIONS
 from sub60.app.layout import LIVE_EXPLORERS
 from tests.app.conftest import (
-    CHROMIUM,
-    CHROMIUM_ARGS,
-    browser_or_skip,
     free_port,
     open_app,
     start_server,
@@ -38,9 +35,17 @@ SOAK_PAGES = 10         # pages opened and closed in the soak (the issue used 30
 RSS_BUDGET_MB = 50.0    # allowed growth over the level after the first page [MB]
 
 
-def _live() -> tuple[int, int]:
+def _live(before: tuple[list, list]) -> tuple[int, int]:
+    """(explorers, session jobs) alive now that were not alive in ``before`` (objects of
+    other tests of this process, e.g. module fixtures, are not counted)."""
     gc.collect()
-    return len(LIVE_EXPLORERS), len(LIVE_SESSIONS)
+    return (sum(1 for e in list(LIVE_EXPLORERS) if not any(e is b for b in before[0])),
+            sum(1 for j in list(LIVE_SESSIONS) if not any(j is b for b in before[1])))
+
+
+def _alive_now() -> tuple[list, list]:
+    gc.collect()
+    return list(LIVE_EXPLORERS), list(LIVE_SESSIONS)
 
 
 def _wait_until(cond, timeout_s: float, poll_s: float = 0.2):
@@ -75,28 +80,23 @@ def _get_ok(url: str) -> bool:
 
 
 def test_sessions_that_never_connect_end_and_are_released(local_server):
+    before = _alive_now()
     for _ in range(5):  # bare GETs: a session each, no websocket ever opens
         assert _get_ok(local_server)
-        assert _live()[0] >= 1  # the session of this GET (older ones may have ended)
-    assert _wait_until(lambda: _live() == (0, 0), 30.0), (
-        f"sessions still alive after their lifetime: {_live()}")
+        assert _live(before)[0] >= 1  # the session of this GET (older ones may have ended)
+    assert _wait_until(lambda: _live(before) == (0, 0), 30.0), (
+        f"sessions still alive after their lifetime: {_live(before)}")
 
 
-def test_closed_pages_end_and_are_released(local_server):
-    browser_or_skip()
-    from playwright.sync_api import sync_playwright
-
-    with sync_playwright() as p:
-        browser = p.chromium.launch(executable_path=CHROMIUM, headless=True, args=CHROMIUM_ARGS)
-        try:
-            for _ in range(3):
-                page, _requests, errors = open_app(browser, local_server)
-                assert _live()[0] >= 1
-                page.close()
-        finally:
-            browser.close()
-    assert _wait_until(lambda: _live() == (0, 0), 30.0), (
-        f"closed pages still alive: {_live()} (explorers, session jobs)")
+@pytest.mark.browser
+def test_closed_pages_end_and_are_released(local_server, browser):
+    before = _alive_now()
+    for _ in range(3):
+        page, _requests, _errors = open_app(browser, local_server)
+        assert _live(before)[0] >= 1
+        page.close()
+    assert _wait_until(lambda: _live(before) == (0, 0), 30.0), (
+        f"closed pages still alive: {_live(before)} (explorers, session jobs)")
 
 
 def _rss_mb(pid: int) -> float:
