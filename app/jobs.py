@@ -10,7 +10,14 @@
 Every request takes a new *generation* number; a result whose generation is no longer
 the newest is dropped, and a running sweep stops at its next point (the solver's
 ``cancelled`` callback). The sweep yields to a pending bias point, so that the band
-diagram stays quick while curves are computing.
+diagram stays quick while curves are computing; across sessions, every point is solved
+in a slot of one `PriorityGate` (one slot per core) that serves a page's first band
+diagram, then band diagrams, then pinned band edges, then sweep points.
+
+Closing (the page is gone) stops everything at once: queued jobs are skipped, a running
+sweep stops before its next point, nothing more is delivered, the results are dropped.
+The solved points are cached once for all sessions (`shared_simulator`, bounded by
+`SHARED_CACHE_BYTES`), so a session holds no cache of its own.
 
 Results reach the page through ``post(fn, *args)``: the view passes a function that runs
 ``fn`` on its document's event loop; by default it runs at once in the calling thread.
@@ -21,12 +28,16 @@ job runs at once in the calling thread (tests, scripts).
 
 from __future__ import annotations
 
+import heapq
+import itertools
 import logging
 import math
 import threading
 import time
-from collections.abc import Callable
+import weakref
+from collections.abc import Callable, Iterator
 from concurrent.futures import Future, ThreadPoolExecutor
+from contextlib import contextmanager
 from dataclasses import dataclass
 from typing import Any, Protocol
 
@@ -35,9 +46,88 @@ import numpy as np
 from sub60.app.state import ExplorerState
 from sub60.physics import Design, SolverError
 
-#: Sweep points solved at once across all sessions (one per core): sweeps of many
-#: sessions interleave point by point, and single bias points never wait for them.
-SWEEP_SLOTS = threading.BoundedSemaphore(2)
+
+class PriorityGate:
+    """Slots for solving points, shared by every session, granted by priority.
+
+    A point is solved while holding one slot (one per core). When a slot frees, the
+    waiting request of the most urgent priority gets it (first come first served within
+    a priority), so a sweep point takes a slot only when no bias point is waiting: the
+    band diagram of the page a user is touching comes before the curves of every page.
+    Used as a plain context manager (as `Simulator.transfer_curve`'s ``slots``) it
+    waits at the `SWEEP` priority.
+
+    Parameters
+    ----------
+    slots : points solved at once [-].
+    """
+
+    FIRST = 0   # the first band diagram of a new page
+    BIAS = 1    # a band diagram after a control change
+    PINNED = 2  # band edges of pinned designs
+    SWEEP = 3   # transfer and output curve points
+
+    def __init__(self, slots: int) -> None:
+        if slots < 1:
+            raise ValueError(f"slots: expected at least 1, got {slots!r}")
+        self.slots = slots
+        self._free = slots
+        self._queue: list[tuple[int, int]] = []
+        self._tickets = itertools.count()
+        self._cv = threading.Condition()
+
+    def acquire(self, priority: int = SWEEP) -> None:
+        """Wait for a slot; requests of a smaller ``priority`` number go first."""
+        with self._cv:
+            me = (priority, next(self._tickets))
+            heapq.heappush(self._queue, me)
+            while not (self._free > 0 and self._queue[0] == me):
+                self._cv.wait()
+            heapq.heappop(self._queue)
+            self._free -= 1
+            self._cv.notify_all()  # the next in line may take another free slot
+
+    def release(self) -> None:
+        """Give a slot back."""
+        with self._cv:
+            self._free = min(self.slots, self._free + 1)
+            self._cv.notify_all()
+
+    @contextmanager
+    def hold(self, priority: int) -> Iterator[None]:
+        """Hold one slot at ``priority`` for the duration of the block."""
+        self.acquire(priority)
+        try:
+            yield
+        finally:
+            self.release()
+
+    def waiting(self) -> list[int]:
+        """Priorities of the requests waiting now (most urgent first)."""
+        with self._cv:
+            return sorted(p for p, _ in self._queue)
+
+    def __enter__(self) -> PriorityGate:
+        self.acquire(self.SWEEP)
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.release()
+
+
+#: Points solved at once across all sessions (one per core), bias points first: sweeps
+#: of many sessions interleave point by point behind every waiting band diagram.
+SWEEP_SLOTS = PriorityGate(2)
+
+#: Budget of the solved-point cache shared by all sessions of one numerical model [B]
+#: (results are pure functions of design and bias, so sessions share them).
+SHARED_CACHE_BYTES = 192 * 2**20
+_MAX_SHARED_MODELS = 4  # numerical models (resolution, tunnelling model) kept at once
+_shared: dict[tuple, Any] = {}
+_shared_lock = threading.Lock()
+
+#: Every live `SessionJobs` (weak: for tests and diagnostics counting open sessions).
+LIVE_SESSIONS: weakref.WeakSet = weakref.WeakSet()
 OUTPUT_REST_S = 0.3  # quiet time after a gate-voltage move before the output curves [s]
 STREAM_INTERVAL_S = 0.2  # least time between two partial transfer curves sent to the page [s]
 WORKERS = ("bias", "sweep", "io")
@@ -50,6 +140,28 @@ Post = Callable[..., None]
 def post_now(fn: Callable[..., Any], *args: Any) -> None:
     """Run a result's delivery at once (no document: tests and scripts)."""
     fn(*args)
+
+
+def post_nowhere(fn: Callable[..., Any], *args: Any) -> None:
+    """Drop a result (the session is closed)."""
+
+
+def shared_simulator(resolution: float = 1.0, model: str = "two-band") -> Any:
+    """The `Simulator` of a numerical model shared by every session: one byte-bounded,
+    thread-safe cache of solved points (`SHARED_CACHE_BYTES`) instead of one per page.
+    At most `_MAX_SHARED_MODELS` models are kept; a session holding an older one keeps
+    it until it closes."""
+    from sub60.physics import Simulator
+
+    key = (float(resolution), model)
+    with _shared_lock:
+        sim = _shared.pop(key, None)
+        if sim is None:
+            sim = Simulator(resolution=resolution, model=model, cache_bytes=SHARED_CACHE_BYTES)
+        _shared[key] = sim  # most recently used last
+        while len(_shared) > _MAX_SHARED_MODELS:
+            _shared.pop(next(iter(_shared)))
+        return sim
 
 
 class JobListener(Protocol):
@@ -108,14 +220,17 @@ class SessionJobs:
     simulator : a `physics.simulate.Simulator` owned by this session.
     listener : receives the results (see `JobListener`).
     background : compute on worker threads (server) or at once (tests).
+    gate : the slots shared with the other sessions (default `SWEEP_SLOTS`).
     """
 
     def __init__(self, state: ExplorerState, simulator: Any, listener: JobListener,
-                 background: bool = True) -> None:
+                 background: bool = True, gate: PriorityGate | None = None) -> None:
         self.state = state
         self.simulator = simulator
         self.listener = listener
         self.background = background
+        self.gate = gate if gate is not None else SWEEP_SLOTS
+        self.closed = threading.Event()
         self.post: Post = post_now
         self.bias_generation = 0
         self.sweep_generation = 0
@@ -135,10 +250,13 @@ class SessionJobs:
         self.shown_transfer: tuple | None = None
         self.shown_output: tuple | None = None
         self.tfet_key: tuple | None = None       # transfer key of curves['tfet']
+        LIVE_SESSIONS.add(self)
 
     # ------------------------------------------------------------------ workers
     def submit(self, worker: str, fn: Callable[..., Any], *args: Any) -> None:
         """Run fn(*args) on a worker ('bias', 'sweep', 'io'), or at once."""
+        if self.closed.is_set():
+            return
         if not self.background:
             fn(*args)
             return
@@ -148,13 +266,22 @@ class SessionJobs:
         """The thread pool of a worker (None without background work)."""
         return self._pools.get(worker)
 
-    def close(self) -> None:
-        """Stop this session's work (supersede everything, drop the workers)."""
+    def close(self, wait: bool = False) -> None:
+        """End this session's work (its page is gone): supersede every request, skip
+        the queued jobs, stop a running sweep before its next point, deliver nothing
+        more, drop the workers and the results held. ``wait``: also join the workers
+        (at most the point being solved finishes first)."""
+        self.closed.set()
         self.bias_generation += 1
         self.sweep_generation += 1
+        self.post = post_nowhere
         self.bias_idle.set()
+        self._sweep_requested.set()  # ends a sweep's rest at once
         for pool in self._pools.values():
-            pool.shutdown(wait=False, cancel_futures=True)
+            pool.shutdown(wait=wait, cancel_futures=True)
+        self.last_bias = None
+        self.curves = {}
+        self.outputs = []
 
     def use_simulator(self, simulator: Any) -> None:
         """Another numerical model: nothing solved with the old one is reused."""
@@ -203,8 +330,12 @@ class SessionJobs:
                 # continue from the bias point on screen, the nearest solved bias
                 start = (shown.electrostatics if shown is not None and shown.design == design
                          else None)
-                bp = self.simulator.solve_bias(design, vg, vd, initial=start)
-                outcome = (self._deliver_bias, g, bp)
+                # the first band diagram of a page goes before every other waiting point
+                with self.gate.hold(PriorityGate.BIAS if post else PriorityGate.FIRST):
+                    bp = None if self.closed.is_set() else self.simulator.solve_bias(
+                        design, vg, vd, initial=start)
+                if bp is not None:
+                    outcome = (self._deliver_bias, g, bp)
         except (ValueError, SolverError) as exc:
             outcome = (self._deliver_bias_failure, g, exc)
         finally:
@@ -223,7 +354,7 @@ class SessionJobs:
                     self.bias_idle.set()
 
     def _deliver_bias(self, g: int, bp: Any) -> None:
-        if g != self.bias_generation:
+        if g != self.bias_generation or self.closed.is_set():
             return
         self.last_bias = bp
         self.listener.bias_solved(bp)
@@ -242,14 +373,18 @@ class SessionJobs:
                     SweepRequest.of(self.state, design, self.sweep_generation))
 
     def _current(self, g: int) -> bool:
-        return g == self.sweep_generation
+        return g == self.sweep_generation and not self.closed.is_set()
 
     def _sweep_job(self, job: SweepRequest) -> None:
         g = job.generation
 
-        def superseded() -> bool:
-            self.bias_idle.wait(timeout=1.0)  # let a pending band diagram go first
+        def superseded() -> bool:  # asked before every point
+            if self._current(g):
+                self.bias_idle.wait(timeout=1.0)  # let a pending band diagram go first
             return not self._current(g)
+
+        if not self._current(g):
+            return
 
         need_transfer = job.transfer_key != self.shown_transfer
         need_output = job.output_key != self.shown_output
@@ -277,7 +412,7 @@ class SessionJobs:
                     tc = sim.transfer_curve(
                         device, job.vg_V, job.vd_V, ioff_target_uA_per_um=job.ioff_uA_per_um,
                         vdd_V=job.vdd_V, progress=progress, cancelled=superseded,
-                        slots=SWEEP_SLOTS)
+                        slots=self.gate)
                     done += job.vg_V.size
                     self.post(self._deliver_transfer, g, key, tc, job, done, total)
             if need_output:
@@ -286,7 +421,7 @@ class SessionJobs:
                     if superseded():
                         return
                     curves.append(sim.output_curve(job.design, float(vg), job.output_vd_V,
-                                                   slots=SWEEP_SLOTS))
+                                                   slots=self.gate))
                     done += job.output_vd_V.size
                     self.post(self._deliver_outputs, g, list(curves), job, done, total)
             self.post(self._deliver, g, self.listener.sweep_finished, time.perf_counter() - t0)
@@ -314,6 +449,7 @@ class SessionJobs:
         return progress
 
     def _deliver(self, g: int, fn: Callable[..., None], *args: Any) -> None:
+        # _current is False once closed: nothing reaches a closed page
         if self._current(g):
             fn(*args)
 

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import importlib.resources
 import logging
+import weakref
 from collections.abc import Callable
 from pathlib import Path
 from typing import Any
@@ -34,7 +35,7 @@ from panel.io.document import hold
 from panel.io.state import set_curdoc
 
 from sub60.app.controls import SIDEBAR_WIDTH, Controls
-from sub60.app.jobs import SessionJobs
+from sub60.app.jobs import SessionJobs, shared_simulator
 from sub60.app.messages import CAUTION, TITLE, MessageBoard, header_html, html_escape, value_message
 from sub60.app.pin_jobs import PinJobs
 from sub60.app.pin_view import PinView
@@ -57,6 +58,9 @@ log = logging.getLogger("sub60.app")
 
 ASSETS = Path(str(importlib.resources.files("sub60.assets")))
 
+#: Every live `Explorer` (weak: for tests and diagnostics counting open sessions).
+LIVE_EXPLORERS: weakref.WeakSet = weakref.WeakSet()
+
 
 def stylesheet() -> str:
     """The explorer's stylesheet (assets/style.css), empty if missing."""
@@ -72,8 +76,15 @@ class Explorer(pn.viewable.Viewer):
     Parameters
     ----------
     state : settings to start from (default: the default design).
-    simulator : a `physics.simulate.Simulator` owned by this session.
+    simulator : the `physics.simulate.Simulator` to use (default: the one shared by all
+        sessions, `app.jobs.shared_simulator`: one bounded cache of solved points).
     background : compute on worker threads (server) or at once (tests).
+
+    Notes
+    -----
+    When the served session ends (the page closed, or never connected and expired),
+    `close` releases what the session holds: its work stops, its results are dropped,
+    and Panel's registries no longer refer to its components.
     """
 
     state = param.ClassSelector(class_=ExplorerState, constant=True,
@@ -81,8 +92,6 @@ class Explorer(pn.viewable.Viewer):
 
     def __init__(self, state: ExplorerState | None = None, simulator: Any = None,
                  background: bool = True) -> None:
-        from sub60.physics import Simulator
-
         super().__init__(state=state or ExplorerState())
         self.background = background
         self._doc = None
@@ -92,7 +101,7 @@ class Explorer(pn.viewable.Viewer):
         self.messages = MessageBoard()
         self.results = ResultsView(self.state, self.messages, css)
         self.figures = self.results.figures
-        self.jobs = SessionJobs(self.state, simulator or Simulator(), self.results,
+        self.jobs = SessionJobs(self.state, simulator or shared_simulator(), self.results,
                                 background)
         self.results.jobs = self.jobs
         self.pin_view = PinView(self.state, self.figures, css, self._post)
@@ -107,7 +116,9 @@ class Explorer(pn.viewable.Viewer):
         self.sidebar = self.controls.sidebar
         self.widgets = self.controls.widgets
         self._build_panes(css)
+        self._watchers: list = []
         self._watch()
+        LIVE_EXPLORERS.add(self)
 
     @classmethod
     def from_query(cls, query: dict[str, str], **kw: Any) -> Explorer:
@@ -149,12 +160,14 @@ class Explorer(pn.viewable.Viewer):
     def _watch(self) -> None:
         """One watcher per concern (each called once per batch of changes)."""
         watch = self.state.param.watch
-        watch(self._on_presentation, "presentation")
-        watch(self._refresh_header, list(DESIGN_PARAMETERS))
-        watch(self._refresh_material_warning, "material")
-        watch(self._sync_url, list(LINKED_PARAMETERS))
-        watch(self._on_settings, list(COMPUTED_PARAMETERS))
-        self.messages.param.watch(self._refresh_alert, "text")
+        self._watchers = [
+            (self.state, watch(self._on_presentation, "presentation")),
+            (self.state, watch(self._refresh_header, list(DESIGN_PARAMETERS))),
+            (self.state, watch(self._refresh_material_warning, "material")),
+            (self.state, watch(self._sync_url, list(LINKED_PARAMETERS))),
+            (self.state, watch(self._on_settings, list(COMPUTED_PARAMETERS))),
+            (self.messages, self.messages.param.watch(self._refresh_alert, "text")),
+        ]
 
     def __panel__(self) -> pn.viewable.Viewable:
         """The page of this session; starts the first computations."""
@@ -171,7 +184,7 @@ class Explorer(pn.viewable.Viewer):
         if served:
             pn.state.onload(self._sync_url)  # the browser's address takes it once loaded
             pn.state.onload(self._request_sweeps)
-            pn.state.on_session_destroyed(lambda _ctx: self.close())
+            pn.state.on_session_destroyed(self._session_destroyed)
         else:
             self._request_sweeps()
         return self._page
@@ -181,8 +194,26 @@ class Explorer(pn.viewable.Viewer):
         return self.__panel__()
 
     def close(self) -> None:
-        """Stop this session's work (supersede everything, drop the workers)."""
+        """End this session: its work stops (queued points skipped, a running sweep
+        stopped before its next point, nothing more delivered), its results and
+        watchers are dropped. Safe to call more than once."""
         self.jobs.close()
+        self.pin_jobs.close()
+        for owner, watcher in self._watchers:
+            try:
+                owner.param.unwatch(watcher)
+            except Exception:  # already gone
+                pass
+        self._watchers = []
+        self._doc = None
+        self._location = None
+
+    def _session_destroyed(self, _context: Any) -> None:
+        """The served session ended (Bokeh's session-destroyed callback)."""
+        doc = self._doc
+        self.close()
+        if doc is not None:
+            release_document(doc, self._page)
 
     @property
     def simulator(self) -> Any:
@@ -273,14 +304,11 @@ class Explorer(pn.viewable.Viewer):
     def apply_settings(self, settings: SnapshotSettings, updates: dict) -> None:
         """Every control, the numerical model and the pinned designs of a snapshot, in
         one update of the state (one recomputation)."""
-        from sub60.physics import Simulator
-
         m = settings.model
         sim = self.jobs.simulator
         new_model = (m.resolution, m.tunnelling_model) != (sim.resolution, sim.model)
         if new_model:
-            self.jobs.use_simulator(Simulator(resolution=m.resolution,
-                                              model=m.tunnelling_model))
+            self.jobs.use_simulator(shared_simulator(m.resolution, m.tunnelling_model))
         self.pin_view.replace_all(settings.pinned, settings.transfer_sweep)
         before = (self.jobs.bias_generation, self.jobs.sweep_generation)
         self._importing = True
@@ -347,6 +375,27 @@ class Explorer(pn.viewable.Viewer):
             doc.add_next_tick_callback(run)
         except Exception:  # session already closed
             log.debug("sub60: session gone, update dropped")
+
+
+def release_document(doc: Any, page: pn.viewable.Viewable) -> None:
+    """Drop what Panel's process-wide registries hold of an ended session: its entries
+    in the view registry (kept for sessions that never connected) and the links whose
+    source or target is one of the page's components (the editable sliders' links,
+    which would otherwise keep every closed page alive)."""
+    from panel.io.state import state
+    from panel.links import Callback
+
+    for ref, (pane, root, vdoc, _comm) in list(state._views.items()):
+        if vdoc is doc:
+            try:
+                pane._cleanup(root)
+            except Exception:  # a half-built page: drop it all the same
+                log.debug("sub60: cleanup of an ended page failed", exc_info=True)
+            state._views.pop(ref, None)
+    mine = {id(o) for o in page.select()}
+    for source, links in list(Callback.registry.items()):
+        if id(source) in mine or any(id(getattr(k, "target", None)) in mine for k in links):
+            Callback.registry.pop(source, None)
 
 
 def create_app() -> pn.viewable.Viewable:

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from typing import Any, Protocol
 
-from sub60.app.jobs import SWEEP_SLOTS, SessionJobs
+from sub60.app.jobs import PriorityGate, SessionJobs
 from sub60.app.pinning import Pin, PinBoard, comparison_rows
 from sub60.physics import SolverError
 
@@ -76,6 +76,12 @@ class PinJobs:
             self._band_keys[pin.slot] = self.band_key(pin)
         return bias, curve
 
+    def close(self) -> None:
+        """The page is gone: running pin sweeps stop at their next point (the session's
+        jobs are closed by their owner), the results held are dropped."""
+        self.generation += 1
+        self.forget()
+
     def forget(self, slot: int | None = None) -> None:
         """Drop the results of one slot (of every slot when None)."""
         for d in (self.curves, self._curve_keys, self._band_keys):
@@ -102,27 +108,32 @@ class PinJobs:
                              st.ioff_target_uA_per_um, float(st.vdd_V))
 
     def _bands_job(self, g: int, pins: list[Pin], vg: float, vd: float) -> None:
+        jobs = self.jobs
         for pin in pins:
-            if g != self.jobs.bias_generation:  # a newer bias point: these edges are stale
+            # a newer bias point (or a closed page): these edges are stale
+            if g != jobs.bias_generation or jobs.closed.is_set():
                 return
             try:
-                bp = self.jobs.simulator.solve_bias(pin.design, vg, vd)
+                with jobs.gate.hold(PriorityGate.PINNED):
+                    bp = jobs.simulator.solve_bias(pin.design, vg, vd)
             except (ValueError, SolverError) as exc:
                 self.jobs.post(self._deliver_failure, pin, exc)
                 continue
             self.jobs.post(self._deliver_band, pin, (pin.design, vg, vd), bp)
 
     def _curves_job(self, g: int, pins: list[Pin], ioff: float, vdd: float) -> None:
-        def superseded() -> bool:
+        def superseded() -> bool:  # asked before every point
+            if self.jobs.closed.is_set():
+                return True
             self.jobs.bias_idle.wait(timeout=1.0)  # the band diagram goes first
-            return g != self.generation
+            return g != self.generation or self.jobs.closed.is_set()
 
         for pin in pins:
             try:
                 tc = self.jobs.simulator.transfer_curve(
                     pin.design, pin.sweep.gate_voltages(), pin.sweep.vd_V,
                     ioff_target_uA_per_um=ioff, vdd_V=vdd, cancelled=superseded,
-                    slots=SWEEP_SLOTS)
+                    slots=self.jobs.gate)
             except InterruptedError:
                 return
             except (ValueError, SolverError) as exc:

@@ -19,6 +19,9 @@ locally served web tools, no source):
   ``X-Content-Type-Options: nosniff``, ``Referrer-Policy: no-referrer``.
 - **Signed session ids**: ids are signed with a secret drawn at start-up, so a link
   cannot make two browsers join one chosen session.
+- **Sessions end**: a session whose page is closed, or that never connected (a bare
+  GET), ends after `UNUSED_SESSION_LIFETIME_MS`; its work stops and what it held is
+  released (`app.layout.Explorer.close`).
 
 This module imports Panel only when a server is built, so the command line stays light.
 """
@@ -38,6 +41,13 @@ _LOOPBACK_NAMES = {"localhost", "localhost.localdomain", "ip6-localhost"}
 #: Largest websocket message accepted [bytes]: bounds an uploaded snapshot (20 MB limit,
 #: base64-encoded by the browser, so about 27 MB on the wire).
 MAX_MESSAGE_BYTES = 32 * 1024 * 1024
+
+#: A session whose page is not connected (closed, or a bare GET that never opened the
+#: websocket) is ended after this long [ms]; its work stops and its memory is released.
+UNUSED_SESSION_LIFETIME_MS = 8000
+
+#: How often the server looks for such sessions [ms].
+CHECK_UNUSED_SESSIONS_MS = 1000
 
 #: Highest TCP port number [-] (RFC 793: 16-bit port field).
 MAX_PORT = 65535
@@ -249,18 +259,24 @@ def _page_css() -> str:
 
 
 def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
-                 start: bool = True, threaded: bool = False):
+                 start: bool = True, threaded: bool = False,
+                 unused_session_lifetime_ms: int = UNUSED_SESSION_LIFETIME_MS):
     """The Panel/Bokeh server of the explorer (see `serve`), listening once returned;
-    started (blocking) when ``start``. Raises OSError when the address cannot be bound."""
+    started (blocking) when ``start``. Raises OSError when the address cannot be bound.
+    Sessions not connected for ``unused_session_lifetime_ms`` [ms] are ended."""
     import panel as pn
 
     from sub60.app.layout import TITLE, create_app
 
     configure()
     server = pn.serve(
-        {"/": create_app}, port=port, address=host, show=show, start=False,
+        {"/": create_app}, port=port, address=host, show=show, start=threaded and start,
         threaded=threaded, title=TITLE, websocket_origin=allowed_origins(host, port),
-        verbose=False, admin=False, check_unused_sessions=5000, unused_session_lifetime=15000,
+        verbose=False, admin=False,
+        # Bokeh's names: other spellings are silently taken as tornado settings
+        check_unused_sessions_milliseconds=min(CHECK_UNUSED_SESSIONS_MS,
+                                               unused_session_lifetime_ms),
+        unused_session_lifetime_milliseconds=unused_session_lifetime_ms,
         websocket_max_message_size=MAX_MESSAGE_BYTES,
         sign_sessions=True, secret_key=secrets.token_urlsafe(32), generate_session_ids=True)
     warning = loopback_warning(host, port)

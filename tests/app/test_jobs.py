@@ -16,7 +16,7 @@ from types import SimpleNamespace
 import numpy as np
 import pytest
 
-from sub60.app.jobs import SessionJobs
+from sub60.app.jobs import LIVE_SESSIONS, PriorityGate, SessionJobs
 from sub60.app.pin_jobs import PinJobs
 from sub60.app.pinning import PinBoard
 from sub60.app.snapshot_schema import TransferSweep
@@ -190,8 +190,8 @@ def test_results_in_flight_after_close_are_dropped():
     pool = jobs.executor("bias")
     jobs.close()
     sim.release()
-    pool.shutdown(wait=True)  # the job in flight finishes and posts its result
-    assert page.drain() == 1
+    pool.shutdown(wait=True)  # the job in flight finishes: nothing reaches the page
+    assert page.drain() == 0
     assert listener.named("bias_solved") == []
 
 
@@ -219,3 +219,103 @@ def test_a_pinned_result_of_a_removed_or_changed_pin_is_dropped():
     assert sim.curve_calls[-1][2] == pytest.approx(1e-4)
     assert pins.fresh_curve(b) is not None and pins.fresh_curve(a) is None
     jobs.close()
+
+
+class PointCounter(FakeSimulator):
+    """A stand-in whose sweeps go point by point like `Simulator.transfer_curve` (asking
+    ``cancelled()`` before each point, solving it in a slot) and count the points."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.points = 0
+        self.first_point = threading.Event()
+
+    def transfer_curve(self, device, vg, vd, ioff_target_uA_per_um, vdd_V, progress=None,
+                       cancelled=None, slots=None):
+        for _ in vg:
+            if cancelled is not None and cancelled():
+                raise InterruptedError
+            with slots:
+                self.points += 1
+                self.first_point.set()
+                self._pause()
+        return super().transfer_curve(device, vg, vd, ioff_target_uA_per_um, vdd_V)
+
+    def output_curve(self, design, vg, vds, slots=None):
+        self.points += len(vds)
+        return super().output_curve(design, vg, vds)
+
+
+def test_a_closed_session_stops_computing_at_once():
+    """Closing mid-sweep: the point being solved finishes, no other point is solved,
+    queued bias points and pin curves are skipped, nothing is delivered."""
+    state = ExplorerState(vg_points=11)
+    sim, listener, page = PointCounter(), Recorder(), Page()
+    jobs = SessionJobs(state, sim, listener, background=True, gate=PriorityGate(2))
+    jobs.post = page.post
+    board = PinBoard()
+    pins = PinJobs(jobs, board, Recorder())
+    board.add("A", Design(body_thickness_nm=8.0), TransferSweep(-0.4, 0.6, 11, 0.3))
+    sim.hold()
+    jobs.request_sweeps(state.design())
+    assert sim.first_point.wait(TIMEOUT_S)
+    jobs.request_bias(state.design())   # queued behind nothing, but the solver is held
+    pins.request()                       # pin band edges and a pin curve, queued
+    page.drain()
+    solved = sim.points
+    bias_calls = len(sim.bias_calls)
+    jobs.close()
+    pins.close()
+    sim.release()
+    for pool in jobs._pools.values():
+        pool.shutdown(wait=True)
+    assert sim.points == solved          # only the point in flight when it closed
+    assert len(sim.bias_calls) <= bias_calls + 1  # at most the bias point in flight
+    assert len(sim.curve_calls) == 0     # no sweep completed
+    assert page.drain() == 0             # nothing delivered to the closed page
+    jobs.request_bias(state.design())    # a request after close is ignored
+    assert len(sim.bias_calls) <= bias_calls + 1
+
+
+def test_a_closed_session_is_no_longer_referenced():
+    import gc
+
+    state, _sim, _listener, page, jobs = _session()
+    jobs.request_sweeps(state.design())
+    _settle(jobs, "sweep")
+    jobs.close(wait=True)
+    page.drain()  # deliveries posted before the close hold the session until run
+    n = len(LIVE_SESSIONS)
+    del jobs
+    gc.collect()
+    assert len(LIVE_SESSIONS) == n - 1
+
+
+def test_bias_points_take_a_slot_before_waiting_sweep_points():
+    """The shared gate: when a slot frees, a waiting bias point gets it before sweep
+    points that waited longer; a page's first band diagram before both."""
+    gate = PriorityGate(1)
+    order: list[str] = []
+    gate.acquire(PriorityGate.SWEEP)       # the only slot is busy
+
+    def take(name: str, priority: int) -> threading.Thread:
+        def run() -> None:
+            with gate.hold(priority):
+                order.append(name)
+        t = threading.Thread(target=run)
+        t.start()
+        return t
+
+    threads = []
+    for name, priority in [("sweep-1", PriorityGate.SWEEP), ("sweep-2", PriorityGate.SWEEP),
+                           ("bias", PriorityGate.BIAS), ("first", PriorityGate.FIRST)]:
+        n = len(gate.waiting())
+        threads.append(take(name, priority))
+        while len(gate.waiting()) == n:  # polling the gate's own queue, not a fixed wait
+            threading.Event().wait(0.001)
+    gate.release()
+    for t in threads:
+        t.join(TIMEOUT_S)
+    assert order == ["first", "bias", "sweep-1", "sweep-2"]
+    with gate:                             # a plain `with` waits as a sweep point
+        assert gate.waiting() == []

@@ -246,7 +246,7 @@ def test_caution_and_metrics_are_in_the_page(explorer):
 
 def test_sessions_own_their_state():
     a, b = _fresh(), _fresh()
-    assert a.simulator is not b.simulator and a.figures.band is not b.figures.band
+    assert a.jobs is not b.jobs and a.figures.band is not b.figures.band
     a.state.vd_V = 0.4
     assert b.state.vd_V == 0.3
     assert list(b.figures.fermi_source.data["y"]) == pytest.approx([0.0, -0.3])
