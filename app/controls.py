@@ -9,13 +9,16 @@ document (one browser session) and must never be shared between sessions.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+import math
+from collections.abc import Callable, Sequence
 
 import panel as pn
+import param
 from bokeh.models import CustomJSTickFormatter
+from panel.links import Callback
 
 from sub60.app.compare_panes import SnapshotControls
-from sub60.app.messages import eot_html
+from sub60.app.messages import MessageBoard, eot_html, refused_value_message
 from sub60.app.state import DESIGN_PARAMETERS, ExplorerState
 
 SIDEBAR_WIDTH = 330
@@ -60,9 +63,85 @@ class _NowFloatInput(pn.widgets.FloatInput):
     _debounce = 0
 
 
+#: Decimals kept of a slider or entry value: removes float noise such as 0.6599999999999997
+#: (0.3 + 36 steps of 0.01) without changing any value a user can type (1e-10 of a unit).
+VALUE_DECIMALS = 10
+
+
 class _NowEditableFloatSlider(pn.widgets.EditableFloatSlider):
+    """A slider with an entry box whose typed values are checked here, on the server.
+
+    * A typed value is passed on at once as the throttled value too: the entry's Bokeh
+      model starts with its throttled value unset (0 once seen), so a first typed 0 sent
+      no throttled change and the setting, linked to the throttled value, stayed put.
+    * A value outside the setting's bounds is refused with a message (``on_refused``
+      gets its text; ``on_accepted`` is called for every accepted typed value), the box
+      goes back to the last valid value and nothing is recomputed. The entry has no
+      bounds of its own: its browser side would clamp silently and stretch the slider.
+    * Values are rounded to `VALUE_DECIMALS` decimals (no float noise in box or link).
+    """
+
     _slider_widget = _NowFloatSlider
     _input_widget = _NowFloatInput
+
+    def __init__(self, **params) -> None:
+        self.on_refused: Callable[[str], None] | None = None
+        self.on_accepted: Callable[[], None] | None = None
+        self._restoring = False
+        super().__init__(**params)
+        # Panel widens the slider in the browser to any typed value; refused values must
+        # leave the slider as it was, so that browser-side link is dropped.
+        Callback.registry.pop(self._value_edit, None)
+
+    @param.depends("start", "end", "fixed_start", "fixed_end", watch=True)
+    def _update_bounds(self) -> None:
+        super()._update_bounds()
+        self._value_edit.param.update(start=None, end=None)
+
+    @param.depends("value", watch=True)
+    def _update_value(self) -> None:
+        # The slider is told only of a real change, not of a rounding (a rounded value sent
+        # back would race the user's next arrow key or drag and lose that step).
+        if self.value is not None and (self._slider.value is None or
+                                       abs(self._slider.value - self.value) > 1e-9):
+            self._slider.value = self.value
+        self._value_edit.value = self.value
+
+    def _sync_value(self, event) -> None:
+        if event.name not in ("value", "value_throttled"):
+            return
+        typed = event.obj is self._value_edit
+        if typed and self._restoring:
+            return
+        if event.new is None:  # an emptied box
+            if typed:
+                self._refuse(None)
+            return
+        new = round(float(event.new), VALUE_DECIMALS)
+        lo, hi = self.fixed_start, self.fixed_end
+        if not (math.isfinite(new) and (lo is None or new >= lo) and (hi is None or new <= hi)):
+            self._refuse(new)
+            return
+        updates = {event.name: new}
+        if typed:
+            updates["value_throttled"] = new  # a typed value is complete at once
+        with param.edit_constant(self):
+            self.param.update(**updates)
+        if new != event.new:  # rounded: show the rounded value
+            self._update_value()
+        if typed and self.on_accepted is not None:
+            self.on_accepted()
+
+    def _refuse(self, value: float | None) -> None:
+        self._restoring = True
+        try:
+            self._value_edit.value = self.value  # the box shows the kept value again
+        finally:
+            self._restoring = False
+        if self.on_refused is not None:
+            self.on_refused(refused_value_message(self.label or self.name, value,
+                                                  self.fixed_start, self.fixed_end,
+                                                  self.value))
 
 
 def log_cm3_formatter() -> CustomJSTickFormatter:
@@ -83,13 +162,20 @@ class Controls:
     state : the session's settings.
     css : stylesheets of the page's HTML panes.
     snapshots : the demo design and snapshot widgets (first card).
+    messages : the page's messages; a refused typed value is shown there (kind 'input')
+        until a value is accepted.
     """
 
     def __init__(self, state: ExplorerState, css: Sequence[str],
-                 snapshots: SnapshotControls) -> None:
+                 snapshots: SnapshotControls, messages: MessageBoard | None = None) -> None:
         self.state = state
+        self.messages = messages
         self._css = list(css)
         self.widgets = self._make_widgets()
+        if messages is not None:
+            for name, _step in EDITABLE_STEPS:
+                self.widgets[name].on_refused = lambda text: messages.set("input", text)
+                self.widgets[name].on_accepted = lambda: messages.clear("input")
         self.eot = pn.pane.HTML(eot_html(state), css_classes=["eot"], stylesheets=self._css,
                                 margin=(0, 12))
         self.reset_button = pn.widgets.Button(label="Reset all settings to defaults",

@@ -112,7 +112,7 @@ class Explorer(pn.viewable.Viewer):
         self.snapshot_view = SnapshotView(self.jobs, self.pins, self.messages, css, self._post,
                                           self.apply_settings)
         self.snapshots = self.snapshot_view.controls
-        self.controls = Controls(self.state, css, self.snapshots)
+        self.controls = Controls(self.state, css, self.snapshots, self.messages)
         self.sidebar = self.controls.sidebar
         self.widgets = self.controls.widgets
         self._build_panes(css)

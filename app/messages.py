@@ -11,6 +11,7 @@ change (its label, from `app.state.label_of`), never an internal field name.
 from __future__ import annotations
 
 import html
+import math
 
 import param
 
@@ -46,6 +47,24 @@ def value_message(exc: Exception) -> str:
         return (f"**{label_of(field.strip())}**: {html_escape(rest.strip())}. The plots show the last "
                 "valid result.")
     return f"**Invalid setting**: {html_escape(text)}. The plots show the last valid result."
+
+
+def refused_value_message(label: str, value: float | None, low: float | None,
+                          high: float | None, kept: float | None) -> str:
+    """The message of a typed value that was refused: the control, the allowed range and
+    the value kept (the plots are not recomputed)."""
+    if value is None:
+        typed = "An empty entry"
+    elif not math.isfinite(value):
+        typed = "The entry is not a number and"
+    else:
+        typed = f"{value:g}"
+    allowed = ("any number" if low is None and high is None else
+               f"from {low:g} to {high:g}" if low is not None and high is not None else
+               f"at least {low:g}" if low is not None else f"at most {high:g}")
+    kept_text = "" if kept is None else f" The last valid value, {kept:g}, is kept."
+    return (f"**{html_escape(label)}**: {typed} is not allowed; allowed is {allowed}."
+            f"{kept_text}")
 
 
 def solver_message(exc: Exception, changed: str | None, what: str) -> str:
