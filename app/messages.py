@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import html
 import math
+from collections.abc import Sequence
 
 import param
 
@@ -73,6 +74,21 @@ def solver_message(exc: Exception, changed: str | None, what: str) -> str:
     return (f"**The solver did not converge for the {what}** after the change of "
             f"**{setting}**. Try a smaller step or another value. The plots show the "
             f"last converged result.\n\n<small>{html_escape(short_error(exc))}</small>")
+
+
+def validity_notes_html(warnings: Sequence[str]) -> str:
+    """The model's validity warnings for the present design and bias, as a calm note
+    ('' when none); a field named at the start of a warning is shown by its label."""
+    if not warnings:
+        return ""
+    items = []
+    for text in warnings:
+        field, sep, rest = text.partition(" = ")
+        if sep and " " not in field and label_of(field) != field:
+            text = f"{label_of(field)} = {rest}"
+        items.append(f"<li>{html_escape(text)}</li>")
+    return ('<div class="validity-notes"><b>Model validity notes</b> (results shown, read '
+            f'them with care):<ul>{"".join(items)}</ul></div>')
 
 
 def header_html(state: ExplorerState) -> str:

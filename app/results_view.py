@@ -16,10 +16,10 @@ import numpy as np
 import panel as pn
 
 from sub60.app.jobs import SessionJobs, SweepRequest
-from sub60.app.messages import MessageBoard, solver_message, value_message
+from sub60.app.messages import MessageBoard, solver_message, validity_notes_html, value_message
 from sub60.app.plots import ExplorerFigures, metrics_html
 from sub60.app.state import ExplorerState
-from sub60.physics import SolverError
+from sub60.physics import SolverError, check_tunnelling_material, semiconductors
 
 
 class ResultsView:
@@ -46,6 +46,10 @@ class ResultsView:
                                                margin=(6, 8, 0, 8))
         self.status = pn.pane.HTML("Starting…", css_classes=["sweep-status"], stylesheets=css,
                                    width=260, margin=(0, 8))
+        # the model's validity warnings of the band diagram shown (design and bias); the
+        # material's own warning has its pane in the page, so it is not repeated here
+        self.notes = pn.pane.HTML("", visible=False, css_classes=["validity-notes"],
+                                  stylesheets=css, sizing_mode="stretch_width", margin=(2, 8))
         self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 2))
                            for k, fig in self.figures.figures.items()}
         p = self.plot_panes
@@ -79,6 +83,14 @@ class ResultsView:
     def bias_solved(self, bp: Any) -> None:
         self.figures.show_bias(bp)
         self.messages.clear("bias")
+        self.show_notes(getattr(bp, "warnings", ()))
+
+    def show_notes(self, warnings: Sequence[str]) -> None:
+        """Show the model's validity warnings (none: the note is hidden)."""
+        material = check_tunnelling_material(semiconductors()[self.state.material])
+        notes = [w for w in warnings if w != material]
+        self.notes.object = validity_notes_html(notes)
+        self.notes.visible = bool(notes)
 
     def bias_failed(self, exc: Exception) -> None:
         self.messages.set("bias", self._failure_message(exc, "band diagram"))
