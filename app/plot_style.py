@@ -1,7 +1,7 @@
 """The live page's plot style: its colour names (from `app.theme`), tools, figure and
 legend styling, and the display helpers that reshape physics output for the screen (a
-tunnel window outline, a uniform resampling of the 2D map, NaN for a log axis). They
-compute no physics.
+tunnel window outline, the drain-side window's energy range read off the band edges, a
+uniform resampling of the 2D map, NaN for a log axis). They compute no physics.
 """
 
 from __future__ import annotations
@@ -109,6 +109,38 @@ def window_outline(x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray,
         return [], []
     pts = left + right[::-1]
     return [float(p[0]) for p in pts], [float(p[1]) for p in pts]
+
+
+def drain_side_window(x_nm: np.ndarray, conduction_eV: np.ndarray, valence_eV: np.ndarray,
+                      channel: tuple[float, float], drain_start_nm: float, efs_eV: float,
+                      efd_eV: float) -> tuple[float, float] | None:
+    """Energy range of the drain-side (ambipolar) tunnel window [eV]; None when closed.
+
+    The mirror of the source-side window of `physics.transport.tunnel_window`: filled
+    channel valence states (fed by the source) face empty drain conduction states, inside
+    the Fermi window (band-to-band tunnelling at a reverse-biased junction, Sze & Ng,
+    *Physics of Semiconductor Devices*, 3rd ed., sec. 2.4; the same window bounds the
+    energies of `physics.transport.energy_grid`):
+
+    e_max = min(highest valence edge in the channel, the upper Fermi level);
+    e_min = max(lowest conduction edge in the drain, the lower Fermi level).
+
+    Parameters
+    ----------
+    x_nm : positions along transport [nm].
+    conduction_eV, valence_eV : lowest conduction and highest valence subband edge [eV].
+    channel : first and last position of the gated channel [nm].
+    drain_start_nm : position of the drain junction [nm].
+    efs_eV, efd_eV : source and drain Fermi levels [eV].
+    """
+    x = np.asarray(x_nm, float)
+    ch = (x >= channel[0]) & (x <= channel[1])
+    drain = x >= drain_start_nm
+    if not ch.any() or not drain.any():
+        return None
+    e_max = min(float(np.max(np.asarray(valence_eV)[ch])), max(efs_eV, efd_eV))
+    e_min = max(float(np.min(np.asarray(conduction_eV)[drain])), min(efs_eV, efd_eV))
+    return (e_min, e_max) if e_max > e_min else None
 
 
 def _crossing(x0: float, x1: float, y0: float, y1: float, level: float) -> float:

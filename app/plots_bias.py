@@ -30,6 +30,7 @@ from sub60.app.plot_style import (
     COLOURS,
     T_FLOOR,
     TOOLS,
+    drain_side_window,
     positive_or_nan,
     rows_between,
     uniform_map,
@@ -65,13 +66,13 @@ class BandPlot:
             f.add_layout(lab)
             self.region_labels[key] = lab
         self.window_source = ColumnDataSource(
-            {"xs": [[]], "ys": [[]], "e_min": [np.nan], "e_max": [np.nan], "width_meV": [np.nan]},
-            name="window_source")
+            {"xs": [[]], "ys": [[]], "e_min": [np.nan], "e_max": [np.nan], "width_meV": [np.nan],
+             "side": [""]}, name="window_source")
         win = f.patches("xs", "ys", source=self.window_source, fill_color=COLOURS["window"],
                         fill_alpha=0.45, line_color=COLOURS["window_line"], line_width=1,
-                        legend_label="tunnel window")
+                        legend_label="tunnel windows")
         f.add_tools(HoverTool(renderers=[win], tooltips=[
-            ("tunnel window", "@e_min{0.000} to @e_max{0.000} eV"),
+            ("tunnel window", "@side"), ("energies", "@e_min{0.000} to @e_max{0.000} eV"),
             ("width", "@width_meV{0} meV")]))
         self.window_closed = Label(x=0, y=0, text="", text_font_size="11px",
                                    text_color=COLOURS["window_text"], text_align="center",
@@ -167,16 +168,7 @@ class BandPlot:
             "label": ["source Fermi level", "drain Fermi level"]}
         self.fermi_labels["efs"].update(x=float(x[0]) + 0.5, y=bp.efs_eV)
         self.fermi_labels["efd"].update(x=d.drain_junction_nm + 0.5, y=bp.efd_eV)
-        xs, ys = window_outline(x, data["ec_eV"], data["ev_eV"], bp.window_eV)
-        if bp.window_eV is not None and xs:
-            lo, hi = bp.window_eV
-            self.window_source.data = {"xs": [xs], "ys": [ys], "e_min": [lo], "e_max": [hi],
-                                       "width_meV": [1e3 * (hi - lo)]}
-            self.window_closed.text = ""
-        else:
-            self.window_source.data = {"xs": [], "ys": [], "e_min": [], "e_max": [],
-                                       "width_meV": []}
-            self.window_closed.text = "tunnel window closed"
+        self.show_windows(bp, data["ec_eV"], data["ev_eV"])
         lo = min(float(np.nanmin(data["ev_eV"])), bp.efs_eV, bp.efd_eV)
         hi = max(float(np.nanmax(data["ec_eV"])), bp.efs_eV, bp.efd_eV)
         pad = 0.06 * (hi - lo) + 0.02
@@ -185,6 +177,35 @@ class BandPlot:
             lab.y = hi + 2.5 * pad
         self.window_closed.update(x=self.region_labels["gate"].x, y=hi + 2.5 * pad)
         return hi + 2.5 * pad
+
+
+    def show_windows(self, bp, ec_eV: np.ndarray, ev_eV: np.ndarray) -> None:
+        """The source-side tunnel window (the physics' own) and the drain-side (ambipolar)
+        one, each drawn where it is open; the label says which are closed."""
+        d = bp.design
+        x = np.asarray(bp.x_nm, float)
+        drain = drain_side_window(x, ec_eV, ev_eV, (d.gate_start_nm, d.gate_end_nm),
+                                  d.drain_junction_nm, bp.efs_eV, bp.efd_eV)
+        cols: dict[str, list] = {k: [] for k in ("xs", "ys", "e_min", "e_max", "width_meV",
+                                                 "side")}
+        shown = {}
+        for side, window, mask in (("source side", bp.window_eV, x <= d.gate_end_nm),
+                                   ("drain side (ambipolar)", drain, x >= d.gate_start_nm)):
+            # each outline is traced over its own junction (source + channel, channel + drain)
+            xs, ys = window_outline(x[mask], ec_eV[mask], ev_eV[mask], window)
+            shown[side] = bool(window is not None and xs)
+            if shown[side]:
+                lo, hi = window
+                for k, v in (("xs", xs), ("ys", ys), ("e_min", lo), ("e_max", hi),
+                             ("width_meV", 1e3 * (hi - lo)), ("side", side)):
+                    cols[k].append(v)
+        self.window_source.data = cols
+        if not any(shown.values()):
+            self.window_closed.text = "tunnel windows closed"
+        elif not shown["source side"]:
+            self.window_closed.text = "source-side window closed · drain-side window open"
+        else:
+            self.window_closed.text = ""
 
 
 class SpectrumPlots:
