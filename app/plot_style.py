@@ -58,16 +58,32 @@ def style_figure(fig) -> None:
     fig.ygrid.grid_line_color = COLOURS["grid"]
 
 
-def style_legend(fig, location: str = "top_right") -> None:
-    """Place and style a figure's first legend (click to hide a curve)."""
+def style_legend(fig, location: str = "top_right", side: str | None = None,
+                 columns: int = 3) -> None:
+    """Place and style a figure's first legend (click to hide a curve).
+
+    With ``side`` ('above', 'below', 'left', 'right') the legend leaves the plot area for
+    that side panel (in ``columns`` columns above or below), so it never covers a curve;
+    otherwise it sits inside at ``location``.
+    """
     if not fig.legend:
         return
     leg = fig.legend[0]
-    leg.location = location
+    if side is not None:
+        fig.center = [m for m in fig.center if m is not leg]
+        leg.location = "top_left" if side in ("above", "below") else "top_center"
+        if side in ("above", "below"):
+            leg.orientation = "horizontal"
+            leg.ncols = columns
+            leg.spacing = 8
+        fig.add_layout(leg, side)
+    else:
+        leg.location = location
     leg.click_policy = "hide"
     leg.background_fill_alpha = 0.75
     leg.label_text_font_size = "11px"
-    leg.spacing = 0
+    if side is None:
+        leg.spacing = 0
     leg.padding = 4
     leg.margin = 4
     leg.glyph_width = 18

@@ -126,10 +126,13 @@ class ExplorerFigures:
             for r in fig.renderers:
                 if hasattr(r, "glyph") and hasattr(r.glyph, "line_width"):
                     self._base_widths[r.glyph] = r.glyph.line_width
-        style_legend(self.band, "bottom_left")
-        style_legend(self.transfer, "bottom_right")
-        style_legend(self.swing, "top_left")
-        style_legend(self.output, "top_left")
+        # legends below the plot areas, out of the data's way (inside they covered the
+        # valence band, the tunnel FET's current minimum, the Ioff crossing and the top
+        # output curve); below, the band frame stays level with the J(E) and T(E) frames
+        style_legend(self.band, side="below", columns=3)
+        style_legend(self.transfer, side="below", columns=3)
+        style_legend(self.swing, side="below", columns=2)
+        style_legend(self.output, side="below", columns=4)
         self.set_presentation(False)
 
     def _new_line(self, glyph: object, width: float) -> None:
