@@ -36,6 +36,11 @@ COLOURS: dict[str, str] = {
     "frame": PALETTE["frame"],
 }
 TOOLS = "pan,box_zoom,wheel_zoom,reset,save"
+#: Lowest drain current the current axes reach [uA/um]: two decades below the lowest Ioff
+#: target offered (1e-8 uA/um); currents below it (down to 1e-55 in deep off states) are
+#: far below any measurable leakage and would squeeze the curves (engineering choice,
+#: no source).
+ID_FLOOR_UA_PER_UM = 1e-10
 T_FLOOR = 1e-30  # transmissions below this are drawn as gaps on the log axis [-]
 
 

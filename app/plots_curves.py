@@ -14,7 +14,7 @@ from bokeh.core.properties import value
 from bokeh.models import ColumnDataSource, HoverTool, Label, Legend, LegendItem, Range1d, Span
 from bokeh.plotting import figure
 
-from sub60.app.plot_style import COLOURS, TOOLS, positive_or_nan
+from sub60.app.plot_style import COLOURS, ID_FLOOR_UA_PER_UM, TOOLS, positive_or_nan
 from sub60.app.theme import OUTPUT_COLOURS, PIN_COLOURS
 
 N_OUTPUT_SLOTS = len(OUTPUT_COLOURS)
@@ -82,6 +82,15 @@ class TransferPlot:
         self.transfer_sources[key].data = {
             "vg": vg, "id": ids, "btbt": nan if btbt is None else np.asarray(btbt, float),
             "therm": nan if therm is None else np.asarray(therm, float), "ss": ss}
+        self._floor_axis()
+
+    def _floor_axis(self) -> None:
+        """The current axis starts at the lowest drawn current, not below
+        `ID_FLOOR_UA_PER_UM` (its end follows the data)."""
+        lows = [np.nanmin(v) for src in self.transfer_sources.values()
+                if (v := np.asarray(src.data["id"], float)).size and np.isfinite(v).any()]
+        low = max(min(lows), ID_FLOOR_UA_PER_UM) if lows else ID_FLOOR_UA_PER_UM
+        self.figure.y_range.start = low / 2
 
     def show_marker(self, vg_V: float, current_uA_per_um: float) -> None:
         """The present bias on the curve (no marker for a current that is not positive)."""
@@ -141,8 +150,16 @@ class SwingPlot:
         self.figure = f
 
     def show(self, key: str, vg: np.ndarray, ids: np.ndarray, ss: np.ndarray) -> None:
-        """One device's points with a finite current and a positive swing."""
-        ok = np.isfinite(ids) & np.isfinite(ss) & (ss > 0)
+        """One device's rising branch: the points above its current minimum (the swing
+        diverges at the minimum and is negative on the ambipolar side), with a current
+        above `ID_FLOOR_UA_PER_UM`; a swing beyond the axis is a gap in the line, not a
+        vertical spike."""
+        ids = np.asarray(ids, float)
+        ss = np.asarray(ss, float)
+        ok = np.isfinite(ids) & np.isfinite(ss) & (ss > 0) & (ids >= ID_FLOOR_UA_PER_UM)
+        if np.isfinite(ids).any():
+            ok &= np.arange(ids.size) > int(np.nanargmin(ids))
+        ss = np.where(ss <= self.figure.y_range.end, ss, np.nan)
         self.swing_sources[key].data = {"id": ids[ok], "ss": ss[ok], "vg": vg[ok]}
 
     def show_limits(self, limit_mV_per_dec: float, text: str, ioff_uA_per_um: float) -> None:

@@ -65,8 +65,10 @@ class ResultsView:
         curves = self.jobs.curves if self.jobs is not None else {}
         first = ("Tunnel FET (p+ source)" if self.state.source_type == "p"
                  else "MOSFET (n+ source)")
-        rows = [("tfet", first, getattr(curves.get("tfet"), "metrics", None)),
-                ("twin", "MOSFET twin (n+ source)", getattr(curves.get("twin"), "metrics", None))]
+        rows = [("tfet", first, getattr(curves.get("tfet"), "metrics", None))]
+        if self.state.source_type == "p":  # an n+ source design is its own twin: one row
+            rows.append(("twin", "MOSFET twin (n+ source)",
+                         getattr(curves.get("twin"), "metrics", None)))
         body = metrics_html(rows, self.state.temperature_K, self.state.vdd_V)
         self.metrics.object = f'<div class="{"stale" if stale else "fresh"}">{body}</div>'
 
