@@ -190,7 +190,10 @@ class OutputPlot:
                 ("Vg", "@vg{0.00} V"), ("Vd", "@vd{0.000} V"), ("Id", "@id{0.000e+0} µA/µm")]))
             self.output_sources.append(src)
             self.output_items.append(LegendItem(label=value(" "), renderers=[r], visible=False))
-        f.add_layout(Legend(items=self.output_items))
+        # hidden while it has no visible entry (a column layout of no entries fails in
+        # the browser: "Out of bounds")
+        self.legend = Legend(items=self.output_items, visible=False, name="output_legend")
+        f.add_layout(self.legend)
         self.vd_span = Span(location=0.3, dimension="height", line_color=COLOURS["marker"],
                             line_alpha=0.35, line_width=1)
         f.add_layout(self.vd_span)
@@ -210,6 +213,7 @@ class OutputPlot:
             else:
                 self.output_sources[k].data = {"vd": [], "id": [], "vg": []}
                 self.output_items[k].visible = False
+        self.legend.visible = bool(curves)
 
 
 class PinOverlays:

@@ -48,7 +48,9 @@ class ResultsView:
                                    width=260, margin=(0, 8))
         # the model's validity warnings of the band diagram shown (design and bias); the
         # material's own warning has its pane in the page, so it is not repeated here
-        self.notes = pn.pane.HTML("", visible=False, css_classes=["validity-notes"],
+        # (always visible, empty when there is nothing to say: toggling its visibility
+        # made the browser report "Out of bounds" on a design change)
+        self.notes = pn.pane.HTML("", css_classes=["validity-notes"],
                                   stylesheets=css, sizing_mode="stretch_width", margin=(2, 8))
         self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 2))
                            for k, fig in self.figures.figures.items()}
@@ -92,7 +94,6 @@ class ResultsView:
         material = check_tunnelling_material(semiconductors()[self.state.material])
         notes = [w for w in warnings if w != material]
         self.notes.object = validity_notes_html(notes)
-        self.notes.visible = bool(notes)
 
     def bias_failed(self, exc: Exception) -> None:
         self.messages.set("bias", self._failure_message(exc, "band diagram"))
