@@ -124,6 +124,17 @@ def warn_design(design) -> list[str]:
 MAX_DESIGN_FILE_BYTES = 1024 * 1024
 
 
+def read_bounded(path: str, limit_bytes: int) -> bytes | None:
+    """A file's bytes, reading at most ``limit_bytes + 1`` (so /dev/zero ends at once);
+    None when the file is larger than the limit; UsageError when it cannot be read."""
+    try:
+        with open(path, "rb") as fh:
+            data = fh.read(limit_bytes + 1)
+    except OSError as exc:
+        raise UsageError(f"{ascii(path)}: cannot read ({exc.strerror})") from None
+    return None if len(data) > limit_bytes else data
+
+
 def load_design(path: str | None, overrides: list[str]):
     """Design from a JSON file (or the default) with name=value overrides; the file is
     read by the shared JSON rules (`app.number_rules.parse_json`) and at most
@@ -132,11 +143,10 @@ def load_design(path: str | None, overrides: list[str]):
     data: Any = {}
     if path:
         try:
-            with open(path, "rb") as fh:
-                raw = fh.read(MAX_DESIGN_FILE_BYTES + 1)  # never more than the limit
-        except OSError as exc:
-            raise UsageError(f"--design: cannot read {ascii(path)} ({exc.strerror})") from None
-        if len(raw) > MAX_DESIGN_FILE_BYTES:
+            raw = read_bounded(path, MAX_DESIGN_FILE_BYTES)
+        except UsageError as exc:
+            raise UsageError(f"--design: {exc}") from None
+        if raw is None:
             raise UsageError(f"--design: {ascii(path)} is larger than the limit of "
                              f"{MAX_DESIGN_FILE_BYTES // 1024} kB for a design file")
         try:

@@ -23,6 +23,7 @@ from sub60.app.cli_common import (
     ioff_option,
     load_design,
     parse_sweep,
+    read_bounded,
     solve,
     vdd_option,
 )
@@ -60,12 +61,8 @@ def _read(path: str) -> bytes:
     from sub60.app.snapshot_fields import SnapshotError
     from sub60.app.snapshot_reader import MAX_SNAPSHOT_BYTES
 
-    try:
-        with open(path, "rb") as fh:
-            data = fh.read(MAX_SNAPSHOT_BYTES + 1)  # never more than the limit
-    except OSError as exc:
-        raise UsageError(f"{path}: cannot read ({exc.strerror})") from None
-    if len(data) > MAX_SNAPSHOT_BYTES:
+    data = read_bounded(path, MAX_SNAPSHOT_BYTES)
+    if data is None:
         raise SnapshotError(f"snapshot: larger than the limit {MAX_SNAPSHOT_BYTES // 2**20} MB")
     return data
 

@@ -24,7 +24,6 @@ be encoded as UTF-8 (The Unicode Standard, section 3.9, D76 and D92; RFC 8259 se
 
 from __future__ import annotations
 
-import copy
 import io
 import json
 import random
@@ -38,22 +37,18 @@ from sub60.app.snapshot_fields import SnapshotError
 from sub60.app.snapshot_reader import import_snapshot
 from sub60.app.snapshot_schema import PinnedDesign, SnapshotSettings
 from sub60.physics.design import Design
-from sub60.physics.metrics import Metrics
+
+from .test_snapshot_hostile import valid_doc
 
 N_CASES = 5000
 N_CASES_LONG = 50000
 
 
 def settings_doc() -> dict:
-    """A complete settings.json with stored results (well-formed values; never solved)."""
-    s = SnapshotSettings(pinned=(PinnedDesign("thin oxide", Design(oxide_thickness_nm=1.5)),),
-                         title="fuzz base", note="two lines\nof note")
-    doc = s.to_dict()
-    doc["sub60_version"] = "0.1.0"
-    doc["created_utc"] = "2024-05-01T12:00:00Z"
-    rec = {"metrics": {name: 1.0 for name in Metrics.METRIC_NAMES}, "reasons": {}}
-    doc["stored"] = {"design": rec, "twin": copy.deepcopy(rec), "pinned": [copy.deepcopy(rec)],
-                     "bias": {"current_uA_per_um": 1.0, "window_eV": [-0.2, 0.0]}}
+    """A complete settings.json with stored results, titled (the hostile-file tests' own
+    well-formed document, never solved)."""
+    doc = valid_doc()
+    doc["title"], doc["note"] = "fuzz base", "two lines\nof note"
     return doc
 
 
