@@ -216,6 +216,13 @@ def parse_json(raw: bytes, what: str, max_depth: int = MAX_JSON_DEPTH) -> Any:
     return doc
 
 
+def check_document(doc: Any, what: str, max_depth: int = MAX_JSON_DEPTH) -> Any:
+    """A document parsed elsewhere (e.g. TOML) held to the same rules as `parse_json`'s:
+    no lone surrogates, nesting at most ``max_depth`` levels; returns it, or InputError."""
+    _check_tree(doc, what, max_depth)
+    return doc
+
+
 def _check_tree(doc: Any, what: str, max_depth: int) -> None:
     """Depth and text of a parsed document, walked without recursion."""
     stack: list[tuple[Any, int]] = [(doc, 0)]

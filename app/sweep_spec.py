@@ -51,7 +51,6 @@ UI-free: this module imports no Panel/Bokeh and calls only the physics public AP
 
 from __future__ import annotations
 
-import json
 import math
 import numbers
 import tomllib
@@ -62,6 +61,7 @@ from typing import Any
 
 import numpy as np
 
+from sub60.app.number_rules import InputError, check_document, parse_json
 from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_V, Design
 
 #: Knobs per sweep.
@@ -99,8 +99,13 @@ def _number(value: Any, where: str, low: float | None = None, high: float | None
     if isinstance(value, (bool, np.bool_)) or not isinstance(value, (numbers.Real, np.integer)):
         raise SpecError(f"{where}: expected a number, got {value!r}"
                         + (f"; allowed [{low:g}, {high:g}]" if low is not None else ""))
-    value = float(value)
     rng = f"[{low:g}, {high:g}]" if low is not None else "a finite number"
+    try:
+        value = float(value)
+    except OverflowError:  # an integer too large for a float
+        digits = int(int(value).bit_length() * math.log10(2)) + 1
+        raise SpecError(f"{where}: an integer of about {digits} digits is not a finite "
+                        f"number; allowed {rng}") from None
     if not math.isfinite(value):
         raise SpecError(f"{where}: {value} is not a finite number; allowed {rng}")
     if low is not None and not low <= value <= high:
@@ -474,9 +479,12 @@ def spec_from_text(text: str, fmt: str = "toml", allow_large: bool = False,
                    name: str = "spec") -> SweepSpec:
     """Parse and validate a sweep spec given as TOML or JSON text."""
     try:
-        data = json.loads(text) if fmt == "json" else tomllib.loads(text)
-    except json.JSONDecodeError as exc:
-        raise SpecError(f"{name}: not valid JSON ({exc.msg} at line {exc.lineno})") from None
+        if fmt == "json":  # the strict JSON rules of every other door (app.number_rules)
+            data = parse_json(text.encode("utf-8", "surrogatepass"), name)
+        else:
+            data = check_document(tomllib.loads(text.removeprefix("\ufeff")), name)
+    except InputError as exc:
+        raise SpecError(str(exc)) from None
     except tomllib.TOMLDecodeError as exc:
         raise SpecError(f"{name}: not valid TOML ({exc})") from None
     return spec_from_dict(data, allow_large)

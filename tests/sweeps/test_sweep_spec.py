@@ -165,3 +165,21 @@ def test_the_readme_example_is_a_valid_spec() -> None:
     spec = spec_from_text(toml)
     assert spec.size() == 24 and len(spec.designs()) == 24
     assert spec.knob_fields == ("body_thickness_nm", "source_doping_cm3", "oxide")
+
+
+# ---------------------------------------------------------------------- the shared number rules
+# The sweep file is one more door: the same rules as --design and snapshots
+# (app.number_rules; the project's own input rules, no source).
+@pytest.mark.parametrize("text, fmt, needle", [
+    ('{"knob": [], "knob": []}', "json", "appears twice"),
+    ('{"fixed": {"body_thickness_nm": NaN}}', "json", "NaN"),
+    ('{"fixed": {"title": "\\udcff"}}', "json", "surrogate"),
+    ('[[knob]]\nfield = "gate_length_nm"\nvalues = [20.0]\n[fixed]\nbody_thickness_nm = '
+     + "9" * 400 + "\n", "toml", "401 digits"),
+    ('[[knob]]\nfield = "gate_length_nm"\nlow = 20.0\nhigh = ' + "9" * 400 + "\nsteps = 2\n",
+     "toml", "about 401 digits"),
+    ('[fixed]\nnote = "\\udcff"\n', "toml", "not valid TOML"),
+])
+def test_sweep_file_follows_the_shared_number_rules(text, fmt, needle):
+    with pytest.raises(SpecError, match=needle):
+        spec_from_text(text, fmt)
