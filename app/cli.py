@@ -4,6 +4,10 @@
     sub60 bands    [--design FILE.json] [--set name=value ...] --vg V --vd V [--format json|csv]
     sub60 transfer [--design FILE.json] [--set ...] --vg START:STOP:N --vd V [--twin]
     sub60 output   [--design FILE.json] [--set ...] --vg V --vd START:STOP:N
+    sub60 snapshot export|check|render ...      sub60 sweep SPEC --out DIR ...
+
+``bands``, ``transfer`` and ``output`` take ``--model`` (a tunnelling model of
+`sub60.physics.TUNNELLING_MODELS`; default two-band WKB).
 
 With ``--format csv`` the curves are written by the one table writer of sub60
 (`app.tables`), with the column names of the snapshot files: ``bands`` gives ``x_nm``, one
@@ -75,11 +79,16 @@ def bands_record(bp) -> dict:
             "current_uA_per_um": bp.current_uA_per_um}
 
 
-def cmd_bands(a) -> str:
-    from sub60.physics import solve_bias
+def _simulator(a):
+    """The simulator of the chosen tunnelling model (`--model`)."""
+    from sub60.physics import Simulator
 
+    return Simulator(model=a.model)
+
+
+def cmd_bands(a) -> str:
     d = load_design(a.design, a.set)
-    bp = solve(solve_bias, d, single_voltage(parse_sweep(a.vg, "vg"), "vg"),
+    bp = solve(_simulator(a).solve_bias, d, single_voltage(parse_sweep(a.vg, "vg"), "vg"),
                 single_voltage(parse_sweep(a.vd, "vd"), "vd"))
     rec = {"design": d.to_dict(), **bands_record(bp), "warnings": warn_design(d)}
     if a.format == "csv":
@@ -93,8 +102,7 @@ def cmd_bands(a) -> str:
 
 
 def cmd_transfer(a) -> str:
-    from sub60.physics import transfer_curve
-
+    transfer_curve = _simulator(a).transfer_curve
     d = load_design(a.design, a.set)
     vg = parse_sweep(a.vg, "vg")
     vd = single_voltage(parse_sweep(a.vd, "vd"), "vd")
@@ -111,8 +119,7 @@ def cmd_transfer(a) -> str:
 
 
 def cmd_output(a) -> str:
-    from sub60.physics import output_curve
-
+    output_curve = _simulator(a).output_curve
     d = load_design(a.design, a.set)
     vgs = parse_sweep(a.vg, "vg")
     vd = parse_sweep(a.vd, "vd")
@@ -146,6 +153,8 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--host", default="127.0.0.1", help="address to listen on (default loopback)")
     s.add_argument("--show", action="store_true", help="open the browser")
 
+    from sub60.physics import TUNNELLING_MODELS
+
     def common(sp, vg_default: str | None, vd_default: str | None):
         sp.add_argument("--design", help="design JSON file (the Design record)")
         sp.add_argument("--set", action="append", default=[], metavar="NAME=VALUE",
@@ -155,6 +164,10 @@ def build_parser() -> argparse.ArgumentParser:
         sp.add_argument("--vd", default=vd_default, required=vd_default is None,
                         help="drain voltage V or sweep START:STOP:N [V]")
         sp.add_argument("--format", choices=("json", "csv"), default="json")
+        sp.add_argument("--model", choices=TUNNELLING_MODELS, default=TUNNELLING_MODELS[0],
+                        help="band-to-band transmission: WKB with the two-band or one-band "
+                             "imaginary wave-vector, or the exact two-band transfer matrices "
+                             f"(default {TUNNELLING_MODELS[0]})")
 
     common(sub.add_parser("bands", help="band diagram at one bias"), "0.3", "0.3")
     t = sub.add_parser("transfer", help="transfer curve Id-Vg with figures of merit")

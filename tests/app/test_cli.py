@@ -163,6 +163,19 @@ def test_transfer_twin_json(capsys):
         # the Python interface's value (checked above)
 
 
+@pytest.mark.parametrize("model", ["one-band", "two-band-exact"])
+def test_transfer_model_option_matches_the_simulator_of_that_model(capsys, model):
+    """`--model` selects the transmission: the CLI's curve is the Python interface's
+    `Simulator(model=...)` curve (an identity of the two doors, no source), and it
+    differs from the default two-band WKB curve."""
+    rec = json_of(capsys, "transfer", "--vg", SWEEP, "--vd", "0.3", "--model", model)
+    vg = np.linspace(0.0, 0.2, 5)
+    tc = Simulator(model=model).transfer_curve(Design(), vg, 0.3)
+    np.testing.assert_allclose(rec["id_uA_per_um"], tc.id_uA_per_um, rtol=1e-5)
+    default = Simulator().transfer_curve(Design(), vg, 0.3)
+    assert not np.allclose(rec["id_uA_per_um"], default.id_uA_per_um, rtol=1e-3)
+
+
 def test_transfer_csv_with_twin(capsys):
     rec = json_of(capsys, "transfer", "--vg", SWEEP, "--vd", "0.3", "--twin")
     code, out, err = run(capsys, "transfer", "--vg", SWEEP, "--vd", "0.3", "--twin",
