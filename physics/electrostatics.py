@@ -50,16 +50,6 @@ class Electrostatics:
     frame: DeviceFrame
 
     @property
-    def ec_eV(self) -> np.ndarray:
-        """Older name of `bulk_ec_eV` (the bulk edge, not a subband) [eV]."""
-        return self.bulk_ec_eV
-
-    @property
-    def ev_eV(self) -> np.ndarray:
-        """Older name of `bulk_ev_eV` (the bulk edge, not a subband) [eV]."""
-        return self.bulk_ev_eV
-
-    @property
     def nbytes(self) -> int:
         """Bytes of this solution's own arrays (the shared `frame` not counted) [B]."""
         return array_bytes(self.psi_V, self.n_cm3, self.p_cm3, self.bulk_ec_eV,

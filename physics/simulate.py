@@ -124,16 +124,6 @@ class BiasPoint:
         return self.valence_eV.max(axis=0)
 
     @property
-    def ec_eV(self) -> np.ndarray:
-        """Older name of `subband_ec_eV` (lowest conduction subband, not the bulk edge)."""
-        return self.subband_ec_eV
-
-    @property
-    def ev_eV(self) -> np.ndarray:
-        """Older name of `subband_ev_eV` (highest valence subband, not the bulk edge)."""
-        return self.subband_ev_eV
-
-    @property
     def current_uA_per_um(self) -> float:
         """Total drain current per width: band-to-band plus thermionic [uA/um]."""
         return self.btbt_uA_per_um + self.electron_thermionic_uA_per_um \

@@ -75,8 +75,8 @@ def assert_matches_bias_point(rec: dict, bp) -> None:
     """A bands record against an independently solved bias point: same grid, edges to
     1 ueV, current to 1e-5 (Newton tolerance of two solves from different starts)."""
     np.testing.assert_array_equal(rec["x_nm"], bp.x_nm)
-    np.testing.assert_allclose(rec["ec_eV"], bp.ec_eV, rtol=0, atol=1e-6)
-    np.testing.assert_allclose(rec["ev_eV"], bp.ev_eV, rtol=0, atol=1e-6)
+    np.testing.assert_allclose(rec["ec_eV"], bp.subband_ec_eV, rtol=0, atol=1e-6)
+    np.testing.assert_allclose(rec["ev_eV"], bp.subband_ev_eV, rtol=0, atol=1e-6)
     assert rec["efs_eV"] == bp.efs_eV and rec["efd_eV"] == bp.efd_eV
     if bp.window_eV is None:
         assert rec["window"] is None

@@ -94,12 +94,12 @@ def test_eight_sessions_keep_their_own_settings_and_results(browser, app_url, re
                 bp = Simulator().solve_bias(design, vg, vd)
                 page.wait_for_function(
                     "(ref) => Math.abs(sub60.data('band_source').ec_eV[ref.i] - ref.v) < 1e-5",
-                    arg={"i": int(bp.x_nm.size // 2), "v": float(bp.ec_eV[bp.x_nm.size // 2])},
+                    arg={"i": int(bp.x_nm.size // 2), "v": float(bp.subband_ec_eV[bp.x_nm.size // 2])},
                     timeout=120_000)
                 band = page.evaluate("() => sub60.data('band_source')")
-                np.testing.assert_allclose(np.asarray(band["ec_eV"], float), bp.ec_eV,
+                np.testing.assert_allclose(np.asarray(band["ec_eV"], float), bp.subband_ec_eV,
                                            rtol=0, atol=E_TOL_EV, err_msg=f"{field}={value}")
-                np.testing.assert_allclose(np.asarray(band["ev_eV"], float), bp.ev_eV,
+                np.testing.assert_allclose(np.asarray(band["ev_eV"], float), bp.subband_ev_eV,
                                            rtol=0, atol=E_TOL_EV, err_msg=f"{field}={value}")
         with urllib.request.urlopen(app_url, timeout=30) as resp:  # the server is still up
             assert resp.status == 200

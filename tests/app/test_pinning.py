@@ -147,8 +147,8 @@ def test_pinned_design_rows_and_overlays_equal_physics():
     band = e.figures.pin_band_sources[0].data
     np.testing.assert_allclose(band["x_nm"], bp.x_nm)
     # 1e-6 eV: the Newton tolerance is 1e-8 V; warm starts differ from a fresh solve
-    np.testing.assert_allclose(band["ec_eV"], bp.ec_eV, rtol=0, atol=1e-6)
-    np.testing.assert_allclose(band["ev_eV"], bp.ev_eV, rtol=0, atol=1e-6)
+    np.testing.assert_allclose(band["ec_eV"], bp.subband_ec_eV, rtol=0, atol=1e-6)
+    np.testing.assert_allclose(band["ev_eV"], bp.subband_ev_eV, rtol=0, atol=1e-6)
     tc = Simulator().transfer_curve(Design(), SWEEP.gate_voltages(), 0.3)
     np.testing.assert_allclose(e.figures.pin_transfer_sources[0].data["id"],
                                tc.id_uA_per_um, rtol=1e-5)

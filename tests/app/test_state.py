@@ -134,8 +134,8 @@ def test_band_plot_holds_the_physics_bias_point():
     data = e.figures.band_source.data
     np.testing.assert_array_equal(data["x_nm"], bp.x_nm)
     # 1e-6 eV: the Newton tolerance is 1e-8 V; warm starts differ from a fresh solve
-    np.testing.assert_allclose(data["ec_eV"], bp.ec_eV, rtol=0, atol=1e-6)
-    np.testing.assert_allclose(data["ev_eV"], bp.ev_eV, rtol=0, atol=1e-6)
+    np.testing.assert_allclose(data["ec_eV"], bp.subband_ec_eV, rtol=0, atol=1e-6)
+    np.testing.assert_allclose(data["ev_eV"], bp.subband_ev_eV, rtol=0, atol=1e-6)
     for label, edge in zip(bp.conduction_labels, bp.conduction_eV, strict=True):
         np.testing.assert_allclose(data[label], edge, rtol=0, atol=1e-6)
     spec = e.figures.spectrum_source.data
