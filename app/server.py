@@ -246,6 +246,54 @@ def guard(tornado_app, hosts: Iterable[str]) -> None:
     tornado_app.transforms.insert(0, headers)
 
 
+#: Delay between a session's end and the release of freed heap memory to the system [s]:
+#: long enough for Bokeh to drop the session's document (common practice, no source).
+HEAP_RELEASE_DELAY_S = 2.0
+
+
+def release_freed_memory() -> bool:
+    """Collect unreachable Python objects, then hand the C heap's free pages back to the
+    system (glibc ``malloc_trim(0)``, which walks every malloc arena). Without it the
+    memory of ended sessions stays in the server's arenas: free for reuse, but still
+    counted in its resident size. Returns False where glibc is absent (nothing trimmed)."""
+    import ctypes
+    import ctypes.util
+    import gc
+
+    gc.collect()
+    name = ctypes.util.find_library("c")
+    if not name or not sys.platform.startswith("linux"):
+        return False
+    try:
+        libc = ctypes.CDLL(name)
+        trim = libc.malloc_trim
+    except (OSError, AttributeError):  # not glibc (e.g. musl has no malloc_trim)
+        return False
+    trim.argtypes = [ctypes.c_size_t]
+    trim.restype = ctypes.c_int
+    trim(0)
+    return True
+
+
+def _page_with_heap_release(create_app):
+    """``create_app`` wrapped so that, once a session has ended and its own clean-up
+    (`Explorer.close`) has run, the freed memory goes back to the system."""
+    import panel as pn
+
+    def page():
+        viewable = create_app()  # registers the session's own clean-up first
+
+        def ended(_context: Any) -> None:
+            from tornado.ioloop import IOLoop
+
+            IOLoop.current().call_later(HEAP_RELEASE_DELAY_S, release_freed_memory)
+
+        pn.state.on_session_destroyed(ended)
+        return viewable
+
+    return page
+
+
 def configure() -> None:
     """Panel settings of the explorer: local resources, our stylesheet, no extras."""
     import panel as pn
@@ -270,8 +318,9 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
 
     configure()
     server = pn.serve(
-        {"/": create_app}, port=port, address=host, show=show, start=threaded and start,
-        threaded=threaded, title=TITLE, websocket_origin=allowed_origins(host, port),
+        {"/": _page_with_heap_release(create_app)}, port=port, address=host, show=show,
+        start=threaded and start, threaded=threaded, title=TITLE,
+        websocket_origin=allowed_origins(host, port),
         verbose=False, admin=False,
         # Bokeh's names: other spellings are silently taken as tornado settings
         check_unused_sessions_milliseconds=min(CHECK_UNUSED_SESSIONS_MS,
