@@ -21,7 +21,13 @@ from typing import Any
 from sub60.app.number_rules import InputError, parse_json
 from sub60.app.snapshot_check import METRIC_REL_TOL, Difference, verify_snapshot
 from sub60.app.snapshot_fields import SnapshotError
-from sub60.app.snapshot_schema import SETTINGS_MEMBER, SnapshotSettings, sub60_version
+from sub60.app.snapshot_schema import (
+    SCHEMA_VERSION,
+    SETTINGS_MEMBER,
+    SnapshotSettings,
+    added_design_fields,
+    sub60_version,
+)
 from sub60.physics import Simulator
 
 #: Largest snapshot accepted (zip or bare settings.json) [bytes].
@@ -156,6 +162,8 @@ class ImportReport:
     file_version : sub60 version that wrote the file (None when not stated);
     current_version : this sub60; version_matches : the two are equal;
     has_stored : the file holds figures of merit to compare;
+    added_fields : design fields this sub60 has that the file's schema version predates
+    (read at their defaults: non-ideal physics off, materials as before);
     verified : a recomputation was made; differences : what it found (empty = match).
     """
 
@@ -164,6 +172,7 @@ class ImportReport:
     file_version: str | None
     current_version: str
     has_stored: bool
+    added_fields: tuple[str, ...] = ()
     verified: bool = False
     differences: list[Difference] = field(default_factory=list)
 
@@ -189,6 +198,10 @@ class ImportReport:
         else:
             out.append(f"written by sub60 {self.file_version}; this is {self.current_version}: "
                        "differences are reported, not treated as errors")
+        if self.added_fields:
+            out.append("an older snapshot layout: settings added since are at their defaults "
+                       "(non-ideal physics off, materials as before): "
+                       + ", ".join(self.added_fields))
         if not self.has_stored:
             out.append("no stored figures of merit to compare")
         elif not self.verified:
@@ -253,7 +266,8 @@ def import_snapshot(data: bytes, max_bytes: int = MAX_SNAPSHOT_BYTES, *,
     except SnapshotError as exc:
         raise SnapshotError(f"{SETTINGS_MEMBER}: {exc}") from None
     report = ImportReport(source, members, settings.sub60_version, sub60_version(),
-                          settings.stored is not None)
+                          settings.stored is not None,
+                          added_design_fields(settings.schema_version or SCHEMA_VERSION))
     if verify:
         report.differences = verify_snapshot(settings, simulator)
         report.verified = True

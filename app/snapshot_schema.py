@@ -1,6 +1,11 @@
 """The snapshot settings: one view's settings as frozen records, their JSON form and its
-strict validation (schema ``"sub60.snapshot"``, version 1; the file layout is described
+strict validation (schema ``"sub60.snapshot"``, version 2; the file layout is described
 in `app.snapshot`).
+
+Versions: 1 stored the design fields of sub60 0.2.0 (`DESIGN_FIELDS_V1`); 2 stores every
+field of `physics.design.Design`, including those added since (non-ideal physics,
+materials). A version-1 file still opens: the fields it predates take their defaults
+(off, or as before), and `added_design_fields` names them so the reader can say so.
 
 `SnapshotSettings.from_dict` reads a parsed settings.json strictly: unknown fields,
 missing fields, wrong types, non-finite numbers and out-of-range values raise
@@ -33,7 +38,14 @@ from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_
 
 # ---------------------------------------------------------------------- constants
 SCHEMA_NAME = "sub60.snapshot"
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
+#: The design fields a version-1 file holds (exactly these, every one required).
+DESIGN_FIELDS_V1: tuple[str, ...] = (
+    "material", "source_type", "source_doping_cm3", "channel_doping_cm3", "drain_doping_cm3",
+    "doping_gradient_nm_per_dec", "body_thickness_nm", "gate_length_nm", "source_length_nm",
+    "drain_length_nm", "oxide_thickness_nm", "oxide", "oxide_permittivity",
+    "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
+    "gate_source_offset_nm", "temperature_K")
 #: Version written when the installed package metadata cannot be read.
 FALLBACK_VERSION = "0.2.0+unknown"
 
@@ -170,6 +182,9 @@ class SnapshotSettings:
     sub60_version: str | None = None
     created_utc: str | None = None
     stored: StoredResults | None = None
+    #: Schema version of the file these settings were read from (None: made in code;
+    #: an export always writes `SCHEMA_VERSION`).
+    schema_version: int | None = None
 
     def __post_init__(self) -> None:
         # the same checks as an import, so settings made in code are valid too
@@ -245,9 +260,22 @@ def _settings_to_dict(s: SnapshotSettings) -> dict[str, Any]:
 _VERSION_TEXT = re.compile(r"[0-9A-Za-z][0-9A-Za-z.+_-]{0,63}")
 
 
-def _design(data: Any, path: str) -> Design:
-    names = tuple(FIELD_RANGES)
-    FieldReader(data, path, names, names)  # every field: a stored design must not lean on defaults
+def design_fields(schema_version: int) -> tuple[str, ...]:
+    """The design fields a file of ``schema_version`` holds (all of them required)."""
+    return DESIGN_FIELDS_V1 if schema_version == 1 else tuple(FIELD_RANGES)
+
+
+def added_design_fields(schema_version: int) -> tuple[str, ...]:
+    """Design fields this sub60 has that a file of ``schema_version`` predates (they
+    take their defaults when it is read)."""
+    held = set(design_fields(schema_version))
+    return tuple(f for f in FIELD_RANGES if f not in held)
+
+
+def _design(data: Any, path: str, schema_version: int = SCHEMA_VERSION) -> Design:
+    names = design_fields(schema_version)
+    # every field of its version: a stored design must not lean on defaults
+    FieldReader(data, path, names, names)
     try:
         return Design.from_dict(data)
     except ValueError as exc:
@@ -371,7 +399,8 @@ def _settings_from_dict(data: Any) -> SnapshotSettings:
         title = o.text("title", MAX_TITLE_CHARS)
     if o.has("note"):
         note = o.text("note", MAX_NOTE_CHARS, multiline=True)
-    design = _design(o.data["design"], "design")
+    schema_version = int(o.data["schema_version"])
+    design = _design(o.data["design"], "design", schema_version)
     b = FieldReader(o.data["bias"], "bias", ("vg_V", "vd_V"), ("vg_V", "vd_V"))
     try:
         vg, vd = check_bias(b.data["vg_V"], b.data["vd_V"])
@@ -409,12 +438,12 @@ def _settings_from_dict(data: Any) -> SnapshotSettings:
             if any(p.name == name for p in pinned):
                 raise SnapshotError(f"{po.at('name')}: {show_value(name)} names another pinned "
                                     "design too")
-            pinned.append(PinnedDesign(name, _design(po.data["design"], po.at("design")), ps))
+            pinned.append(PinnedDesign(name, _design(po.data["design"], po.at("design"), schema_version), ps))
     stored = _stored(o.data["stored"], "stored", len(pinned)) if o.has("stored") else None
     return _build(design=design, bias=BiasSettings(vg, vd), transfer_sweep=sweep,
                   output_sweep=output, metric_settings=metric_settings, model=model,
                   pinned=tuple(pinned), title=title, note=note, sub60_version=version,
-                  created_utc=created, stored=stored)
+                  created_utc=created, stored=stored, schema_version=schema_version)
 
 
 def parse_utc(text: str) -> _dt.datetime:
@@ -438,7 +467,8 @@ def _validated(s: SnapshotSettings) -> None:
         raise SnapshotError(f"settings: malformed ({exc})") from None
     clean = _settings_from_dict(doc)
     for f in dataclasses.fields(SnapshotSettings):  # normalised values (floats, names)
-        object.__setattr__(s, f.name, getattr(clean, f.name))
+        if f.name != "schema_version":  # where the settings came from stays as given
+            object.__setattr__(s, f.name, getattr(clean, f.name))
 
 
 def _build(**fields: Any) -> SnapshotSettings:

@@ -34,7 +34,7 @@ from sub60.app.snapshot_reader import (
     MAX_UNCOMPRESSED_BYTES,
     import_snapshot,
 )
-from sub60.app.snapshot_schema import PinnedDesign, SnapshotSettings
+from sub60.app.snapshot_schema import SCHEMA_VERSION, PinnedDesign, SnapshotSettings
 from sub60.physics.design import Design
 from sub60.physics.metrics import Metrics
 
@@ -173,8 +173,8 @@ CASES = [
     ("no-schema", lambda: mutated(delete_path(["schema"])), ["schema: missing", "not a sub60"]),
     ("other-schema", lambda: mutated(set_path(["schema"], "other.tool.state")),
      ['"other.tool.state"', "another schema"]),
-    ("future-version", lambda: mutated(set_path(["schema_version"], 2)),
-     ["schema_version: 2", "future schema version"]),
+    ("future-version", lambda: mutated(set_path(["schema_version"], SCHEMA_VERSION + 1)),
+     [f"schema_version: {SCHEMA_VERSION + 1}", "future schema version"]),
     ("version-as-text", lambda: mutated(set_path(["schema_version"], "1")),
      ["schema_version", "expected an integer"]),
     ("unknown-top-field", lambda: mutated(set_path(["colour_theme"], "dark")),

@@ -1,0 +1,87 @@
+"""Snapshot schema versions: files written by an earlier sub60 still open.
+
+Version 1 (sub60 0.2.0) stored exactly the 18 design fields of that release; version 2
+stores every field of the design record, including those added since (non-ideal
+physics, materials). The version-1 files used here are the presets shipped with 0.2.0
+(`assets/presets`, unchanged since; our own scenarios). Design rule of the format
+(common practice for versioned file formats, no source): an older file opens with the
+fields it predates at their defaults, and the reader says which they are.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+from importlib.resources import files
+
+import pytest
+
+from sub60.app.snapshot_fields import SnapshotError
+from sub60.app.snapshot_reader import import_snapshot
+from sub60.app.snapshot_schema import (
+    DESIGN_FIELDS_V1,
+    SCHEMA_VERSION,
+    SnapshotSettings,
+    added_design_fields,
+    design_fields,
+)
+from sub60.physics import FIELD_RANGES, Design
+
+PRESET = "low-power-switch.json"
+
+
+def _v1_document() -> dict:
+    doc = json.loads(files("sub60.assets").joinpath("presets", PRESET).read_text("utf-8"))
+    assert doc["schema_version"] == 1
+    assert sorted(doc["design"]) == sorted(DESIGN_FIELDS_V1)
+    return doc
+
+
+def test_version_1_file_opens_with_later_fields_at_their_defaults():
+    doc = _v1_document()
+    settings, report = import_snapshot(json.dumps(doc).encode())
+    assert settings.schema_version == 1
+    default = Design()
+    for name in added_design_fields(1):
+        assert getattr(settings.design, name) == getattr(default, name), name
+    for name in DESIGN_FIELDS_V1:
+        assert getattr(settings.design, name) == pytest.approx(doc["design"][name]) \
+            if isinstance(doc["design"][name], float) else getattr(settings.design, name) == \
+            doc["design"][name], name
+    assert report.added_fields == added_design_fields(1)
+    said = " ".join(report.lines())
+    assert ("settings added since are at their defaults" in said) == bool(report.added_fields)
+
+
+def test_export_writes_the_current_version_with_every_design_field():
+    settings, _ = import_snapshot(json.dumps(_v1_document()).encode())
+    out = settings.to_dict()
+    assert out["schema_version"] == SCHEMA_VERSION == 2
+    assert sorted(out["design"]) == sorted(FIELD_RANGES)
+    again = SnapshotSettings.from_dict(json.loads(json.dumps(out)))
+    assert again.design == settings.design
+    assert again.schema_version == SCHEMA_VERSION
+
+
+def test_each_version_requires_exactly_its_own_design_fields():
+    doc = _v1_document()
+    missing = json.loads(json.dumps(doc))
+    del missing["design"]["gate_workfunction_eV"]
+    with pytest.raises(SnapshotError, match="gate_workfunction_eV"):
+        SnapshotSettings.from_dict(missing)
+    current = SnapshotSettings.from_dict(doc).to_dict()
+    del current["design"]["temperature_K"]
+    with pytest.raises(SnapshotError, match="temperature_K"):
+        SnapshotSettings.from_dict(current)
+    assert design_fields(SCHEMA_VERSION) == tuple(FIELD_RANGES)
+
+
+def test_version_1_file_may_not_hold_fields_of_a_later_version():
+    added = added_design_fields(1)
+    if not added:
+        pytest.skip("no design field has been added since version 1")
+    doc = _v1_document()
+    field = next(f for f in dataclasses.fields(Design) if f.name == added[0])
+    doc["design"][added[0]] = getattr(Design(), field.name)
+    with pytest.raises(SnapshotError, match=added[0]):
+        SnapshotSettings.from_dict(doc)
