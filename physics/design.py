@@ -31,7 +31,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 if TYPE_CHECKING:
-    from sub60.physics.materials import Dielectric
+    from sub60.physics.materials import Dielectric, Semiconductor
 
 # Bias ranges accepted by the solvers [V]. Common practice for low-voltage logic, no source.
 VG_RANGE_V: tuple[float, float] = (-1.5, 2.0)
@@ -58,9 +58,9 @@ class FieldSpec:
 
 
 def _materials() -> tuple[str, ...]:
-    from sub60.physics.materials import SEMICONDUCTORS
+    from sub60.physics.materials import ALLOYS, SEMICONDUCTORS
 
-    return tuple(SEMICONDUCTORS)
+    return tuple(SEMICONDUCTORS) + tuple(ALLOYS)
 
 
 def _dielectrics() -> tuple[str, ...]:
@@ -98,6 +98,11 @@ FIELD_RANGES: dict[str, FieldSpec] = {
     "gate_source_offset_nm": FieldSpec(float, -10.0, 10.0,
                                        help="gate over the source (+) or underlap (-) [nm]"),
     "temperature_K": FieldSpec(float, 150.0, 450.0, help="lattice temperature [K]"),
+    # materials: alloys and heterojunctions
+    "composition_x": FieldSpec(float, 0.0, 1.0,
+                               help="x of an alloy material (InGaAs: In(x)Ga(1-x)As, AlGaSb: "
+                                    "Al(x)Ga(1-x)Sb, GaAsSb: GaAs(x)Sb(1-x), InAsSb: "
+                                    "InAs(x)Sb(1-x), SiGe: Si(1-x)Ge(x)); unset otherwise [-]"),
 }
 
 
@@ -138,6 +143,10 @@ class Design:
         gate extension over the source (+) or underlap (-) [nm].
     temperature_K : float
         temperature [K].
+    composition_x : float or None
+        composition of an alloy ``material`` ("InGaAs", "AlGaSb", "GaAsSb", "InAsSb",
+        "SiGe"; see `sub60.physics.materials.ALLOYS`), in [0, 1] [-]; required for an
+        alloy and must be unset (None) for any other material.
     """
 
     material: str = "InAs"
@@ -158,6 +167,8 @@ class Design:
     buried_oxide_thickness_nm: float = 10.0
     gate_source_offset_nm: float = 0.0
     temperature_K: float = 300.0
+    # materials: alloys and heterojunctions
+    composition_x: float | None = None
 
     def __post_init__(self) -> None:
         for f in dataclasses.fields(self):
@@ -167,7 +178,13 @@ class Design:
                     raise ValueError("oxide_permittivity: required when oxide='custom'; "
                                      f"allowed {FIELD_RANGES['oxide_permittivity'].describe()}")
                 continue
+            if f.name == "composition_x" and value is None:
+                continue
             object.__setattr__(self, f.name, _check(f.name, value))
+        # the body material: an alloy needs its composition, a fixed material has none
+        from sub60.physics.materials import semiconductor_for
+
+        semiconductor_for(self.material, self.composition_x)
         # combinations: the gate must exist and start inside the device
         if self.gate_length_nm + self.gate_source_offset_nm < 2.0:
             raise ValueError(
@@ -205,6 +222,14 @@ class Design:
     def gate_end_nm(self) -> float:
         """Drain-side edge of the gate (aligned with the drain junction) [nm]."""
         return self.drain_junction_nm
+
+    @property
+    def semiconductor(self) -> Semiconductor:
+        """The body's material record: the named one, or the alloy at `composition_x`
+        (`sub60.physics.materials.semiconductor_for`)."""
+        from sub60.physics.materials import semiconductor_for
+
+        return semiconductor_for(self.material, self.composition_x)
 
     # ------------------------------------------------------------------ gate stack
     @property

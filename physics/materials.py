@@ -36,6 +36,7 @@ from __future__ import annotations
 import dataclasses
 import math
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 import numpy.typing as npt
@@ -201,9 +202,16 @@ class Semiconductor:
         valence-band density-of-states mass [-].
     direct_gap : bool
         True if the conduction-band minimum is at Gamma (direct band-to-band
-        tunnelling applies); False for Si and Ge (phonon-assisted, not modelled).
+        tunnelling applies); False for Si, Ge and SiGe (phonon-assisted tunnelling,
+        `sub60.physics.indirect_tunnelling`) and for AlSb-rich Al(x)Ga(1-x)Sb.
     sources : dict
         field name -> citation of its value.
+    valence_band_offset_eV : float or None
+        valence-band maximum on the common scale of VMR 2001 (InSb maximum at 0),
+        held fixed with temperature [eV]; None where no value is tabulated.
+    composition : tuple of (str, float) or None
+        (alloy family, x) of a record built by `alloy_semiconductor`; None for the
+        fixed records.
     """
 
     name: str
@@ -219,6 +227,8 @@ class Semiconductor:
     hole_dos_mass: float
     direct_gap: bool
     sources: dict[str, str] = field(compare=False, repr=False)
+    valence_band_offset_eV: float | None = None
+    composition: tuple[str, float] | None = None
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "luttinger", tuple(float(g) for g in self.luttinger))
@@ -235,7 +245,8 @@ class Semiconductor:
         if not g1 > 2.0 * abs(g2):
             raise ValueError(f"{self.name}: Luttinger gamma1 must exceed 2|gamma2|")
         missing = [f.name for f in dataclasses.fields(self)
-                   if f.name not in ("name", "sources") and not self.sources.get(f.name)]
+                   if f.name not in ("name", "sources", "composition")
+                   and getattr(self, f.name) is not None and not self.sources.get(f.name)]
         if missing:
             raise ValueError(f"{self.name}: no source for {', '.join(missing)}")
 
@@ -356,7 +367,8 @@ class Semiconductor:
 
 def _iii_v(name: str, eg0: float, alpha: float, beta: float, chi: float, eps: float,
            mass: float, luttinger: tuple[float, float, float],
-           band_sources: str, chi_eps_sources: str) -> Semiconductor:
+           band_sources: str, chi_eps_sources: str, vbo: float | None = None,
+           vbo_source: str = _VMR) -> Semiconductor:
     """A direct-gap III-V record; non-parabolicity and DOS masses derived from its numbers."""
     return Semiconductor(
         name=name, eg0_eV=eg0, varshni_alpha_eV_per_K=alpha, varshni_beta_K=beta,
@@ -371,20 +383,22 @@ def _iii_v(name: str, eg0: float, alpha: float, beta: float, chi: float, eps: fl
             "permittivity": chi_eps_sources, "nonparabolicity_per_eV": _KANE_ALPHA,
             "electron_dos_mass": _GAMMA_VALLEY_DOS, "hole_dos_mass": _SPHERICAL_HOLES,
             "direct_gap": f"{_VMR} (Gamma minimum lowest)",
+            "valence_band_offset_eV": vbo_source,
         },
+        valence_band_offset_eV=vbo,
     )
 
 
 # VMR 2001 recommended values: Eg0 [eV], alpha [eV/K], beta [K], m_e/m0, (g1, g2, g3).
 # Ioffe archive: electron affinity [eV], static permittivity, 300 K.
 GAAS = _iii_v("GaAs", 1.519, 0.541e-3, 204.0, 4.07, 12.9, 0.067, (6.98, 2.06, 2.93),
-              _VMR, _IOFFE)
+              _VMR, _IOFFE, vbo=-0.8)
 INAS = _iii_v("InAs", 0.417, 0.276e-3, 93.0, 4.9, 15.15, 0.026, (20.0, 8.5, 9.2),
-              _VMR, _IOFFE)
+              _VMR, _IOFFE, vbo=-0.59)
 GASB = _iii_v("GaSb", 0.812, 0.417e-3, 140.0, 4.06, 15.7, 0.039, (13.4, 4.7, 6.0),
-              _VMR, _IOFFE)
+              _VMR, _IOFFE, vbo=-0.03)
 INSB = _iii_v("InSb", 0.235, 0.32e-3, 170.0, 4.59, 16.8, 0.0135, (34.8, 15.5, 16.5),
-              _VMR, _IOFFE)
+              _VMR, _IOFFE, vbo=0.0)
 
 
 def _ga_in_as(ga_fraction: float, gaas_value: float, inas_value: float,
@@ -400,6 +414,7 @@ def _ga_in_as(ga_fraction: float, gaas_value: float, inas_value: float,
 _X_GA = 0.47
 _GAP_BOWING_EV = 0.477
 _MASS_BOWING = 0.0091
+_VBO_BOWING_EV = -0.38
 _INGAAS_SOURCE = (f"derived: {_VMR} interpolation for Ga(x)In(1-x)As, x = 0.47, from the GaAs "
                   "and InAs records")
 _INGAAS_LUTTINGER = tuple(_ga_in_as(_X_GA, g, i) for g, i in zip(GAAS.luttinger, INAS.luttinger,
@@ -415,7 +430,25 @@ INGAAS = _iii_v(
     luttinger=_INGAAS_LUTTINGER,
     band_sources=_INGAAS_SOURCE + " (bowing: gap 0.477 eV, electron mass 0.0091)",
     chi_eps_sources="from memory (commonly quoted 300 K values for In0.53Ga0.47As)",
+    vbo=_ga_in_as(_X_GA, -0.80, -0.59, _VBO_BOWING_EV),
+    vbo_source=_INGAAS_SOURCE + " (VBO bowing -0.38 eV)",
 )
+
+# Valence-band offsets of Si and Ge on the VMR scale (InSb maximum at 0). VMR 2001 does
+# not cover group IV. Ge is tied to GaAs (VMR -0.80 eV) by the measured Ge/GaAs offset,
+# Ge maximum 0.53 eV above GaAs's (Kraut, Grant, Waldrop & Kowalczyk, Phys. Rev. Lett.
+# 44, 1620 (1980); from memory). Si follows from the unstrained Ge/Si offset of the
+# model-solid theory: average valence bands 0.54 eV apart (Van de Walle & Martin, Phys.
+# Rev. B 34, 5621 (1986); from memory), plus one third of each spin-orbit splitting
+# (Ge 0.29 eV, Si 0.044 eV; from memory) to reach the band maxima. Uncertain to about
+# 0.1 eV.
+_GE_VBO_EV = -0.80 + 0.53
+_SI_VBO_EV = _GE_VBO_EV - (0.54 + (0.29 - 0.044) / 3.0)
+_GE_VBO_SOURCE = ("derived: GaAs -0.80 eV (VMR 2001) + 0.53 eV Ge/GaAs offset (Kraut et al., "
+                  "Phys. Rev. Lett. 44, 1620 (1980); from memory)")
+_SI_VBO_SOURCE = ("derived: Ge value minus the unstrained Ge/Si offset 0.54 eV + (0.29 - 0.044)/3 "
+                  "eV (model-solid theory, Van de Walle & Martin, Phys. Rev. B 34, 5621 (1986); "
+                  "spin-orbit splittings; from memory)")
 
 # Si: Varshni law of Thurmond (1975, from memory; read in secondary tables). Valley
 # masses m_l = 0.98, m_t = 0.19 (Sze & Ng appendix, from memory) give electron_mass
@@ -448,7 +481,9 @@ SI = Semiconductor(
         "electron_dos_mass": f"derived: reproduces Nc = 2.86e19 cm^-3 at 300 K of {_GREEN}",
         "hole_dos_mass": f"derived: reproduces Nv = 3.10e19 cm^-3 at 300 K of {_GREEN}",
         "direct_gap": "indirect: conduction-band minima near X (Sze & Ng, ch. 1)",
+        "valence_band_offset_eV": _SI_VBO_SOURCE,
     },
+    valence_band_offset_eV=_SI_VBO_EV,
 )
 
 # Ge: gap law 0.7437 eV, 4.774e-4 eV/K, 235 K (from memory). Four L valleys (eight
@@ -482,7 +517,9 @@ GE = Semiconductor(
         "electron_dos_mass": "derived: 4^(2/3) electron_mass (four L valleys)",
         "hole_dos_mass": _SPHERICAL_HOLES,
         "direct_gap": "indirect: conduction-band minima at L (Sze & Ng, ch. 1)",
+        "valence_band_offset_eV": _GE_VBO_SOURCE,
     },
+    valence_band_offset_eV=_GE_VBO_EV,
 )
 
 #: Semiconductor records by name; direct-gap III-Vs first.
@@ -520,11 +557,33 @@ def get_semiconductor(name: str) -> Semiconductor:
     ValueError
         for an unknown name; the message lists the known names.
     """
+    if str(name).strip().lower() in (k.lower() for k in ALLOYS):
+        raise ValueError(f"{name!r} is an alloy family: give its composition "
+                         "(alloy_semiconductor(name, x), or a design's composition_x)")
     return _lookup(name, SEMICONDUCTORS, "semiconductor")
 
 
+def group_iv_germanium_fraction(semiconductor: Semiconductor) -> float | None:
+    """Ge fraction of a group-IV body (Si 0, Ge 1, Si(1-x)Ge(x) x); None otherwise.
+
+    Parameters
+    ----------
+    semiconductor : Semiconductor
+
+    Returns
+    -------
+    float or None
+        [-]
+    """
+    if semiconductor.composition is not None:
+        family, x = semiconductor.composition
+        return x if family == "SiGe" else None
+    return {"Si": 0.0, "Ge": 1.0}.get(semiconductor.name)
+
+
 def check_tunnelling_material(semiconductor: Semiconductor) -> str | None:
-    """Warning text if band-to-band tunnelling in this material is not modelled.
+    """What the band-to-band model of this material leaves out, or a warning that it is
+    not modelled.
 
     Parameters
     ----------
@@ -534,10 +593,23 @@ def check_tunnelling_material(semiconductor: Semiconductor) -> str | None:
     Returns
     -------
     str or None
-        None for a direct gap; otherwise a sentence for the user.
+        None for a direct gap; for Si, Ge and SiGe (phonon-assisted tunnelling,
+        `sub60.physics.indirect_tunnelling`) a statement of what that model leaves
+        out; for another indirect gap (AlSb-rich AlGaSb) a warning that band-to-band
+        currents are not modelled.
     """
     if semiconductor.supports_direct_tunnelling:
         return None
+    if group_iv_germanium_fraction(semiconductor) is not None:
+        return (
+            f"{semiconductor.name} has an indirect band gap: its band-to-band current comes "
+            "from a phonon-assisted model (Kane/Keldysh uniform-field rate A (F/F0)^2.5 "
+            "exp(-B/F) with Hurkx's Si parameters, applied along each energy's tunnel path; "
+            "for Ge also the direct Gamma path). It leaves out the phonon spectrum and "
+            "tunnelling direction, strain, the valley splitting of a thin body (only the "
+            "wider confined gap enters), and its Ge and SiGe parameters are scaled from Si, "
+            "not calibrated."
+        )
     return (
         f"{semiconductor.name} has an indirect band gap: band-to-band tunnelling in it "
         "needs a phonon, which this model does not include, so its tunnelling currents "
@@ -829,3 +901,412 @@ SATELLITE_VALLEYS["In0.53Ga0.47As"] = tuple(
                     _ga_in_as(_X_GA, g.transverse_mass, i.transverse_mass),
                     "derived: linear GaAs-InAs interpolation (no bowing) of " + _VMR_MEMORY)
     for g, i in zip(SATELLITE_VALLEYS["GaAs"], SATELLITE_VALLEYS["InAs"], strict=True))
+
+
+# --- alloys with a composition -------------------------------------------------------
+# AlSb: an endpoint of Al(x)Ga(1-x)Sb, not a body choice of its own (its lowest
+# conduction minimum is at X). VMR 2001 recommended values: Gamma gap 2.386 eV,
+# 0.42 meV/K, 140 K; m_e(Gamma) 0.14; Luttinger 5.18, 1.19, 1.97; VBO -0.41 eV.
+# Permittivity 12.04 and electron affinity 3.65 eV at 300 K: Ioffe archive (from memory).
+ALSB = dataclasses.replace(
+    _iii_v("AlSb", 2.386, 0.42e-3, 140.0, 3.65, 12.04, 0.14, (5.18, 1.19, 1.97),
+           _VMR, f"{_IOFFE} (from memory)", vbo=-0.41),
+    direct_gap=False,
+)
+ALSB.sources["direct_gap"] = f"indirect: X minimum 1.696 eV at 0 K below Gamma ({_VMR})"
+ALSB.sources["eg0_eV"] = f"{_VMR} (the Gamma gap; the X gap is lower)"
+
+SATELLITE_VALLEYS["AlSb"] = (
+    SatelliteValley("L", 2.329, 0.58e-3, 140.0, 1.64, 0.23, _VMR),
+    SatelliteValley("X", 1.696, 0.39e-3, 140.0, 1.357, 0.123, _VMR),
+)
+
+
+@dataclass(frozen=True)
+class AlloyFamily:
+    """A ternary alloy A(x)B(1-x) with VMR 2001 interpolation: P(x) = x P(A) + (1-x) P(B)
+    - x(1-x) C(x), with C(x) = c0 + c1 x (a constant bowing where c1 = 0).
+
+    Parameters
+    ----------
+    name : short name used as a design ``material`` (e.g. "InGaAs")
+    formula : the composition convention, e.g. "In(x)Ga(1-x)As"
+    at_one, at_zero : names of the endpoint records (x = 1 and x = 0)
+    gap_bowing_eV : (c0, c1) of the Gamma-gap bowing [eV]
+    mass_bowing : Gamma electron-mass bowing [m0]
+    vbo_bowing_eV : valence-band-offset bowing [eV]
+    x_bowing_eV, l_bowing_eV : bowing of the X and L valley gaps [eV]
+    source : citation of the bowing parameters
+    """
+
+    name: str
+    formula: str
+    at_one: str
+    at_zero: str
+    gap_bowing_eV: tuple[float, float]
+    mass_bowing: float
+    vbo_bowing_eV: float
+    x_bowing_eV: float
+    l_bowing_eV: float
+    source: str
+
+    def gap_bowing_at(self, x: float) -> float:
+        """Gamma-gap bowing C(x) = c0 + c1 x [eV]."""
+        return self.gap_bowing_eV[0] + self.gap_bowing_eV[1] * x
+
+
+_VMR_BOWING = f"{_VMR}, bowing parameters of the ternary alloys"
+#: III-V alloy families (VMR 2001 bowing parameters; 0 where the paper gives none) and
+#: Si(1-x)Ge(x) (built separately, `_sige`).
+ALLOYS: dict[str, AlloyFamily] = {
+    "InGaAs": AlloyFamily("InGaAs", "In(x)Ga(1-x)As", "InAs", "GaAs", (0.477, 0.0), 0.0091,
+                          -0.38, 1.4, 0.33, _VMR_BOWING),
+    "AlGaSb": AlloyFamily("AlGaSb", "Al(x)Ga(1-x)Sb", "AlSb", "GaSb", (-0.044, 1.22), 0.0,
+                          0.0, 0.0, 0.0, _VMR_BOWING + " (gap bowing -0.044 + 1.22 x)"),
+    "GaAsSb": AlloyFamily("GaAsSb", "GaAs(x)Sb(1-x)", "GaAs", "GaSb", (1.43, 0.0), 0.0,
+                          -1.06, 1.2, 1.2, _VMR_BOWING),
+    "InAsSb": AlloyFamily("InAsSb", "InAs(x)Sb(1-x)", "InAs", "InSb", (0.67, 0.0), 0.035,
+                          0.0, 0.6, 0.6, _VMR_BOWING),
+    "SiGe": AlloyFamily("SiGe", "Si(1-x)Ge(x)", "Ge", "Si", (0.0, 0.0), 0.0, 0.0, 0.0, 0.0,
+                        "Weber & Alonso, Phys. Rev. B 40, 5683 (1989) (gap; from memory)"),
+}
+
+
+def alloys() -> dict[str, AlloyFamily]:
+    """The alloy families a design may name as ``material`` with a ``composition_x``
+    (a new dictionary each call).
+
+    Returns
+    -------
+    dict of str to AlloyFamily
+        "InGaAs", "AlGaSb", "GaAsSb", "InAsSb" (VMR 2001) and "SiGe".
+    """
+    return dict(ALLOYS)
+
+
+def _endpoint(name: str) -> Semiconductor:
+    return ALSB if name == "AlSb" else SEMICONDUCTORS[name]
+
+
+def _mix(x: float, at_one: float, at_zero: float, bowing: float = 0.0) -> float:
+    """x P(x=1) + (1-x) P(x=0) - x(1-x) C (VMR 2001, eq. for ternary alloys)."""
+    return x * at_one + (1.0 - x) * at_zero - x * (1.0 - x) * bowing
+
+
+def _check_composition(family: str, x: object) -> float:
+    if family not in ALLOYS:
+        raise ValueError(f"unknown alloy {family!r}; known: {', '.join(ALLOYS)}")
+    try:
+        value = float(x)  # type: ignore[arg-type]
+    except (TypeError, ValueError):
+        value = math.nan
+    if isinstance(x, bool) or not (math.isfinite(value) and 0.0 <= value <= 1.0):
+        raise ValueError(f"composition_x: {x!r} outside the allowed range [0, 1] for "
+                         f"{ALLOYS[family].formula}")
+    return value
+
+
+def alloy_semiconductor(family: str, composition_x: float) -> Semiconductor:
+    """The band parameters of an alloy at a composition.
+
+    III-V families (VMR 2001): the Gamma gap, electron mass and valence-band offset
+    follow P(x) = x P(A) + (1-x) P(B) - x(1-x) C with the paper's bowing C (0 where it
+    gives none); the Varshni alpha and beta, the Luttinger parameters and the
+    permittivity are interpolated linearly (VMR 2001 for the first two; common
+    practice, no source, for the permittivity). The 300 K electron affinity is the
+    linear mix of the endpoints' minus the bowing of the conduction edge
+    Ec = VBO + Eg(300 K) (derived: the affinity follows the conduction edge). The
+    non-parabolicity and the densities-of-states masses are derived as for the
+    binaries. The record carries the Gamma gap; ``direct_gap`` is False where an
+    interpolated X or L valley lies below Gamma at 0 K (AlSb-rich Al(x)Ga(1-x)Sb).
+
+    Si(1-x)Ge(x): see `_sige` (Weber & Alonso 1989 gap, branch by branch).
+
+    Parameters
+    ----------
+    family : str
+        "InGaAs", "AlGaSb", "GaAsSb", "InAsSb" or "SiGe" (`ALLOYS`).
+    composition_x : float
+        x of the family's formula, in [0, 1] [-].
+
+    Returns
+    -------
+    Semiconductor
+        named e.g. "InGaAs (x = 0.53)", with ``composition`` = (family, x) and every
+        field's source; at x = 0 and 1 its numbers equal the endpoint records'.
+
+    Raises
+    ------
+    ValueError
+        for an unknown family or a composition outside [0, 1] (naming composition_x).
+    """
+    x = _check_composition(family, composition_x)
+    return _alloy_cached(family, x)
+
+
+@lru_cache(maxsize=256)
+def _alloy_cached(family: str, x: float) -> Semiconductor:
+    fam = ALLOYS[family]
+    if family == "SiGe":
+        return _sige(x)
+    one, zero = _endpoint(fam.at_one), _endpoint(fam.at_zero)
+    where = f"derived: {fam.formula}, x = {x:g}, from the {fam.at_one} and {fam.at_zero} records"
+    eg0 = _mix(x, one.eg0_eV, zero.eg0_eV, fam.gap_bowing_at(x))
+    alpha = _mix(x, one.varshni_alpha_eV_per_K, zero.varshni_alpha_eV_per_K)
+    beta = _mix(x, one.varshni_beta_K, zero.varshni_beta_K)
+    vbo = _mix(x, one.valence_band_offset_eV, zero.valence_band_offset_eV, fam.vbo_bowing_eV)
+    eg300 = float(varshni_gap_eV(eg0, alpha, beta, 300.0))
+    ec_bowing = (vbo + eg300) - _mix(x, one.valence_band_offset_eV + float(one.bandgap_eV(300.0)),
+                                     zero.valence_band_offset_eV + float(zero.bandgap_eV(300.0)))
+    chi = _mix(x, one.electron_affinity_eV, zero.electron_affinity_eV) - ec_bowing
+    luttinger = tuple(_mix(x, a, b) for a, b in zip(one.luttinger, zero.luttinger, strict=True))
+    record = _iii_v(
+        f"{family} (x = {x:g})", eg0, alpha, beta, chi,
+        _mix(x, one.permittivity, zero.permittivity),
+        _mix(x, one.electron_mass, zero.electron_mass, fam.mass_bowing), luttinger,
+        band_sources=f"{where}; bowing: {fam.source}",
+        chi_eps_sources=(f"{where}: permittivity linear (common practice, no source); "
+                         "affinity linear minus the bowing of Ec = VBO + Eg(300 K)"),
+        vbo=vbo, vbo_source=f"{where}; bowing: {fam.source}")
+    valleys = _alloy_valleys(fam, x)
+    lowest = min(v.eg0_eV for v in valleys)
+    direct = eg0 <= lowest
+    sources = dict(record.sources)
+    sources["direct_gap"] = (f"derived: Gamma gap {eg0:.3f} eV vs the lowest interpolated "
+                             f"satellite gap {lowest:.3f} eV at 0 K ({fam.source})")
+    record = dataclasses.replace(record, direct_gap=direct, composition=(family, x),
+                                 sources=sources)
+    _ALLOY_VALLEYS[record.name] = valleys
+    return record
+
+
+_ALLOY_VALLEYS: dict[str, tuple[SatelliteValley, ...]] = {}
+
+
+def _alloy_valleys(fam: AlloyFamily, x: float) -> tuple[SatelliteValley, ...]:
+    """L and X valleys of a III-V alloy: gaps with the VMR bowing, the rest linear."""
+    out = []
+    for v1, v0 in zip(SATELLITE_VALLEYS[fam.at_one], SATELLITE_VALLEYS[fam.at_zero], strict=True):
+        bowing = fam.l_bowing_eV if v1.name == "L" else fam.x_bowing_eV
+        out.append(SatelliteValley(
+            v1.name, _mix(x, v1.eg0_eV, v0.eg0_eV, bowing),
+            _mix(x, v1.varshni_alpha_eV_per_K, v0.varshni_alpha_eV_per_K),
+            _mix(x, v1.varshni_beta_K, v0.varshni_beta_K),
+            _mix(x, v1.longitudinal_mass, v0.longitudinal_mass),
+            _mix(x, v1.transverse_mass, v0.transverse_mass),
+            f"derived: interpolation of the {fam.at_one} and {fam.at_zero} valleys, gap bowing "
+            f"{bowing:g} eV ({fam.source})"))
+    return tuple(out)
+
+
+def satellite_valleys(semiconductor: Semiconductor) -> tuple[SatelliteValley, ...]:
+    """L and X valleys of a direct-gap III-V record, fixed or alloy (empty otherwise).
+
+    Parameters
+    ----------
+    semiconductor : Semiconductor
+
+    Returns
+    -------
+    tuple of SatelliteValley
+    """
+    if semiconductor.composition is not None:
+        if semiconductor.name not in _ALLOY_VALLEYS and semiconductor.composition[0] != "SiGe":
+            alloy_semiconductor(*semiconductor.composition)
+        return _ALLOY_VALLEYS.get(semiconductor.name, ())
+    return SATELLITE_VALLEYS.get(semiconductor.name, ())
+
+
+# Si(1-x)Ge(x), unstrained. Gap at 4.2 K (Weber & Alonso, Phys. Rev. B 40, 5683 (1989);
+# from memory): X-like 1.155 - 0.43 x + 0.206 x^2 for x < ~0.85, L-like 2.010 - 1.270 x
+# above. Here each branch keeps its composition dependence and is tied to the endpoint
+# record of its valley so that x = 0 is the Si record and x = 1 the Ge record:
+# Eg_X(x, T) = Eg_Si(T) - 0.43 x + 0.206 x^2, Eg_L(x, T) = Eg_Ge(T) + 1.270 (1 - x); the
+# lower of the two at 0 K sets the branch, whose valley masses, non-parabolicity and
+# Varshni alpha, beta are the endpoint's. Valence-band offset linear in x (model-solid
+# theory, Van de Walle & Martin 1986, from memory). Permittivity 11.7 + 4.5 x (Ioffe
+# archive, SiGe; from memory) = linear between the records; Luttinger parameters and
+# hole DOS mass linear (common practice, no source).
+_WEBER_ALONSO = "Weber & Alonso, Phys. Rev. B 40, 5683 (1989), 4.2 K fit (from memory)"
+
+
+def sige_gaps_eV(x: float, temperature_K: float) -> tuple[float, float]:
+    """X-like and L-like gaps of unstrained Si(1-x)Ge(x) [eV].
+
+    Eg_X = Eg_Si(T) - 0.43 x + 0.206 x^2, Eg_L = Eg_Ge(T) + 1.270 (1 - x): the
+    composition dependence of Weber & Alonso, Phys. Rev. B 40, 5683 (1989) (from
+    memory), tied to the Si and Ge records (Varshni) at the endpoints.
+
+    Parameters
+    ----------
+    x : float
+        Ge fraction, in [0, 1] [-].
+    temperature_K : float
+        temperature, >= 0 [K].
+
+    Returns
+    -------
+    (float, float)
+        (Eg_X, Eg_L) [eV].
+    """
+    x = _check_composition("SiGe", x)
+    return (float(SI.bandgap_eV(temperature_K)) - 0.43 * x + 0.206 * x * x,
+            float(GE.bandgap_eV(temperature_K)) + 1.270 * (1.0 - x))
+
+
+def _sige(x: float) -> Semiconductor:
+    gx, gl = sige_gaps_eV(x, 0.0)
+    branch = SI if gx <= gl else GE
+    eg0 = gx if branch is SI else gl
+    lin = f"derived: linear in x between the Si and Ge records, x = {x:g}"
+    gap_src = (f"derived: {'X' if branch is SI else 'L'}-like branch of {_WEBER_ALONSO}, tied to "
+               f"the {branch.name} record")
+    vbo = _mix(x, GE.valence_band_offset_eV, SI.valence_band_offset_eV)
+    eg300 = min(sige_gaps_eV(x, 300.0))
+    lin_eg300 = _mix(x, float(GE.bandgap_eV(300.0)), float(SI.bandgap_eV(300.0)))
+    chi = _mix(x, GE.electron_affinity_eV, SI.electron_affinity_eV) - (eg300 - lin_eg300)
+    same = f"the {branch.name} record's value ({'X' if branch is SI else 'L'}-like branch)"
+    return Semiconductor(
+        name=f"SiGe (x = {x:g})", eg0_eV=eg0,
+        varshni_alpha_eV_per_K=branch.varshni_alpha_eV_per_K,
+        varshni_beta_K=branch.varshni_beta_K, electron_affinity_eV=chi,
+        permittivity=_mix(x, GE.permittivity, SI.permittivity),
+        electron_mass=branch.electron_mass,
+        luttinger=tuple(_mix(x, a, b) for a, b in zip(GE.luttinger, SI.luttinger, strict=True)),
+        nonparabolicity_per_eV=branch.nonparabolicity_per_eV,
+        electron_dos_mass=branch.electron_dos_mass,
+        hole_dos_mass=_mix(x, GE.hole_dos_mass, SI.hole_dos_mass),
+        direct_gap=False,
+        sources={
+            "eg0_eV": gap_src, "varshni_alpha_eV_per_K": same, "varshni_beta_K": same,
+            "electron_affinity_eV": (f"{lin} minus the bowing of the 300 K gap (the affinity "
+                                     "follows the conduction edge; VBO linear)"),
+            "permittivity": f"{lin} (11.7 + 4.5 x, Ioffe archive, SiGe; from memory)",
+            "electron_mass": same, "luttinger": f"{lin} (common practice, no source)",
+            "nonparabolicity_per_eV": same, "electron_dos_mass": same,
+            "hole_dos_mass": f"{lin} (common practice, no source)",
+            "direct_gap": "indirect: X-like or L-like minimum (Weber & Alonso 1989)",
+            "valence_band_offset_eV": (f"{lin} (model-solid theory, Van de Walle & Martin, "
+                                       "Phys. Rev. B 34, 5621 (1986); from memory)"),
+        },
+        valence_band_offset_eV=vbo, composition=("SiGe", x),
+    )
+
+
+def semiconductor_for(material: str, composition_x: float | None = None) -> Semiconductor:
+    """The record of a design's body: a named material, or an alloy at a composition.
+
+    Parameters
+    ----------
+    material : str
+        a key of `SEMICONDUCTORS` (case-insensitive) or of `ALLOYS`.
+    composition_x : float or None
+        alloy composition in [0, 1] [-]; required for an alloy, None otherwise.
+
+    Returns
+    -------
+    Semiconductor
+
+    Raises
+    ------
+    ValueError
+        naming ``composition_x`` when it is missing for an alloy, set for a non-alloy,
+        or outside [0, 1]; naming the known materials for an unknown name.
+    """
+    family = next((k for k in ALLOYS if k.lower() == str(material).strip().lower()), None)
+    if family is None:
+        if composition_x is not None:
+            raise ValueError(f"material: {material!r} is not an alloy, so composition_x = "
+                             f"{composition_x!r} has no meaning; choose an alloy "
+                             f"({', '.join(ALLOYS)}) or leave composition_x unset")
+        return get_semiconductor(material)
+    if composition_x is None:
+        raise ValueError(f"composition_x: required for the alloy {family} "
+                         f"({ALLOYS[family].formula}); allowed [0, 1]")
+    return alloy_semiconductor(family, composition_x)
+
+
+# --- band alignment ------------------------------------------------------------------
+@dataclass(frozen=True)
+class BandAlignment:
+    """Band edges of two materials on the common VMR 2001 scale at one temperature.
+
+    Attributes
+    ----------
+    first, second : material names
+    temperature_K : [K]
+    ev_first_eV, ec_first_eV, ev_second_eV, ec_second_eV : band edges [eV]: Ev = the
+        valence-band offset (fixed with temperature), Ec = Ev + Eg(T)
+    valence_offset_eV, conduction_offset_eV : second minus first [eV]
+    kind : "straddling (type I)", "staggered (type II)" or "broken gap (type III)"
+    overlap_eV : for a broken gap, how far one valence edge lies above the other
+        conduction edge (> 0); otherwise minus the smallest gap between a valence edge
+        and the other material's conduction edge (< 0) [eV]
+    """
+
+    first: str
+    second: str
+    temperature_K: float
+    ev_first_eV: float
+    ec_first_eV: float
+    ev_second_eV: float
+    ec_second_eV: float
+    kind: str
+
+    @property
+    def valence_offset_eV(self) -> float:
+        """Ev(second) - Ev(first) [eV]."""
+        return self.ev_second_eV - self.ev_first_eV
+
+    @property
+    def conduction_offset_eV(self) -> float:
+        """Ec(second) - Ec(first) [eV]."""
+        return self.ec_second_eV - self.ec_first_eV
+
+    @property
+    def overlap_eV(self) -> float:
+        """max(Ev1 - Ec2, Ev2 - Ec1) [eV]: > 0 for a broken gap."""
+        return max(self.ev_first_eV - self.ec_second_eV, self.ev_second_eV - self.ec_first_eV)
+
+
+def band_alignment(first: Semiconductor | str, second: Semiconductor | str,
+                   temperature_K: float = 300.0) -> BandAlignment:
+    """Alignment of two materials from the valence-band-offset table.
+
+    Ev = VBO (VMR 2001 scale, InSb maximum at 0; held fixed with temperature, as VMR
+    2001 tabulate it), Ec = Ev + Eg(T) with each record's gap (the Gamma gap for the
+    III-Vs, the indirect gap for Si, Ge, SiGe). The anion-rule-free table values are
+    those of VMR 2001 for the III-Vs; Si and Ge as in the records' sources.
+
+    Parameters
+    ----------
+    first, second : Semiconductor or str
+        records, or names of `SEMICONDUCTORS`.
+    temperature_K : float
+        temperature, >= 0 [K].
+
+    Returns
+    -------
+    BandAlignment
+
+    Raises
+    ------
+    ValueError
+        for a material without a tabulated valence-band offset.
+    """
+    recs = [get_semiconductor(m) if isinstance(m, str) else m for m in (first, second)]
+    edges = []
+    for rec in recs:
+        if rec.valence_band_offset_eV is None:
+            raise ValueError(f"{rec.name}: no valence-band offset tabulated")
+        ev = rec.valence_band_offset_eV
+        edges.append((ev, ev + float(rec.bandgap_eV(temperature_K))))
+    (ev1, ec1), (ev2, ec2) = edges
+    if ev1 > ec2 or ev2 > ec1:
+        kind = "broken gap (type III)"
+    elif (ev1 <= ev2 and ec2 <= ec1) or (ev2 <= ev1 and ec1 <= ec2):
+        kind = "straddling (type I)"
+    else:
+        kind = "staggered (type II)"
+    return BandAlignment(recs[0].name, recs[1].name, float(temperature_K), ev1, ec1, ev2, ec2,
+                         kind)

@@ -35,7 +35,7 @@ from sub60.physics._cache import ByteLRU, CacheInfo, array_bytes
 from sub60.physics._threads import single_blas_thread
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
-from sub60.physics.materials import check_tunnelling_material, get_semiconductor
+from sub60.physics.materials import check_tunnelling_material
 from sub60.physics.metrics import (
     Metrics,
     figures_of_merit,
@@ -388,7 +388,7 @@ def design_warnings(design: Design) -> tuple[str, ...]:
 @lru_cache(maxsize=256)
 def _design_warnings(design: Design) -> tuple[str, ...]:
     out = []
-    text = check_tunnelling_material(get_semiconductor(design.material))
+    text = check_tunnelling_material(design.semiconductor)
     if text:
         out.append(text)
     valley = valley_warning(design)

@@ -28,7 +28,7 @@ import numpy as np
 from sub60.physics._cache import ByteLRU, array_bytes
 from sub60.physics.constants import thermal_energy_eV
 from sub60.physics.design import Design
-from sub60.physics.materials import BURIED_OXIDE, Dielectric, get_dielectric, get_semiconductor
+from sub60.physics.materials import BURIED_OXIDE, Dielectric, get_dielectric
 from sub60.physics.mesh import Mesh, graded_axis, layered_y_axis
 from sub60.physics.poisson import BandParameters, PoissonOperator, PoissonProblem, neutral_potential
 
@@ -54,7 +54,7 @@ def build_mesh(design: Design, resolution: float = 1.0) -> Mesh:
         refine.append((design.gate_start_nm, 0.3 / r, 1.0))
     x = graded_axis(design.total_length_nm, [xj1, xj2, design.gate_start_nm], refine,
                     h_max_nm=2.0 / r, growth=0.15)
-    sc_rec = get_semiconductor(design.material)
+    sc_rec = design.semiconductor
     eps_ox = design.gate_permittivity
     tox, ts = design.oxide_thickness_nm, design.body_thickness_nm
     h_ox = min(0.4, tox / 3)
@@ -92,7 +92,7 @@ def doping_profile(design: Design, x_nm: np.ndarray) -> tuple[np.ndarray, np.nda
 
 def band_parameters(design: Design, dec_eV: float = 0.0, dev_eV: float = 0.0) -> BandParameters:
     """Charge-model parameters of the body material at the design temperature."""
-    rec = get_semiconductor(design.material)
+    rec = design.semiconductor
     nc, nv = rec.effective_dos_cm3(design.temperature_K)
     return BandParameters(chi_eV=rec.electron_affinity_eV, eg_eV=rec.bandgap_eV(design.temperature_K),
                           nc_cm3=nc, nv_cm3=nv, kT_eV=thermal_energy_eV(design.temperature_K),

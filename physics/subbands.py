@@ -49,7 +49,7 @@ import numpy as np
 
 from sub60.physics.confinement import solve_subbands, subband_weights
 from sub60.physics.design import Design
-from sub60.physics.materials import BURIED_OXIDE, get_dielectric, get_semiconductor
+from sub60.physics.materials import BURIED_OXIDE, get_dielectric
 
 #: share of the bulk two-band interband coupling for in-plane transport, eq. (2) [-]
 MOMENTUM_WEIGHT = {"conduction": 1.0, "HH": 0.75, "LH": 0.25}
@@ -169,7 +169,7 @@ def _stack(design: Design):
 @lru_cache(maxsize=64)
 def device_subbands(design: Design) -> DeviceSubbands:
     """Flat-well subbands of the design's body (cached per design)."""
-    sc_rec = get_semiconductor(design.material)
+    sc_rec = design.semiconductor
     bottom, top, y0 = _stack(design)
     t = design.body_thickness_nm
     h = SPACING_NM
@@ -225,10 +225,10 @@ def satellite_edges(design: Design) -> dict[str, float]:
     axis, parabolic, the barrier lowered by the offset. Empty for materials without
     satellite data (Si, Ge: their indirect gap is flagged elsewhere).
     """
-    from sub60.physics.materials import SATELLITE_VALLEYS
+    from sub60.physics.materials import satellite_valleys
 
-    rec = get_semiconductor(design.material)
-    valleys = SATELLITE_VALLEYS.get(rec.name, ())
+    rec = design.semiconductor
+    valleys = satellite_valleys(rec)
     if not valleys:
         return {}
     y, body, ve, m_bar = device_subbands(design).electron_well
