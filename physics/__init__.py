@@ -14,6 +14,8 @@ import importlib as _importlib
 _API: dict[str, str] = {
     "BiasPoint": "simulate",
     "Design": "design",
+    "alloys": "materials",
+    "band_alignment": "materials",
     "Electrostatics": "electrostatics",
     "FIELD_RANGES": "design",
     "Metric": "metrics",

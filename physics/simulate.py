@@ -35,6 +35,7 @@ from sub60.physics._cache import ByteLRU, CacheInfo, array_bytes
 from sub60.physics._threads import single_blas_thread
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
+from sub60.physics.indirect_tunnelling import has_phonon_assisted_model, indirect_band_to_band
 from sub60.physics.materials import check_tunnelling_material
 from sub60.physics.metrics import (
     Metrics,
@@ -282,7 +283,13 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
     x = es.x_nm
     cprof = [BandProfile(s.label, cond[i], s.inplane_mass) for i, s in enumerate(sb.conduction)]
     vprof = [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)]
-    spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model, pair_weights=sb.pair_weights())
+    if has_phonon_assisted_model(d.semiconductor):  # Si, Ge, SiGe: indirect gap
+        spectrum = indirect_band_to_band(d.semiconductor, d.temperature_K, d.body_thickness_nm,
+                                         x, cond.min(axis=0), val.max(axis=0), efs, efd, kT,
+                                         bulk_gap_eV=float(es.frame.bands.eg_eV))
+    else:
+        spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model,
+                                pair_weights=sb.pair_weights())
     i_n = thermionic_current(cprof, "conduction", efs, efd, kT)
     i_p = thermionic_current(vprof, "valence", efs, efd, kT)
     if es.vd_V == 0:

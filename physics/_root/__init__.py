@@ -28,7 +28,8 @@ except _metadata.PackageNotFoundError:  # pragma: no cover - run from a bare che
 _PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "FIELD_RANGES", "Metric",
                 "Metrics", "OutputCurve", "Simulator", "SolverError", "Spectrum",
                 "TUNNELLING_MODELS", "TransferCurve", "VD_RANGE_V", "VG_RANGE_V",
-                "cache_info", "check_bias", "check_tunnelling_material", "clear_cache",
+                "alloys", "band_alignment", "cache_info", "check_bias",
+                "check_tunnelling_material", "clear_cache",
                 "csv_text", "design_warnings", "dielectrics", "figures_of_merit",
                 "output_columns", "output_curve", "output_table", "semiconductors", "solve_bias",
                 "solve_electrostatics", "thermionic_limit_mV_per_dec", "transfer_curve")
