@@ -21,6 +21,18 @@ _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
 _SURROGATE = re.compile(r"[\ud800-\udfff]")
 
 
+_LIST_CHARS = 280  # an error message stays one short line
+
+
+def _short_list(names: tuple[str, ...]) -> str:
+    """Names joined by commas, cut after about 280 characters with the count left out."""
+    text = ", ".join(names)
+    if len(text) <= _LIST_CHARS:
+        return text
+    shown = text[:_LIST_CHARS].rsplit(", ", 1)[0]
+    return f"{shown} and {len(names) - shown.count(', ') - 1} more"
+
+
 class FieldReader:
     """A JSON object read field by field; every read names its path in errors."""
 
@@ -31,7 +43,7 @@ class FieldReader:
         unknown = [k for k in data if k not in known]
         if unknown:
             raise SnapshotError(f"{join_path(path, unknown[0])}: unknown field; known fields: "
-                                + ", ".join(known))
+                                + _short_list(known))
         for k in required:
             if k not in data:
                 raise SnapshotError(f"{join_path(path, k)}: missing (required)")

@@ -63,6 +63,7 @@ from sub60.physics.constants import (
 )
 from sub60.physics.materials import (
     Semiconductor,
+    get_semiconductor,
     group_iv_germanium_fraction,
     varshni_gap_eV,
 )
@@ -81,7 +82,7 @@ GE_GAMMA_ELECTRON_MASS = 0.038
 #: Lowest direct gap of Si at Gamma, E0' [eV] (from memory): only to let the Gamma path
 #: of Si(1-x)Ge(x) fade out linearly away from Ge.
 SI_DIRECT_GAP_EV = 3.4
-_SI_REFERENCE_GAP_EV = float(varshni_gap_eV(1.170, 4.73e-4, 636.0, 300.0))  # Si record, 300 K
+_SI_REFERENCE_GAP_EV = float(get_semiconductor("Si").bandgap_eV(300.0))  # Hurkx's B holds here
 
 
 @dataclass(frozen=True)

@@ -908,13 +908,14 @@ SATELLITE_VALLEYS["In0.53Ga0.47As"] = tuple(
 # conduction minimum is at X). VMR 2001 recommended values: Gamma gap 2.386 eV,
 # 0.42 meV/K, 140 K; m_e(Gamma) 0.14; Luttinger 5.18, 1.19, 1.97; VBO -0.41 eV.
 # Permittivity 12.04 and electron affinity 3.65 eV at 300 K: Ioffe archive (from memory).
+_ALSB_GAMMA = _iii_v("AlSb", 2.386, 0.42e-3, 140.0, 3.65, 12.04, 0.14, (5.18, 1.19, 1.97),
+                     _VMR, f"{_IOFFE} (from memory)", vbo=-0.41)
 ALSB = dataclasses.replace(
-    _iii_v("AlSb", 2.386, 0.42e-3, 140.0, 3.65, 12.04, 0.14, (5.18, 1.19, 1.97),
-           _VMR, f"{_IOFFE} (from memory)", vbo=-0.41),
-    direct_gap=False,
+    _ALSB_GAMMA, direct_gap=False,
+    sources={**_ALSB_GAMMA.sources,
+             "direct_gap": f"indirect: X minimum 1.696 eV at 0 K below Gamma ({_VMR})",
+             "eg0_eV": f"{_VMR} (the Gamma gap; the X gap is lower)"},
 )
-ALSB.sources["direct_gap"] = f"indirect: X minimum 1.696 eV at 0 K below Gamma ({_VMR})"
-ALSB.sources["eg0_eV"] = f"{_VMR} (the Gamma gap; the X gap is lower)"
 
 SATELLITE_VALLEYS["AlSb"] = (
     SatelliteValley("L", 2.329, 0.58e-3, 140.0, 1.64, 0.23, _VMR),

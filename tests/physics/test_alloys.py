@@ -252,3 +252,27 @@ def test_si_ge_offsets():
     sige = alloy_semiconductor("SiGe", 0.4)
     assert band_alignment("Si", sige).valence_offset_eV == pytest.approx(
         0.4 * (0.54 + (0.29 - 0.044) / 3), abs=1e-12)
+
+
+# ---------------------------------------------------------------- end to end
+@pytest.mark.parametrize(("family", "x", "binary"), [("InGaAs", 1.0, "InAs"), ("AlGaSb", 0.0, "GaSb"),
+                                                     ("SiGe", 0.0, "Si"), ("SiGe", 1.0, "Ge")])
+def test_endpoint_designs_give_the_binary_current(family, x, binary):
+    """A design of an alloy at an endpoint composition solves to the same current as the
+    binary's design, to round-off (endpoints equal the binaries, end to end)."""
+    from sub60.physics import solve_bias
+
+    alloy = solve_bias(Design(material=family, composition_x=x), 0.3, 0.3)
+    plain = solve_bias(Design(material=binary), 0.3, 0.3)
+    assert alloy.current_uA_per_um == pytest.approx(plain.current_uA_per_um, rel=1e-9, abs=1e-30)
+
+
+@pytest.mark.parametrize("family", list(ALLOYS))
+@pytest.mark.parametrize("x", [0.35, 0.7])
+def test_alloy_designs_solve(family, x):
+    """Every family at interior compositions gives a finite bias point (regression: no
+    source; the solver's own finite-result check runs inside solve_bias)."""
+    from sub60.physics import solve_bias
+
+    bp = solve_bias(Design(material=family, composition_x=x), 0.3, 0.3)
+    assert bp.current_uA_per_um >= 0.0
