@@ -102,7 +102,7 @@ FIELD_RANGES: dict[str, FieldSpec] = {
     "composition_x": FieldSpec(float, 0.0, 1.0,
                                help="x of an alloy material (InGaAs: In(x)Ga(1-x)As, AlGaSb: "
                                     "Al(x)Ga(1-x)Sb, GaAsSb: GaAs(x)Sb(1-x), InAsSb: "
-                                    "InAs(x)Sb(1-x), SiGe: Si(1-x)Ge(x)); unset otherwise [-]"),
+                                    "InAs(x)Sb(1-x), SiGe: Si(1-x)Ge(x)); 0 otherwise [-]"),
 }
 
 
@@ -143,10 +143,10 @@ class Design:
         gate extension over the source (+) or underlap (-) [nm].
     temperature_K : float
         temperature [K].
-    composition_x : float or None
-        composition of an alloy ``material`` ("InGaAs", "AlGaSb", "GaAsSb", "InAsSb",
-        "SiGe"; see `sub60.physics.materials.ALLOYS`), in [0, 1] [-]; required for an
-        alloy and must be unset (None) for any other material.
+    composition_x : float
+        composition x of an alloy ``material`` ("InGaAs": In(x)Ga(1-x)As, "AlGaSb",
+        "GaAsSb", "InAsSb", "SiGe": Si(1-x)Ge(x); see `sub60.physics.materials.ALLOYS`),
+        in [0, 1] [-]; must stay 0 (its default) for any other material.
     """
 
     material: str = "InAs"
@@ -168,7 +168,7 @@ class Design:
     gate_source_offset_nm: float = 0.0
     temperature_K: float = 300.0
     # materials: alloys and heterojunctions
-    composition_x: float | None = None
+    composition_x: float = 0.0
 
     def __post_init__(self) -> None:
         for f in dataclasses.fields(self):
@@ -178,13 +178,17 @@ class Design:
                     raise ValueError("oxide_permittivity: required when oxide='custom'; "
                                      f"allowed {FIELD_RANGES['oxide_permittivity'].describe()}")
                 continue
-            if f.name == "composition_x" and value is None:
-                continue
             object.__setattr__(self, f.name, _check(f.name, value))
-        # the body material: an alloy needs its composition, a fixed material has none
-        from sub60.physics.materials import semiconductor_for
+        # the body material: an alloy at its composition; a fixed material takes none
+        from sub60.physics.materials import ALLOYS, semiconductor_for
 
-        semiconductor_for(self.material, self.composition_x)
+        if self.material not in ALLOYS and self.composition_x != 0.0:
+            raise ValueError(
+                f"material: {self.material!r} is not an alloy, so composition_x = "
+                f"{self.composition_x:g} has no meaning; choose an alloy ({', '.join(ALLOYS)}) "
+                "or leave composition_x at 0")
+        semiconductor_for(self.material,
+                          self.composition_x if self.material in ALLOYS else None)
         # combinations: the gate must exist and start inside the device
         if self.gate_length_nm + self.gate_source_offset_nm < 2.0:
             raise ValueError(
@@ -227,9 +231,10 @@ class Design:
     def semiconductor(self) -> Semiconductor:
         """The body's material record: the named one, or the alloy at `composition_x`
         (`sub60.physics.materials.semiconductor_for`)."""
-        from sub60.physics.materials import semiconductor_for
+        from sub60.physics.materials import ALLOYS, semiconductor_for
 
-        return semiconductor_for(self.material, self.composition_x)
+        return semiconductor_for(self.material,
+                                 self.composition_x if self.material in ALLOYS else None)
 
     # ------------------------------------------------------------------ gate stack
     @property

@@ -35,8 +35,7 @@ from sub60.physics._cache import ByteLRU, CacheInfo, array_bytes
 from sub60.physics._threads import single_blas_thread
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
-from sub60.physics.indirect_tunnelling import has_phonon_assisted_model, indirect_band_to_band
-from sub60.physics.materials import check_tunnelling_material
+from sub60.physics.materials import check_tunnelling_material, group_iv_germanium_fraction
 from sub60.physics.metrics import (
     Metrics,
     figures_of_merit,
@@ -283,7 +282,9 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
     x = es.x_nm
     cprof = [BandProfile(s.label, cond[i], s.inplane_mass) for i, s in enumerate(sb.conduction)]
     vprof = [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)]
-    if has_phonon_assisted_model(d.semiconductor):  # Si, Ge, SiGe: indirect gap
+    if group_iv_germanium_fraction(d.semiconductor) is not None:  # Si, Ge, SiGe: indirect
+        from sub60.physics.indirect_tunnelling import indirect_band_to_band  # loaded when used
+
         spectrum = indirect_band_to_band(d.semiconductor, d.temperature_K, d.body_thickness_nm,
                                          x, cond.min(axis=0), val.max(axis=0), efs, efd, kT,
                                          bulk_gap_eV=float(es.frame.bands.eg_eV))

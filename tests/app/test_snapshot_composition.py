@@ -14,7 +14,7 @@ from sub60.physics.design import Design
 
 def test_old_snapshot_without_composition_opens_unchanged():
     doc = SnapshotSettings().to_dict()
-    assert doc["design"]["composition_x"] is None
+    assert doc["design"]["composition_x"] == 0.0
     del doc["design"]["composition_x"]
     settings, _ = import_snapshot(json.dumps(doc).encode())
     assert settings.design == Design()

@@ -191,21 +191,22 @@ def test_composition_errors_name_the_field():
 
 
 def test_design_composition_field():
-    """The Design carries composition_x: an alloy needs it, other materials refuse it;
-    old design dictionaries (without the field) open unchanged; JSON round trip."""
+    """The Design carries composition_x (default 0): an alloy uses it, other materials
+    refuse any other value; old design dictionaries (without the field) open unchanged;
+    JSON round trip."""
     old = Design().to_dict()
     del old["composition_x"]
     assert Design.from_dict(old) == Design()
-    assert Design().composition_x is None and Design().semiconductor is SEMICONDUCTORS["InAs"]
+    assert Design().composition_x == 0.0 and Design().semiconductor is SEMICONDUCTORS["InAs"]
     d = Design(material="ingaas", composition_x=0.53)
     assert d.material == "InGaAs" and d.semiconductor.name == "InGaAs (x = 0.53)"
     assert Design.from_json(d.to_json()) == d
-    with pytest.raises(ValueError, match=r"composition_x: required"):
-        Design(material="SiGe")
-    with pytest.raises(ValueError, match=r"^material: .*composition_x"):
+    assert Design(material="SiGe").semiconductor.name == "SiGe (x = 0)"
+    with pytest.raises(ValueError, match=r"^material: 'InAs' is not an alloy.*composition_x"):
         Design(composition_x=0.2)
-    with pytest.raises(ValueError, match=r"composition_x: 1.2 outside the allowed range \[0, 1\]"):
-        Design(material="SiGe", composition_x=1.2)
+    for bad in (1.2, None, float("nan")):
+        with pytest.raises(ValueError, match=r"^composition_x: .*\[0, 1\]"):
+            Design(material="SiGe", composition_x=bad)
     assert Design(material="In0.53Ga0.47As").semiconductor is SEMICONDUCTORS["In0.53Ga0.47As"]
 
 
