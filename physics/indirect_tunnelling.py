@@ -212,31 +212,29 @@ def has_phonon_assisted_model(semiconductor: Semiconductor) -> bool:
 def _path_fields(x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray, energy_eV: np.ndarray,
                  electron_mass: float) -> tuple[np.ndarray, np.ndarray]:
     """Average field along each energy's tunnel path [V/cm] (0: no path) and the WKB
-    transmission of the conduction-band barrier left after it [-]."""
-    fields = np.zeros(energy_eV.size)
-    rest = np.zeros(energy_eV.size)
-    for k, e in enumerate(energy_eV):
-        if ev_eV[0] < e:
-            continue
-        gone = np.flatnonzero(ev_eV < e)
-        if gone.size == 0:
-            continue
-        i = gone[0]  # first node past the source valence states; i - 1 still has them
-        xv = x_nm[i - 1] + (x_nm[i] - x_nm[i - 1]) * (ev_eV[i - 1] - e) / (ev_eV[i - 1] - ev_eV[i])
-        reach = np.flatnonzero(ec_eV[i:] <= e)
-        if reach.size == 0:
-            continue
-        j = i + reach[0]
-        if ec_eV[j - 1] <= e:  # the conduction band was already below E at i - 1
-            xc = x_nm[j - 1]
-        else:
-            xc = x_nm[j - 1] + (x_nm[j] - x_nm[j - 1]) * (ec_eV[j - 1] - e) / (ec_eV[j - 1] - ec_eV[j])
-        length_nm = max(xc - xv, 1e-3)
-        gap = float(np.interp(xc, x_nm, ec_eV - ev_eV))
-        fields[k] = gap / (length_nm * 1e-7)  # eV / cm -> V/cm
-        barrier = np.clip(ec_eV[j:] - e, 0.0, None)
-        kappa = np.sqrt(electron_mass * barrier / HBAR2_2M0_EV_NM2)  # 1/nm
-        rest[k] = math.exp(-2.0 * float(np.trapezoid(kappa, x_nm[j:]))) if barrier.any() else 1.0
+    transmission of the conduction-band barrier left after it [-] (all energies at once)."""
+    e = energy_eV[:, None]
+    nx = x_nm.size
+    idx = np.arange(nx)[None, :]
+    gone = ev_eV[None, :] < e  # no valence state at E
+    i = np.where(gone.any(axis=1), gone.argmax(axis=1), 0)  # first node past the source states
+    reach = (ec_eV[None, :] <= e) & (idx >= i[:, None])
+    j = reach.argmax(axis=1)
+    ok = (ev_eV[0] >= energy_eV) & (i > 0) & reach.any(axis=1)
+    i, j = np.where(ok, i, 1), np.where(ok, j, 1)
+    # turning points, linear between nodes
+    xv = x_nm[i - 1] + (x_nm[i] - x_nm[i - 1]) * (ev_eV[i - 1] - energy_eV) \
+        / np.where(ev_eV[i - 1] != ev_eV[i], ev_eV[i - 1] - ev_eV[i], 1.0)
+    already = ec_eV[j - 1] <= energy_eV  # the conduction band was below E one node earlier
+    xc = np.where(already, x_nm[j - 1], x_nm[j - 1] + (x_nm[j] - x_nm[j - 1])
+                  * (ec_eV[j - 1] - energy_eV)
+                  / np.where(ec_eV[j - 1] != ec_eV[j], ec_eV[j - 1] - ec_eV[j], 1.0))
+    length_nm = np.maximum(xc - xv, 1e-3)
+    gap = np.interp(xc, x_nm, ec_eV - ev_eV)
+    fields = np.where(ok, gap / (length_nm * 1e-7), 0.0)  # eV / cm -> V/cm
+    barrier = np.where(idx >= j[:, None], np.clip(ec_eV[None, :] - e, 0.0, None), 0.0)
+    kappa = np.sqrt(electron_mass * barrier / HBAR2_2M0_EV_NM2)  # 1/nm
+    rest = np.where(ok, np.exp(-2.0 * np.trapezoid(kappa, x_nm, axis=1)), 0.0)
     return fields, rest
 
 
