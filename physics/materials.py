@@ -180,7 +180,8 @@ class Semiconductor:
     name : str
         material name, e.g. "InAs".
     eg0_eV : float
-        band gap at 0 K [eV] (the lowest gap: Gamma for direct, X/L for Si/Ge).
+        band gap at 0 K [eV]: Gamma for the III-Vs (also for AlSb and Al-rich AlGaSb,
+        whose X gap is lower), the indirect X/L gap for Si, Ge, SiGe.
     varshni_alpha_eV_per_K : float
         Varshni alpha [eV/K].
     varshni_beta_K : float
