@@ -103,6 +103,23 @@ FIELD_RANGES: dict[str, FieldSpec] = {
                                help="x of an alloy material (InGaAs: In(x)Ga(1-x)As, AlGaSb: "
                                     "Al(x)Ga(1-x)Sb, GaAsSb: GaAs(x)Sb(1-x), InAsSb: "
                                     "InAs(x)Sb(1-x), SiGe: Si(1-x)Ge(x)); 0 otherwise [-]"),
+    # non-idealities: interface traps, series resistance
+    "interface_trap_density_cm2eV": FieldSpec(
+        float, 0.0, 1e14,
+        help="interface-trap density at the gate-oxide interfaces; midgap value of the "
+             "U-shaped profile; 0 = no traps [cm^-2 eV^-1]"),
+    "interface_trap_profile": FieldSpec(
+        str, choices=("uniform", "u-shaped"),
+        help="interface-trap energy profile over the gap: 'uniform', or 'u-shaped' "
+             "(cosh, 10x the midgap density at both band edges)"),
+    "interface_trap_neutral_level_eV": FieldSpec(
+        float, -1.0, 1.0,
+        help="charge-neutrality level of the interface traps above the bulk midgap; "
+             "acceptor-like above it, donor-like below [eV]"),
+    "source_resistance_ohm_um": FieldSpec(
+        float, 0.0, 5000.0, help="series resistance of the source access, per width [ohm um]"),
+    "drain_resistance_ohm_um": FieldSpec(
+        float, 0.0, 5000.0, help="series resistance of the drain access, per width [ohm um]"),
 }
 
 
@@ -147,6 +164,25 @@ class Design:
         composition x of an alloy ``material`` ("InGaAs": In(x)Ga(1-x)As, "AlGaSb",
         "GaAsSb", "InAsSb", "SiGe": Si(1-x)Ge(x); see `sub60.physics.materials.ALLOYS`),
         in [0, 1] [-]; must stay 0 (its default) for any other material.
+    interface_trap_density_cm2eV : float
+        interface-trap density D_it at the gate-oxide interface(s): the value across the
+        gap ('uniform') or at midgap ('u-shaped') [cm^-2 eV^-1]
+        (`sub60.physics.interface_traps`).
+    interface_trap_profile : str
+        "uniform" or "u-shaped" (cosh over the gap, 10x the midgap value at both edges).
+    interface_trap_neutral_level_eV : float
+        charge-neutrality level above the bulk midgap of the body: traps above it are
+        acceptor-like, below it donor-like [eV].
+    source_resistance_ohm_um, drain_resistance_ohm_um : float
+        series resistances of the source and drain accesses, per width [ohm um]; the bias
+        point is solved self-consistently at the internal voltages
+        (`sub60.physics.series_resistance`).
+
+    Notes
+    -----
+    The non-idealities (interface traps, series resistance) are off by default: the
+    ideal device is the reference every other figure is compared with, and their values
+    depend on the process, not on the design; presets set a stated "typical process".
     """
 
     material: str = "InAs"
@@ -169,6 +205,12 @@ class Design:
     temperature_K: float = 300.0
     # materials: alloys and heterojunctions
     composition_x: float = 0.0
+    # non-idealities: interface traps, series resistance
+    interface_trap_density_cm2eV: float = 0.0
+    interface_trap_profile: str = "uniform"
+    interface_trap_neutral_level_eV: float = 0.0
+    source_resistance_ohm_um: float = 0.0
+    drain_resistance_ohm_um: float = 0.0
 
     def __post_init__(self) -> None:
         for f in dataclasses.fields(self):

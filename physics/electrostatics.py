@@ -30,6 +30,8 @@ class Electrostatics:
     iterations : Newton steps; residual_V : final scaled residual [V];
     history : largest Newton update of each step [V]
     frame : the bias-independent structure (mesh, doping, operator)
+    interface_charge_cm2 : (nx, ny) charge of the gate-oxide interface traps in units of
+        q, non-zero on the interface nodes only, or None without traps [cm^-2]
     """
 
     design: Design
@@ -48,12 +50,13 @@ class Electrostatics:
     residual_V: float
     history: tuple[float, ...]
     frame: DeviceFrame
+    interface_charge_cm2: np.ndarray | None = None
 
     @property
     def nbytes(self) -> int:
         """Bytes of this solution's own arrays (the shared `frame` not counted) [B]."""
         return array_bytes(self.psi_V, self.n_cm3, self.p_cm3, self.bulk_ec_eV,
-                           self.bulk_ev_eV, self.efn_eV, self.efp_eV)
+                           self.bulk_ev_eV, self.efn_eV, self.efp_eV, self.interface_charge_cm2)
 
     def __repr__(self) -> str:
         return (f"Electrostatics({self.design.material}, Vg = {self.vg_V:g} V, "
@@ -117,4 +120,5 @@ def solve_electrostatics(
         design=design, vg_V=vg_V, vd_V=vd_V, x_nm=frame.mesh.x_nm, y_nm=frame.mesh.y_nm,
         psi_V=sol.psi_V, n_cm3=sol.n_cm3, p_cm3=sol.p_cm3, bulk_ec_eV=ec, bulk_ev_eV=ec - b.eg_eV,
         efn_eV=sol.efn_eV, efp_eV=sol.efp_eV, iterations=sol.iterations,
-        residual_V=sol.residual_V, history=tuple(sol.history), frame=frame)
+        residual_V=sol.residual_V, history=tuple(sol.history), frame=frame,
+        interface_charge_cm2=sol.interface_charge_cm2)

@@ -32,6 +32,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 import scipy.linalg as sla
@@ -43,6 +44,9 @@ from sub60.physics.mesh import Mesh
 from sub60.physics.statistics import fermi_half_and_minus_half, inverse_fermi_half
 
 # charge term of the residual = QE_V_NM2_CM3 * (control area [nm^2]) * density [cm^-3] -> [V]
+# a sheet density sigma [cm^-2] on a node of width dx [nm] counts as sigma * dx * 1e7
+# [cm^-3 nm^2] (1 cm^-2 = 1e7 nm cm^-3)
+_SHEET_NM_PER_CM = 1e7
 
 
 class SolverError(RuntimeError):
@@ -157,6 +161,11 @@ class PoissonProblem:
     extra_charge_cm3 : optional (nx, ny) fixed charge added to the doping at semiconductor
     nodes [cm^-3] (a manufactured source: how the solver is verified, see
     tests/physics/test_poisson_verification.py).
+    interface_traps : optional trapped sheet charge at interface nodes, an object with
+    ``nodes`` ((nx, ny) bool), ``width_nm`` ((nx, ny) [nm]) and ``sheet_charge(n, p, dn,
+    dp) -> (sigma [cm^-2], d sigma / d psi [cm^-2 V^-1])`` evaluated on those nodes
+    (`sub60.physics.interface_traps.InterfaceTraps`); it enters (1) as a surface charge
+    q sigma on the node's control-volume face and its derivative enters the Jacobian.
     """
 
     mesh: Mesh
@@ -170,6 +179,7 @@ class PoissonProblem:
     carriers: bool = True
     split_efn: tuple[float, float, float, float] | None = None
     extra_charge_cm3: np.ndarray | None = None
+    interface_traps: Any = None
 
 
 @dataclass
@@ -184,6 +194,7 @@ class PoissonSolution:
     iterations: int
     residual_V: float
     history: list[float] = field(default_factory=list)
+    interface_charge_cm2: np.ndarray | None = None  # (nx, ny) trapped sheet charge / q, or None
 
 
 class PoissonOperator:
@@ -295,6 +306,11 @@ def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: Poisso
     body_j = int(np.argmin(np.abs(mesh.y_nm - 0.5 * (y_lo + y_hi))))
     free = ~op.fixed
     efp2 = problem.efp_eV[:, None]
+    traps = problem.interface_traps
+    if traps is not None:
+        tmask = traps.nodes
+        tflat = np.flatnonzero(tmask.ravel())
+        sheet_scale = QE_V_NM2_CM3 * _SHEET_NM_PER_CM * traps.width_nm[tmask]
 
     def residual(psi_flat: np.ndarray, efn: np.ndarray):
         psi2 = psi_flat.reshape(nx, ny)
@@ -307,6 +323,10 @@ def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: Poisso
             rho = doping
             dq = np.zeros_like(psi2)
         f = op.matrix @ psi_flat - (QE_V_NM2_CM3 * area * rho).ravel()
+        if traps is not None and problem.carriers:
+            sigma, dsigma = traps.sheet_charge(n[tmask], p[tmask], dn[tmask], dp[tmask])
+            f[tflat] -= sheet_scale * sigma
+            dq[tmask] -= sheet_scale * dsigma
         f[~free] = 0.0
         return f, dq.ravel(), n, p
 
@@ -363,8 +383,13 @@ def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: Poisso
                 continue
         res = float(np.max(np.abs(f / np.where(op.fixed, 1.0, op.banded[-1] + dq))))
         if (t * step < tol_V or (step < 1e-4 and res < 0.1 * tol_V)) or not problem.carriers:
+            trapped = None
+            if traps is not None and problem.carriers:
+                trapped = np.zeros((nx, ny))
+                zero = np.zeros(tflat.size)
+                trapped[tmask] = traps.sheet_charge(n[tmask], p[tmask], zero, zero)[0]
             return PoissonSolution(
                 psi_V=psi.reshape(nx, ny), n_cm3=n * semi_nodes, p_cm3=p * semi_nodes,
                 efn_eV=np.asarray(efn, float), efp_eV=np.asarray(problem.efp_eV, float),
-                iterations=it, residual_V=res, history=history)
+                iterations=it, residual_V=res, history=history, interface_charge_cm2=trapped)
     raise SolverError(f"Newton did not converge in {max_iter} steps", history)

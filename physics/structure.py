@@ -8,7 +8,8 @@ junction tails: common practice, no source). A gradient of 0 gives abrupt steps.
 
 Boundary conditions: gates are Dirichlet, psi = V_g - phi_m (the vacuum level at the
 metal sits phi_m above its Fermi level, which is -q V_g on our energy scale); a single
-gate's back plane is the gate metal, grounded. Source and drain ends are ohmic:
+gate's back plane is the gate metal, grounded. Interface traps (when D_it > 0) are a
+sheet charge on the body's gate-oxide interface nodes (`interface_traps`). Source and drain ends are ohmic:
 charge-neutral potential for the local doping and quasi-Fermi levels. Every other
 outer surface has zero normal field.
 
@@ -28,6 +29,7 @@ import numpy as np
 from sub60.physics._cache import ByteLRU, array_bytes
 from sub60.physics.constants import thermal_energy_eV
 from sub60.physics.design import Design
+from sub60.physics.interface_traps import InterfaceTraps, build_interface_traps
 from sub60.physics.materials import BURIED_OXIDE, Dielectric, get_dielectric
 from sub60.physics.mesh import Mesh, graded_axis, layered_y_axis
 from sub60.physics.poisson import BandParameters, PoissonOperator, PoissonProblem, neutral_potential
@@ -116,6 +118,7 @@ class DeviceFrame:
     contact_cache: dict = field(default_factory=dict, compare=False)  # V_d -> end potentials
     resolution: float = 1.0  # grid refinement factor it was built with [-]
     quantum_correction: bool = True  # charge band edges shifted by the lowest subbands
+    interface_traps: InterfaceTraps | None = None  # gate-oxide interface traps, None when off
 
     def built_for(self, design: Design, resolution: float, quantum_correction: bool) -> bool:
         """True if this frame is the structure of these arguments of `build_frame`."""
@@ -133,11 +136,19 @@ class DeviceFrame:
         return array_bytes(m.x_nm, m.y_nm, m.cell_permittivity, m.cell_semiconductor,
                            self.donors_cm3, self.acceptors_cm3, self.gate_nodes,
                            self.back_nodes, self.contact_nodes, op.area_semi, op.fixed,
-                           op.banded, op.matrix.data, op.matrix.indices, op.matrix.indptr)
+                           op.banded, op.matrix.data, op.matrix.indices, op.matrix.indptr,
+                           *_trap_arrays(self.interface_traps))
 
     def __repr__(self) -> str:
         return (f"DeviceFrame({self.design.material}, {self.mesh.nx} x {self.mesh.ny} nodes, "
                 f"{self.nbytes / 2**20:.1f} MiB)")
+
+
+def _trap_arrays(traps: InterfaceTraps | None) -> tuple[np.ndarray, ...]:
+    if traps is None:
+        return ()
+    return (traps.nodes, traps.weights_cm2eV, traps.n1_cm3, traps.p1_cm3,
+            np.empty(traps.width_nm.shape))  # the width is a broadcast view: count it full
 
 
 #: Memory budget of the process-wide cache of device structures (`build_frame`) [B]. The
@@ -190,7 +201,34 @@ def _frame(design: Design, resolution: float, quantum_correction: bool) -> Devic
     body_j = int(np.argmin(np.abs(mesh.y_nm - 0.5 * (y_lo + y_hi))))
     op = PoissonOperator(mesh, gate | back | contact)
     return DeviceFrame(design, mesh, donors, acceptors, bands, gate, back, contact, op, body_j,
-                       resolution=resolution, quantum_correction=quantum_correction)
+                       resolution=resolution, quantum_correction=quantum_correction,
+                       interface_traps=interface_traps(design, mesh, bands))
+
+
+def gate_oxide_interface_nodes(design: Design, mesh: Mesh) -> np.ndarray:
+    """(nx, ny) mask of the nodes on the body's gate-oxide interface(s) [-]: both faces
+    of a double-gate body, the top face of a single-gate body (the buried-oxide face is
+    not a gate oxide), along the whole length (gated or not)."""
+    y_lo, y_hi = mesh.body_bounds_nm()
+    rows = [int(np.argmin(np.abs(mesh.y_nm - y_hi)))]
+    if design.gate_layout == "double":
+        rows.append(int(np.argmin(np.abs(mesh.y_nm - y_lo))))
+    mask = np.zeros((mesh.nx, mesh.ny), bool)
+    mask[:, rows] = True
+    return mask
+
+
+def interface_traps(design: Design, mesh: Mesh, bands: BandParameters) -> InterfaceTraps | None:
+    """The design's gate-oxide interface traps on a mesh, or None when D_it = 0
+    (`sub60.physics.interface_traps`)."""
+    if design.interface_trap_density_cm2eV <= 0.0:
+        return None
+    nodes = gate_oxide_interface_nodes(design, mesh)
+    width = np.broadcast_to(mesh.dx_nm[:, None], nodes.shape)
+    return build_interface_traps(
+        nodes, width, bands.eg_eV, bands.nc_cm3, bands.nv_cm3, bands.kT_eV, bands.dec_eV,
+        bands.dev_eV, design.interface_trap_density_cm2eV, design.interface_trap_profile,
+        design.interface_trap_neutral_level_eV)
 
 
 def quasi_fermi_levels(x_nm: np.ndarray, vd_V: float) -> tuple[np.ndarray, np.ndarray]:
@@ -231,7 +269,8 @@ def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProb
     values[-1, :] = np.where(frame.contact_nodes[-1], psi_end[1], values[-1, :])
     return PoissonProblem(mesh=mesh, donors_cm3=frame.donors_cm3, acceptors_cm3=frame.acceptors_cm3,
                           bands=frame.bands, dirichlet=frame.dirichlet, dirichlet_psi_V=values,
-                          efn_eV=efn, efp_eV=efp, split_efn=split)
+                          efn_eV=efn, efp_eV=efp, split_efn=split,
+                          interface_traps=frame.interface_traps)
 
 
 def _contact_potentials(frame: DeviceFrame, vd_key: float, net, efn, efp) -> np.ndarray:
