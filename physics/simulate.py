@@ -43,6 +43,7 @@ from sub60.physics.metrics import (
     refine_curve,
 )
 from sub60.physics.poisson import SolverError
+from sub60.physics.series_resistance import SeriesSolution, solve_series_resistance
 from sub60.physics.statistics import inverse_fermi_half
 from sub60.physics.structure import band_parameters
 from sub60.physics.subbands import device_subbands, valley_warning
@@ -90,6 +91,12 @@ class BiasPoint:
     timings_s : wall time of each stage [s]
     warnings : model-validity warnings (e.g. an indirect-gap material)
     solver_notes : fallbacks the solve needed (bias ramp, damping, finer grid); empty if none
+    series_resistance : with access resistances (``design.source_resistance_ohm_um``,
+        ``drain_resistance_ohm_um``), the self-consistent solution of
+        `sub60.physics.series_resistance` (intrinsic voltages, the current at the external
+        bias without the resistances, solves used), else None. ``vg_V`` / ``vd_V`` are
+        then the external voltages and ``electrostatics`` (bands, Fermi levels) is at the
+        intrinsic ones.
     """
 
     design: Design
@@ -112,6 +119,7 @@ class BiasPoint:
     warnings: tuple[str, ...] = ()
     solver_notes: tuple[str, ...] = ()
     pair_currents_uA_per_um: dict[str, float] = field(default_factory=dict)
+    series_resistance: SeriesSolution | None = None
 
     @property
     def subband_ec_eV(self) -> np.ndarray:
@@ -186,7 +194,10 @@ class TransferCurve:
     requested gate voltages (the point swing from those samples alone); vg_refined_V,
     id_refined_uA_per_um : the requested samples plus those added by
     `physics.metrics.refine_curve`, from which the metrics are taken (equal to the
-    requested ones without refinement).
+    requested ones without refinement). With access resistances (else None):
+    intrinsic_id_uA_per_um, the current of the device without them at the same terminal
+    voltages, and vg_intrinsic_V, vd_intrinsic_V, the voltages the intrinsic device sees
+    at each requested point (`sub60.physics.series_resistance`).
     """
 
     design: Design
@@ -199,15 +210,24 @@ class TransferCurve:
     metrics: Metrics
     vg_refined_V: np.ndarray | None = None
     id_refined_uA_per_um: np.ndarray | None = None
+    intrinsic_id_uA_per_um: np.ndarray | None = None
+    vg_intrinsic_V: np.ndarray | None = None
+    vd_intrinsic_V: np.ndarray | None = None
 
     def columns(self) -> dict[str, np.ndarray]:
         """vg_V, id_uA_per_um, ss_mV_per_dec (point swing), btbt_uA_per_um and
-        thermionic_uA_per_um as numpy columns."""
-        return {"vg_V": np.asarray(self.vg_V, float),
-                "id_uA_per_um": np.asarray(self.id_uA_per_um, float),
-                "ss_mV_per_dec": np.asarray(self.ss_mV_per_dec, float),
-                "btbt_uA_per_um": np.asarray(self.btbt_uA_per_um, float),
-                "thermionic_uA_per_um": np.asarray(self.thermionic_uA_per_um, float)}
+        thermionic_uA_per_um as numpy columns; with access resistances also
+        intrinsic_id_uA_per_um, vg_intrinsic_V and vd_intrinsic_V."""
+        out = {"vg_V": np.asarray(self.vg_V, float),
+               "id_uA_per_um": np.asarray(self.id_uA_per_um, float),
+               "ss_mV_per_dec": np.asarray(self.ss_mV_per_dec, float),
+               "btbt_uA_per_um": np.asarray(self.btbt_uA_per_um, float),
+               "thermionic_uA_per_um": np.asarray(self.thermionic_uA_per_um, float)}
+        if self.intrinsic_id_uA_per_um is not None:
+            out["intrinsic_id_uA_per_um"] = np.asarray(self.intrinsic_id_uA_per_um, float)
+            out["vg_intrinsic_V"] = np.asarray(self.vg_intrinsic_V, float)
+            out["vd_intrinsic_V"] = np.asarray(self.vd_intrinsic_V, float)
+        return out
 
     def to_table(self) -> Any:
         """`columns` as a pandas DataFrame (a dict of numpy columns without pandas)."""
@@ -222,12 +242,16 @@ class TransferCurve:
 
 @dataclass(frozen=True)
 class OutputCurve:
-    """Id-Vd of a design at fixed V_g."""
+    """Id-Vd of a design at fixed V_g; with access resistances also intrinsic_id_uA_per_um
+    (the device without them at the same terminal voltages) and vd_intrinsic_V (the drain
+    voltage the intrinsic device sees), else None."""
 
     design: Design
     vg_V: float
     vd_V: np.ndarray
     id_uA_per_um: np.ndarray
+    intrinsic_id_uA_per_um: np.ndarray | None = None
+    vd_intrinsic_V: np.ndarray | None = None
 
     def columns(self) -> dict[str, np.ndarray]:
         """vd_V and id_uA_per_um as numpy columns (`output_columns` puts several gate
@@ -479,11 +503,14 @@ class Simulator:
         with self._lock:
             start = initial or self._last.get(design)
         with single_blas_thread():
-            t0 = time.perf_counter()
-            es, notes = self._electrostatics(design, vg_V, vd_V, start)
-            t1 = time.perf_counter()
-            bp = bias_point_from_electrostatics(es, self.model)
-        bp.timings_s["poisson"] = t1 - t0
+            if design.source_resistance_ohm_um > 0 or design.drain_resistance_ohm_um > 0:
+                bp, es, notes = self._series_point(design, vg_V, vd_V, start)
+            else:
+                t0 = time.perf_counter()
+                es, notes = self._electrostatics(design, vg_V, vd_V, start)
+                t1 = time.perf_counter()
+                bp = bias_point_from_electrostatics(es, self.model)
+                bp.timings_s["poisson"] = t1 - t0
         if notes:
             bp = dataclasses.replace(bp, solver_notes=notes)
         _check_finite(bp)
@@ -495,6 +522,35 @@ class Simulator:
                 self._last.pop(next(iter(self._last)))
         self._cache.put(key, bp)
         return bp
+
+    def _series_point(self, design: Design, vg_V: float, vd_V: float, start: Electrostatics | None
+                      ) -> tuple[BiasPoint, Electrostatics, tuple[str, ...]]:
+        """A bias point with access resistances: intrinsic solves at V_gs' = V_g - I R_s,
+        V_ds' = V_d - I (R_s + R_d) until the current is self-consistent
+        (`series_resistance.solve_series_resistance`), each warm-started from the last.
+        Timings are summed over the solves."""
+        state: dict[str, Any] = {"start": start, "notes": ()}
+        timings: dict[str, float] = {}
+
+        def intrinsic(vg: float, vd: float) -> float:
+            t0 = time.perf_counter()
+            es, notes = self._electrostatics(design, vg, vd, state["start"])
+            t1 = time.perf_counter()
+            bp = bias_point_from_electrostatics(es, self.model)
+            for stage, dt in {**bp.timings_s, "poisson": t1 - t0}.items():
+                timings[stage] = timings.get(stage, 0.0) + dt
+            state.update(start=es, bp=bp, notes=state["notes"] + tuple(
+                n for n in notes if n not in state["notes"]))
+            return bp.current_uA_per_um
+
+        try:
+            sol = solve_series_resistance(intrinsic, vg_V, vd_V, design.source_resistance_ohm_um,
+                                          design.drain_resistance_ohm_um)
+        except ArithmeticError as exc:
+            raise SolverError(str(exc)) from None
+        bp = dataclasses.replace(state["bp"], vg_V=vg_V, vd_V=vd_V, series_resistance=sol,
+                                 timings_s=timings)
+        return bp, state["start"], state["notes"]
 
     def _electrostatics(self, design: Design, vg_V: float, vd_V: float,
                         start: Electrostatics | None) -> tuple[Electrostatics, tuple[str, ...]]:
@@ -598,8 +654,10 @@ class Simulator:
         # the point swing of the requested samples alone: a refinement decision (which
         # can differ between two solves of the same curve at round-off) never changes it
         swing = point_swing_mV_per_dec(vg, current)
+        series = _series_columns(points)
         return TransferCurve(design, float(vd_V), vg, current, btbt, therm, swing, metrics,
-                             vg_all, id_all)
+                             vg_all, id_all, series.get("intrinsic"), series.get("vg"),
+                             series.get("vd"))
 
     def output_curve(self, design: Design, vg_V: float, vd_V: np.ndarray,
                      slots: threading.Semaphore | None = None) -> OutputCurve:
@@ -611,7 +669,19 @@ class Simulator:
                 points.append(self.solve_bias(design, vg_V, float(v),
                                               initial=_predict(points, float(v), "vd_V")))
         out = [p.current_uA_per_um for p in points]
-        return OutputCurve(design, float(vg_V), vd, np.array(out))
+        series = _series_columns(points)
+        return OutputCurve(design, float(vg_V), vd, np.array(out), series.get("intrinsic"),
+                           series.get("vd"))
+
+
+def _series_columns(points: list[BiasPoint]) -> dict[str, np.ndarray]:
+    """Intrinsic current and voltages of solved points with access resistances ({} without)."""
+    if not points or points[0].series_resistance is None:
+        return {}
+    sols = [p.series_resistance for p in points]
+    return {"intrinsic": np.array([s.current_at_external_bias_uA_per_um for s in sols]),
+            "vg": np.array([s.vg_intrinsic_V for s in sols]),
+            "vd": np.array([s.vd_intrinsic_V for s in sols])}
 
 
 def _check_finite(bp: BiasPoint) -> None:

@@ -1,0 +1,154 @@
+"""Series resistance of the source and drain accesses, solved self-consistently per bias.
+
+Sign convention (source grounded outside the device, drain current I > 0 flowing into
+the drain for V_d > 0): the current raises the internal source node by I R_s and drops
+I R_d across the drain access, so the intrinsic device sees
+
+    V_gs' = V_g - I R_s,      V_ds' = V_d - I (R_s + R_d)                         (1)
+
+and the external current is the intrinsic current at those voltages, I = I_int(V_gs',
+V_ds') (the usual lumped access-resistance model: Sze & Ng, *Physics of Semiconductor
+Devices*, 3rd ed., 2007, sec. 6.2.5; Taur & Ning, *Fundamentals of Modern VLSI Devices*,
+2nd ed., 2009, sec. 4.2). Resistances are per width [ohm um], currents per width
+[uA/um], so I R [V] = 1e-6 x (I [uA/um]) x (R [ohm um]).
+
+The scalar equation h(I) = I - I_int(V(I)) = 0 is solved on the current: the first
+solve is at the external bias (I = 0 in (1)), which gives the intrinsic current
+I_0 = I_int(V_g, V_d); then a fixed-point step to I_0 and secant steps, kept inside the
+bracket of the latest points on either side of the root once there is one (bisection
+when a secant step leaves it; for a device whose current grows with V_gs' and V_ds',
+h(0) = -I_0 and h(I_0) already bracket it). A point is
+converged when the external bias implied by the solved point, V' + I_int(V') R, is within
+``tol_V`` of the requested one, i.e. |I_int(V(I)) - I| (R_s + R_d) <= tol_V. In
+subthreshold, where I_0 (R_s + R_d) is below ``tol_V``, the first solve is already
+converged (no extra solve).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+from sub60.physics.design import VD_RANGE_V, VG_RANGE_V
+
+#: [V] per (uA/um x ohm um).
+_VOLT_PER_UA_OHM = 1e-6
+
+#: Default tolerance on the external bias a series-resistance point reproduces [V].
+SERIES_TOLERANCE_V = 1e-5
+
+
+@dataclass(frozen=True)
+class SeriesSolution:
+    """A self-consistent point of eq. (1).
+
+    current_uA_per_um : external (= intrinsic) drain current [uA/um]
+    vg_intrinsic_V, vd_intrinsic_V : V_gs', V_ds' of the last solve [V]
+    current_at_external_bias_uA_per_um : I_0, the intrinsic current at the external
+        voltages (the device without its access resistances) [uA/um]
+    solves : intrinsic solves used (1 = no extra solve) [-]
+    """
+
+    current_uA_per_um: float
+    vg_intrinsic_V: float
+    vd_intrinsic_V: float
+    current_at_external_bias_uA_per_um: float
+    solves: int
+
+    @property
+    def extra_solves(self) -> int:
+        """Solves beyond the one at the external bias [-]."""
+        return self.solves - 1
+
+
+def intrinsic_bias(vg_V: float, vd_V: float, current_uA_per_um: float, source_resistance_ohm_um: float,
+                   drain_resistance_ohm_um: float) -> tuple[float, float]:
+    """V_gs', V_ds' of eq. (1) for a current [V], clipped to the solvers' bias ranges.
+
+    Parameters
+    ----------
+    vg_V, vd_V : float
+        external gate and drain voltages (source grounded) [V].
+    current_uA_per_um : float
+        drain current per width [uA/um].
+    source_resistance_ohm_um, drain_resistance_ohm_um : float
+        access resistances per width [ohm um].
+    """
+    drop_s = _VOLT_PER_UA_OHM * current_uA_per_um * source_resistance_ohm_um
+    drop_d = _VOLT_PER_UA_OHM * current_uA_per_um * drain_resistance_ohm_um
+    vg = min(max(vg_V - drop_s, VG_RANGE_V[0]), VG_RANGE_V[1])
+    vd = min(max(vd_V - drop_s - drop_d, VD_RANGE_V[0]), VD_RANGE_V[1])
+    return vg, vd
+
+
+def solve_series_resistance(
+    intrinsic: Callable[[float, float], float],
+    vg_V: float,
+    vd_V: float,
+    source_resistance_ohm_um: float,
+    drain_resistance_ohm_um: float,
+    tol_V: float = SERIES_TOLERANCE_V,
+    max_solves: int = 12,
+) -> SeriesSolution:
+    """Drain current with access resistances, eq. (1), by a bracketed secant on the current.
+
+    Parameters
+    ----------
+    intrinsic : callable
+        ``intrinsic(vg_int_V, vd_int_V) -> current [uA/um]``: one intrinsic solve (the
+        caller keeps the solved point of the last call).
+    vg_V, vd_V : float
+        external bias [V].
+    source_resistance_ohm_um, drain_resistance_ohm_um : float
+        R_s, R_d [ohm um] (non-negative).
+    tol_V : float
+        tolerance on the external bias the converged point reproduces [V].
+    max_solves : int
+        intrinsic solves allowed [-].
+
+    Returns
+    -------
+    SeriesSolution
+
+    Raises
+    ------
+    ArithmeticError
+        when no point within ``tol_V`` is found in ``max_solves`` solves.
+    """
+    r_tot = _VOLT_PER_UA_OHM * (source_resistance_ohm_um + drain_resistance_ohm_um)
+
+    def evaluate(current: float) -> tuple[float, float, float]:
+        vg, vd = intrinsic_bias(vg_V, vd_V, current, source_resistance_ohm_um, drain_resistance_ohm_um)
+        return intrinsic(vg, vd), vg, vd
+
+    i0, vg0, vd0 = evaluate(0.0)
+    if abs(i0) * r_tot <= tol_V:
+        return SeriesSolution(i0, vg0, vd0, i0, 1)
+    # h(I) = I - I_int(V(I)): h(0) = -i0; the next point is the fixed-point step I = i0
+    points = [(0.0, -i0)]
+    trial = i0
+    solves = 1
+    while solves < max_solves:
+        value, vg, vd = evaluate(trial)
+        solves += 1
+        h = trial - value
+        if abs(h) * r_tot <= tol_V:
+            return SeriesSolution(value, vg, vd, i0, solves)
+        points.append((trial, h))
+        (x1, h1), (x2, h2) = points[-2], points[-1]
+        step = x2 - x1
+        nxt = x2 - h2 * step / (h2 - h1) if h2 != h1 else x2 + step
+        # the latest points on either side of the root bracket it (h rises with I for a
+        # device whose current grows with V_gs' and V_ds': dh/dI = 1 + R dI_int/dV)
+        below = [x for x, hh in points if hh < 0]
+        above = [x for x, hh in points if hh > 0]
+        if below and above:
+            a, b = sorted((below[-1], above[-1]))
+            if not a < nxt < b:
+                nxt = 0.5 * (a + b)
+        elif abs(nxt - x2) > 4 * abs(step):  # no bracket yet: a bounded secant step
+            nxt = x2 + 4 * abs(step) * (1 if nxt > x2 else -1)
+        trial = nxt
+    raise ArithmeticError(
+        f"series resistance: no self-consistent current within {tol_V:g} V in {max_solves} "
+        f"solves at Vg = {vg_V:g} V, Vd = {vd_V:g} V")
