@@ -14,7 +14,8 @@ Devices*, 3rd ed., 2007, sec. 6.2.5; Taur & Ning, *Fundamentals of Modern VLSI D
 
 The scalar equation h(I) = I - I_int(V(I)) = 0 is solved on the current: the first
 solve is at the external bias (I = 0 in (1)), which gives the intrinsic current
-I_0 = I_int(V_g, V_d); then a fixed-point step to I_0 and secant steps, kept inside the
+I_0 = I_int(V_g, V_d); then a fixed-point step to I_0 (or, in a sweep, to the current
+the previous points predict) and secant steps, kept inside the
 bracket of the latest points on either side of the root once there is one (bisection
 when a secant step leaves it; for a device whose current grows with V_gs' and V_ds',
 h(0) = -I_0 and h(I_0) already bracket it). A point is
@@ -89,6 +90,7 @@ def solve_series_resistance(
     drain_resistance_ohm_um: float,
     tol_V: float = SERIES_TOLERANCE_V,
     max_solves: int = 12,
+    ratio_guess: float | None = None,
 ) -> SeriesSolution:
     """Drain current with access resistances, eq. (1), by a bracketed secant on the current.
 
@@ -105,6 +107,10 @@ def solve_series_resistance(
         tolerance on the external bias the converged point reproduces [V].
     max_solves : int
         intrinsic solves allowed [-].
+    ratio_guess : float or None
+        predicted I / I_0 (e.g. extrapolated from the previous points of a sweep) [-]:
+        the second solve is at I = ratio_guess x I_0 instead of the fixed-point step I_0;
+        ignored unless in (0, 1].
 
     Returns
     -------
@@ -124,9 +130,10 @@ def solve_series_resistance(
     i0, vg0, vd0 = evaluate(0.0)
     if abs(i0) * r_tot <= tol_V:
         return SeriesSolution(i0, vg0, vd0, i0, 1)
-    # h(I) = I - I_int(V(I)): h(0) = -i0; the next point is the fixed-point step I = i0
+    # h(I) = I - I_int(V(I)): h(0) = -i0; the next point is the predicted current, or
+    # the fixed-point step I = i0
     points = [(0.0, -i0)]
-    trial = i0
+    trial = i0 * ratio_guess if ratio_guess is not None and 0 < ratio_guess <= 1 else i0
     solves = 1
     while solves < max_solves:
         value, vg, vd = evaluate(trial)

@@ -469,6 +469,8 @@ class Simulator:
             cache_bytes, lambda bp: bp.nbytes,
             lambda bp: (id(bp.electrostatics.frame), bp.electrostatics.frame.nbytes))
         self._last: OrderedDict[Design, Electrostatics] = OrderedDict()
+        # (V_g, V_d, I / I_0) of the last two stored points with access resistances
+        self._series_ratios: OrderedDict[Design, list[tuple[float, float, float]]] = OrderedDict()
         self._lock = threading.RLock()
 
     def __repr__(self) -> str:
@@ -486,6 +488,7 @@ class Simulator:
         with self._lock:
             self._cache.clear()
             self._last.clear()
+            self._series_ratios.clear()
 
     def solve_bias(self, design: Design, vg_V: float, vd_V: float,
                    initial: Electrostatics | None = None, store: bool = True) -> BiasPoint:
@@ -504,7 +507,7 @@ class Simulator:
             start = initial or self._last.get(design)
         with single_blas_thread():
             if design.source_resistance_ohm_um > 0 or design.drain_resistance_ohm_um > 0:
-                bp, es, notes = self._series_point(design, vg_V, vd_V, start)
+                bp, es, notes = self._series_point(design, vg_V, vd_V, start, store)
             else:
                 t0 = time.perf_counter()
                 es, notes = self._electrostatics(design, vg_V, vd_V, start)
@@ -523,12 +526,13 @@ class Simulator:
         self._cache.put(key, bp)
         return bp
 
-    def _series_point(self, design: Design, vg_V: float, vd_V: float, start: Electrostatics | None
-                      ) -> tuple[BiasPoint, Electrostatics, tuple[str, ...]]:
+    def _series_point(self, design: Design, vg_V: float, vd_V: float, start: Electrostatics | None,
+                      store: bool) -> tuple[BiasPoint, Electrostatics, tuple[str, ...]]:
         """A bias point with access resistances: intrinsic solves at V_gs' = V_g - I R_s,
         V_ds' = V_d - I (R_s + R_d) until the current is self-consistent
-        (`series_resistance.solve_series_resistance`), each warm-started from the last.
-        Timings are summed over the solves."""
+        (`series_resistance.solve_series_resistance`), each warm-started from the last;
+        the ratio I / I_0 of the design's last two stored points, extrapolated to this
+        bias, places the second solve. Timings are summed over the solves."""
         state: dict[str, Any] = {"start": start, "notes": ()}
         timings: dict[str, float] = {}
 
@@ -543,11 +547,21 @@ class Simulator:
                 n for n in notes if n not in state["notes"]))
             return bp.current_uA_per_um
 
+        with self._lock:
+            history = list(self._series_ratios.get(design, ()))
         try:
             sol = solve_series_resistance(intrinsic, vg_V, vd_V, design.source_resistance_ohm_um,
-                                          design.drain_resistance_ohm_um)
+                                          design.drain_resistance_ohm_um,
+                                          ratio_guess=_extrapolate_ratio(history, vg_V, vd_V))
         except ArithmeticError as exc:
             raise SolverError(str(exc)) from None
+        if store and sol.current_at_external_bias_uA_per_um != 0:
+            ratio = sol.current_uA_per_um / sol.current_at_external_bias_uA_per_um
+            with self._lock:
+                self._series_ratios[design] = (history + [(vg_V, vd_V, ratio)])[-2:]
+                self._series_ratios.move_to_end(design)
+                if len(self._series_ratios) > 16:
+                    self._series_ratios.pop(next(iter(self._series_ratios)))
         bp = dataclasses.replace(state["bp"], vg_V=vg_V, vd_V=vd_V, series_resistance=sol,
                                  timings_s=timings)
         return bp, state["start"], state["notes"]
@@ -672,6 +686,28 @@ class Simulator:
         series = _series_columns(points)
         return OutputCurve(design, float(vg_V), vd, np.array(out), series.get("intrinsic"),
                            series.get("vd"))
+
+
+def _extrapolate_ratio(history: list[tuple[float, float, float]], vg_V: float,
+                       vd_V: float) -> float | None:
+    """I / I_0 at a bias predicted from the last two points of a sweep: linear along the
+    terminal that moved, within twice the last step (the last ratio otherwise); None
+    without history."""
+    if not history:
+        return None
+    (vg2, vd2, r2) = history[-1]
+    if len(history) < 2:
+        return r2
+    vg1, vd1, r1 = history[-2]
+    if abs(vg2 - vg1) >= abs(vd2 - vd1) and vg2 != vg1:
+        f = (vg_V - vg2) / (vg2 - vg1)
+    elif vd2 != vd1:
+        f = (vd_V - vd2) / (vd2 - vd1)
+    else:
+        return r2
+    if not 0 < abs(f) <= 2:
+        return r2
+    return min(1.0, max(0.05, r2 + f * (r2 - r1)))
 
 
 def _series_columns(points: list[BiasPoint]) -> dict[str, np.ndarray]:
