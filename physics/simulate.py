@@ -27,7 +27,7 @@ from collections import OrderedDict
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -43,7 +43,6 @@ from sub60.physics.metrics import (
     refine_curve,
 )
 from sub60.physics.poisson import SolverError
-from sub60.physics.series_resistance import SeriesSolution, solve_series_resistance
 from sub60.physics.statistics import inverse_fermi_half
 from sub60.physics.structure import band_parameters
 from sub60.physics.subbands import device_subbands, valley_warning
@@ -57,6 +56,9 @@ from sub60.physics.transport import (
     tunnel_window,
 )
 from sub60.physics.tunneling import TUNNELLING_MODELS
+
+if TYPE_CHECKING:
+    from sub60.physics.series_resistance import SeriesSolution
 
 #: Default memory budget of a Simulator's cache of solved bias points [B].
 DEFAULT_CACHE_BYTES = 64 * 2**20
@@ -546,6 +548,8 @@ class Simulator:
             state.update(start=es, bp=bp, notes=state["notes"] + tuple(
                 n for n in notes if n not in state["notes"]))
             return bp.current_uA_per_um
+
+        from sub60.physics.series_resistance import solve_series_resistance  # only with resistances
 
         with self._lock:
             history = list(self._series_ratios.get(design, ()))

@@ -23,16 +23,19 @@ source potential: a floating-body hole build-up is not modelled).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from sub60.physics._cache import ByteLRU, array_bytes
 from sub60.physics.constants import thermal_energy_eV
 from sub60.physics.design import Design
-from sub60.physics.interface_traps import InterfaceTraps, build_interface_traps
 from sub60.physics.materials import BURIED_OXIDE, Dielectric, get_dielectric
 from sub60.physics.mesh import Mesh, graded_axis, layered_y_axis
 from sub60.physics.poisson import BandParameters, PoissonOperator, PoissonProblem, neutral_potential
+
+if TYPE_CHECKING:
+    from sub60.physics.interface_traps import InterfaceTraps
 
 
 def gate_dielectric(design: Design) -> Dielectric:
@@ -223,6 +226,8 @@ def interface_traps(design: Design, mesh: Mesh, bands: BandParameters) -> Interf
     (`sub60.physics.interface_traps`)."""
     if design.interface_trap_density_cm2eV <= 0.0:
         return None
+    from sub60.physics.interface_traps import build_interface_traps  # only when traps are on
+
     nodes = gate_oxide_interface_nodes(design, mesh)
     width = np.broadcast_to(mesh.dx_nm[:, None], nodes.shape)
     return build_interface_traps(
