@@ -14,7 +14,10 @@ semiclassical charge) and, with the quasi-Fermi levels E_Fn, E_Fp,
     n = N_c F_1/2((E_Fn - E_c)/kT),   p = N_v F_1/2((E_v - E_Fp)/kT)         (3)
 
 (Sze & Ng, Physics of Semiconductor Devices, 3rd ed., 2007, ch. 1; F_j normalised as in
-DLMF §25.12). Energies are in eV with the source Fermi level at 0.
+DLMF §25.12). Energies are in eV with the source Fermi level at 0. Optional interface
+traps add a sheet charge q sigma(n, p) on interface nodes (`PoissonProblem.interface_traps`;
+the node's control volume holds q sigma dx per unit depth), with d sigma/d psi in the
+Jacobian's diagonal (non-positive, so the matrix stays symmetric positive definite).
 
 Newton's method: the Jacobian of the finite-volume residual is the (symmetric, positive
 definite) Laplacian plus a positive diagonal from dn/dpsi - dp/dpsi; unknowns are

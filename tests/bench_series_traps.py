@@ -6,10 +6,12 @@ On the default design at V_d = 0.3 V, with our own "typical process" scenario (U
 D_it of 2e12 cm^-2 eV^-1 at midgap, R_s = R_d = 100 ohm um; an illustration, not a
 measured process):
 
-1. a warm bias point (continuation from a point 20 mV away, as in tests/bench_physics.py)
-   for the ideal device, with traps, with series resistance, and with both, at an
-   off-state and an on-state gate voltage; medians and the ratio to the ideal point,
-   measured interleaved in one run;
+1. a warm bias point for the ideal device, with traps, with series resistance, and with
+   both, at an off-state and an on-state gate voltage, two ways: stepping back and
+   forth 20 mV from a solved point (as in tests/bench_physics.py), and stepping up 20 mV
+   at a time as a sweep does (where the series loop's prediction from the last two
+   points applies); medians and the ratio to the ideal point, measured interleaved in
+   one run;
 2. the extra solves of the series-resistance loop along a 41-point transfer curve
    (mean, largest) and the curve's time beside the ideal one.
 """
@@ -35,8 +37,9 @@ def median_ms(samples: list[float]) -> float:
     return 1e3 * float(np.median(samples))
 
 
-def bench_warm_points(repeats: int) -> None:
-    print("Warm bias point, default design, Vd = 0.3 V (dVg = 20 mV continuation)")
+def bench_warm_points(repeats: int, sweep: bool) -> None:
+    how = "steps of +20 mV, as in a sweep" if sweep else "20 mV back and forth"
+    print(f"Warm bias point, default design, Vd = 0.3 V ({how})")
     for label, base in (("off state", 0.0), ("on state", 0.3)):
         sims = {name: Simulator() for name in CASES}
         for name, d in CASES.items():
@@ -44,7 +47,8 @@ def bench_warm_points(repeats: int) -> None:
         times: dict[str, list[float]] = {name: [] for name in CASES}
         extra: list[int] = []
         for i in range(repeats):
-            v = base + 0.02 * ((i % 2) + 1) + 1e-4 * i  # a new point each time, 20 mV away
+            # a new point each time, 20 mV away
+            v = base + 0.02 * (i + 1) if sweep else base + 0.02 * ((i % 2) + 1) + 1e-4 * i
             for name, d in CASES.items():  # interleaved: the same machine load for each
                 t = time.perf_counter()
                 bp = sims[name].solve_bias(d, v, 0.3)
@@ -52,7 +56,7 @@ def bench_warm_points(repeats: int) -> None:
                 if name == "traps + series R":
                     extra.append(bp.series_resistance.extra_solves)
         ideal = median_ms(times["ideal"])
-        print(f"  {label} (Vg about {base + 0.03:.2f} V, Id {bp.current_uA_per_um:.3g} uA/um "
+        print(f"  {label} (Vg from {base + 0.02:.2f} V, last Id {bp.current_uA_per_um:.3g} uA/um "
               "with both):")
         for name in CASES:
             m = median_ms(times[name])
@@ -87,7 +91,8 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=15)
     a = ap.parse_args()
-    bench_warm_points(a.repeats)
+    bench_warm_points(a.repeats, sweep=False)
+    bench_warm_points(a.repeats, sweep=True)
     bench_curve(a.repeats)
 
 
