@@ -283,8 +283,29 @@ def _contact_potentials(frame: DeviceFrame, vd_key: float, net, efn, efp) -> np.
     if vd_key not in cache:
         if len(cache) > 256:
             cache.clear()
-        cache[vd_key] = neutral_potential(frame.bands, net, efn, efp)
+        d = frame.design
+        polished = None
+        if cache and (d.source_resistance_ohm_um > 0 or d.drain_resistance_ohm_um > 0):
+            # the series-resistance loop visits a new internal V_d at every solve: Newton
+            # from the nearest cached drain voltage instead of a fresh bisection
+            nearest = min(cache, key=lambda v: abs(v - vd_key))
+            polished = _polish_neutral(frame.bands, net, efn, efp, cache[nearest])
+        cache[vd_key] = polished if polished is not None else \
+            neutral_potential(frame.bands, net, efn, efp)
     return cache[vd_key]
+
+
+def _polish_neutral(bands: BandParameters, net, efn, efp, psi0: np.ndarray) -> np.ndarray | None:
+    """Newton's method on p - n + N_D - N_A = 0 from a nearby neutral potential [V]; None
+    when it does not settle to round-off in 30 steps (the caller then bisects)."""
+    psi = np.array(psi0, float)
+    for _ in range(30):
+        n, p, dn, dp = bands.densities(psi, efn, efp)
+        step = (p - n + net) / (dn - dp)  # d(p - n)/d psi = dp - dn < 0
+        psi = psi + step
+        if np.all(np.abs(step) <= 1e-14 * np.maximum(1.0, np.abs(psi))):
+            return psi
+    return None
 
 
 def initial_guess(frame: DeviceFrame, problem: PoissonProblem) -> np.ndarray:

@@ -96,3 +96,23 @@ def test_default_design_on_state_needs_at_most_four_extra_solves():
     assert abs(implied) < 2 * SERIES_TOLERANCE_V
     ideal = Simulator().transfer_curve(Design(), np.linspace(-0.1, 0.5, 7), 0.3, refine=False)
     assert "intrinsic_id_uA_per_um" not in ideal.columns() and ideal.intrinsic_id_uA_per_um is None
+
+
+@pytest.mark.parametrize("source_type", ["p", "n"])
+def test_contact_potentials_from_newton_equal_the_bisection(source_type):
+    """With access resistances the contacts' neutral potential at a new internal V_d is
+    found by Newton from the nearest cached one; it equals the charge-neutral bisection
+    (`poisson.neutral_potential`) to 1e-12 V (consistency of two solutions of the same
+    neutrality equation, no outside source)."""
+    from sub60.physics.poisson import neutral_potential
+    from sub60.physics.structure import build_frame, problem_at_bias
+
+    d = Design(source_type=source_type, source_resistance_ohm_um=100.0)
+    frame = build_frame(d)
+    problem_at_bias(frame, 0.3, 0.3)
+    for vd in (0.297, 0.29, 0.25):
+        psi = problem_at_bias(frame, 0.3, vd).dirichlet_psi_V[[0, -1], frame.body_j]
+        net = (frame.donors_cm3 - frame.acceptors_cm3)[[0, -1]]
+        efn = np.array([-vd, -vd]) if source_type == "p" else np.array([0.0, -vd])
+        ref = neutral_potential(frame.bands, net, efn, np.zeros(2))
+        np.testing.assert_allclose(psi, ref, rtol=0, atol=1e-12)
