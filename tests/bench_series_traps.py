@@ -10,8 +10,9 @@ measured process):
    both, at an off-state and an on-state gate voltage, two ways: stepping back and
    forth 20 mV from a solved point (as in tests/bench_physics.py), and stepping up 20 mV
    at a time as a sweep does (where the series loop's prediction from the last two
-   points applies); medians and the ratio to the ideal point, measured interleaved in
-   one run;
+   points applies); medians of wall and CPU time (the process's own, less sensitive to
+   other load on a shared machine) and their ratio to the ideal point, measured
+   interleaved in one run;
 2. the extra solves of the series-resistance loop along a 41-point transfer curve
    (mean, largest) and the curve's time beside the ideal one.
 """
@@ -45,22 +46,25 @@ def bench_warm_points(repeats: int, sweep: bool) -> None:
         for name, d in CASES.items():
             sims[name].solve_bias(d, base, 0.3)
         times: dict[str, list[float]] = {name: [] for name in CASES}
+        cpu: dict[str, list[float]] = {name: [] for name in CASES}
         extra: list[int] = []
         for i in range(repeats):
             # a new point each time, 20 mV away
             v = base + 0.02 * (i + 1) if sweep else base + 0.02 * ((i % 2) + 1) + 1e-4 * i
             for name, d in CASES.items():  # interleaved: the same machine load for each
-                t = time.perf_counter()
+                t, c = time.perf_counter(), time.process_time()
                 bp = sims[name].solve_bias(d, v, 0.3)
                 times[name].append(time.perf_counter() - t)
+                cpu[name].append(time.process_time() - c)
                 if name == "traps + series R":
                     extra.append(bp.series_resistance.extra_solves)
-        ideal = median_ms(times["ideal"])
+        ideal, ideal_cpu = median_ms(times["ideal"]), median_ms(cpu["ideal"])
         print(f"  {label} (Vg from {base + 0.02:.2f} V, last Id {bp.current_uA_per_um:.3g} uA/um "
               "with both):")
         for name in CASES:
-            m = median_ms(times[name])
-            print(f"    {name:17s} median {m:7.1f} ms   ratio to ideal {m / ideal:4.2f}")
+            m, c = median_ms(times[name]), median_ms(cpu[name])
+            print(f"    {name:17s} median {m:7.1f} ms wall, {c:6.1f} ms CPU   ratio to ideal "
+                  f"{m / ideal:4.2f} wall, {c / ideal_cpu:4.2f} CPU")
         print(f"    extra solves of the series loop (traps + series R): median "
               f"{np.median(extra):.0f}, largest {max(extra)}")
 
