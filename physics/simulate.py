@@ -540,12 +540,13 @@ class Simulator:
 
         def intrinsic(vg: float, vd: float) -> float:
             t0 = time.perf_counter()
-            es, notes = self._electrostatics(design, vg, vd, state["start"])
+            warm = _along(state.get("before"), state["start"], vg, vd)
+            es, notes = self._electrostatics(design, vg, vd, warm)
             t1 = time.perf_counter()
             bp = bias_point_from_electrostatics(es, self.model)
             for stage, dt in {**bp.timings_s, "poisson": t1 - t0}.items():
                 timings[stage] = timings.get(stage, 0.0) + dt
-            state.update(start=es, bp=bp, notes=state["notes"] + tuple(
+            state.update(before=state["start"], start=es, bp=bp, notes=state["notes"] + tuple(
                 n for n in notes if n not in state["notes"]))
             return bp.current_uA_per_um
 
@@ -690,6 +691,23 @@ class Simulator:
         series = _series_columns(points)
         return OutputCurve(design, float(vg_V), vd, np.array(out), series.get("intrinsic"),
                            series.get("vd"))
+
+
+def _along(a: Electrostatics | None, b: Electrostatics | None, vg_V: float,
+           vd_V: float) -> Electrostatics | None:
+    """Warm start for (V_g, V_d) from two solutions: the potential extrapolated linearly
+    along the line through their biases (the projection of the target on it, within twice
+    their distance), else the latest one."""
+    if a is None or b is None or a.frame is not b.frame:
+        return b
+    dg, dd = b.vg_V - a.vg_V, b.vd_V - a.vd_V
+    norm = dg * dg + dd * dd
+    if norm == 0:
+        return b
+    f = ((vg_V - b.vg_V) * dg + (vd_V - b.vd_V) * dd) / norm
+    if not 0 < abs(f) <= 2:
+        return b
+    return dataclasses.replace(b, psi_V=b.psi_V + f * (b.psi_V - a.psi_V))
 
 
 def _extrapolate_ratio(history: list[tuple[float, float, float]], vg_V: float,
