@@ -14,11 +14,13 @@ Devices*, 3rd ed., 2007, sec. 6.2.5; Taur & Ning, *Fundamentals of Modern VLSI D
 
 The scalar equation h(I) = I - I_int(V(I)) = 0 is solved on the current: the first
 solve is at the external bias (I = 0 in (1)), which gives the intrinsic current
-I_0 = I_int(V_g, V_d); then a fixed-point step to I_0 (or, in a sweep, to the current
-the previous points predict) and secant steps, kept inside the
-bracket of the latest points on either side of the root once there is one (bisection
-when a secant step leaves it; for a device whose current grows with V_gs' and V_ds',
-h(0) = -I_0 and h(I_0) already bracket it). A point is
+I_0 = I_int(V_g, V_d); the second is at I_0 (or, in a sweep, at the current the
+previous points predict); then secant steps on ln|I| - ln|I_int(V(I))| (nearly linear
+where the current is exponential in the voltages; the first on the linear form, exact
+for a linear device), kept inside the bracket of
+the points on either side of the root, with a bisection (geometric once the bracket is
+away from zero) whenever a step leaves the bracket or two steps in a row land on the
+same side. A point is
 converged when the external bias implied by the solved point, V' + I_int(V') R, is within
 ``tol_V`` of the requested one, i.e. |I_int(V(I)) - I| (R_s + R_d) <= tol_V. In
 subthreshold, where I_0 (R_s + R_d) is below ``tol_V``, the first solve is already
@@ -27,6 +29,7 @@ converged (no extra solve).
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
@@ -89,7 +92,7 @@ def solve_series_resistance(
     source_resistance_ohm_um: float,
     drain_resistance_ohm_um: float,
     tol_V: float = SERIES_TOLERANCE_V,
-    max_solves: int = 12,
+    max_solves: int = 20,
     ratio_guess: float | None = None,
 ) -> SeriesSolution:
     """Drain current with access resistances, eq. (1), by a bracketed secant on the current.
@@ -130,31 +133,52 @@ def solve_series_resistance(
     i0, vg0, vd0 = evaluate(0.0)
     if abs(i0) * r_tot <= tol_V:
         return SeriesSolution(i0, vg0, vd0, i0, 1)
-    # h(I) = I - I_int(V(I)): h(0) = -i0; the next point is the predicted current, or
-    # the fixed-point step I = i0
-    points = [(0.0, -i0)]
-    trial = i0 * ratio_guess if ratio_guess is not None and 0 < ratio_guess <= 1 else i0
-    solves = 1
+    # on the magnitude m = |I| (the sign of i0): root of h(m) = ln m - ln|I_int(V(m))|,
+    # which rises with m (the current falls as the drops grow) and is nearly linear where
+    # the current is exponential in the voltages; bracket [lo, hi] with h(lo) < 0 < h(hi)
+    sign = 1.0 if i0 > 0 else -1.0
+    m0 = abs(i0)
+    lo, hi = 0.0, math.inf
+    if vd_V * sign > 0:
+        # no current without drain bias: the root keeps V_ds' of the sign of V_d,
+        # |I| < |V_d| / (R_s + R_d)
+        hi = abs(vd_V) / r_tot
+    points: list[tuple[float, float]] = []  # (m, h) with finite h
+    trial = m0 * ratio_guess if ratio_guess is not None and 0 < ratio_guess <= 1 else m0
+    if trial >= hi:
+        trial = 0.5 * hi
+    solves, same_side, last_side = 1, 0, None
     while solves < max_solves:
-        value, vg, vd = evaluate(trial)
+        value, vg, vd = evaluate(sign * trial)
         solves += 1
-        h = trial - value
-        if abs(h) * r_tot <= tol_V:
+        if abs(sign * trial - value) * r_tot <= tol_V:
             return SeriesSolution(value, vg, vd, i0, solves)
-        points.append((trial, h))
-        (x1, h1), (x2, h2) = points[-2], points[-1]
-        step = x2 - x1
-        nxt = x2 - h2 * step / (h2 - h1) if h2 != h1 else x2 + step
-        # the latest points on either side of the root bracket it (h rises with I for a
-        # device whose current grows with V_gs' and V_ds': dh/dI = 1 + R dI_int/dV)
-        below = [x for x, hh in points if hh < 0]
-        above = [x for x, hh in points if hh > 0]
-        if below and above:
-            a, b = sorted((below[-1], above[-1]))
-            if not a < nxt < b:
-                nxt = 0.5 * (a + b)
-        elif abs(nxt - x2) > 4 * abs(step):  # no bracket yet: a bounded secant step
-            nxt = x2 + 4 * abs(step) * (1 if nxt > x2 else -1)
+        device = sign * value
+        h = math.log(trial) - math.log(device) if device > 0 else math.inf
+        if math.isfinite(h):
+            points.append((trial, h))
+        above = h > 0
+        if above:
+            hi = trial
+        else:
+            lo = trial
+        same_side = same_side + 1 if above == last_side else 0
+        last_side = above
+        if lo == 0.0 and above and len(points) <= 1:
+            # one point, above the root: the secant of the linear form through
+            # (0, -m0) and (m, m - |I_int|), exact for a linear device
+            nxt = m0 * trial / (m0 + trial - device)
+        elif len(points) >= 2 and points[-1][1] != points[-2][1]:
+            (x1, h1), (x2, h2) = points[-2], points[-1]
+            nxt = x2 - h2 * (x2 - x1) / (h2 - h1)
+        else:
+            nxt = device  # below the root: the device's current there bounds it from above
+        upper = hi if math.isfinite(hi) else 4.0 * max(m0, trial)
+        stalled = same_side >= 2 and lo > 0 and math.isfinite(hi)  # one end of a bracket kept
+        if stalled or not lo < nxt < upper:
+            # bisect, geometrically once the bracket is away from zero (decades apart)
+            nxt = math.sqrt(lo * upper) if lo > 0 else 0.1 * upper
+            same_side = 0
         trial = nxt
     raise ArithmeticError(
         f"series resistance: no self-consistent current within {tol_V:g} V in {max_solves} "
