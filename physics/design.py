@@ -120,7 +120,35 @@ FIELD_RANGES: dict[str, FieldSpec] = {
         float, 0.0, 5000.0, help="series resistance of the source access, per width [ohm um]"),
     "drain_resistance_ohm_um": FieldSpec(
         float, 0.0, 5000.0, help="series resistance of the drain access, per width [ohm um]"),
+    # non-idealities: band tails, trap-assisted tunnelling, band-gap narrowing
+    "tail_energy_source_meV": FieldSpec(
+        float, 0.0, 150.0,
+        help="Urbach energy of the source valence-band tail, 0 = no tail [meV]"),
+    "tail_energy_channel_meV": FieldSpec(
+        float, 0.0, 150.0,
+        help="Urbach energy of the channel conduction-band tail, 0 = no tail [meV]"),
+    "tat_lifetime_ns": FieldSpec(
+        float, 0.0, 1e6,
+        help="SRH lifetime of the trap-assisted generation, 0 = off, else >= 1e-3 [ns]"),
+    "tat_trap_level_eV": FieldSpec(
+        float, -0.5, 0.5, help="trap level above midgap for trap-assisted generation [eV]"),
+    "bandgap_narrowing": FieldSpec(
+        str, choices=("off", "on"),
+        help="'on': doping-induced gap narrowing of the doped regions (published model "
+             "per material); 'off': none"),
 }
+
+#: The switches of the non-idealities and their "off" values (the ideal device);
+#: `Design.is_ideal`, `Design.ideal`. Their settings (trap levels, the D_it profile)
+#: do not count: with the switch off they change nothing.
+NON_IDEAL_OFF: dict[str, Any] = {
+    "interface_trap_density_cm2eV": 0.0, "source_resistance_ohm_um": 0.0,
+    "drain_resistance_ohm_um": 0.0, "tail_energy_source_meV": 0.0,
+    "tail_energy_channel_meV": 0.0, "tat_lifetime_ns": 0.0, "bandgap_narrowing": "off",
+}
+
+#: Smallest non-zero trap-assisted-generation lifetime accepted [ns].
+TAT_LIFETIME_MIN_NS = 1e-3
 
 
 @dataclass(frozen=True)
@@ -177,12 +205,28 @@ class Design:
         series resistances of the source and drain accesses, per width [ohm um]; the bias
         point is solved self-consistently at the internal voltages
         (`sub60.physics.series_resistance`).
+    tail_energy_source_meV, tail_energy_channel_meV : float
+        characteristic (Urbach) energies E0 of the exponential density-of-states tails
+        above the source valence edge and below the channel conduction edge; 0 = no
+        tail [meV] (`physics.band_tails`).
+    tat_lifetime_ns : float
+        Shockley-Read-Hall lifetime of the trap-assisted generation in the body, with
+        Hurkx field enhancement; 0 = off [ns] (`physics.trap_assisted`).
+    tat_trap_level_eV : float
+        trap level above midgap [eV].
+    bandgap_narrowing : str
+        "on": doping-induced band-gap narrowing of the doped regions (Jain, McGregor &
+        Roulston 1990 for III-Vs, Slotboom & de Graaff 1976 for Si;
+        `physics.bandgap_narrowing`); "off".
 
     Notes
     -----
-    The non-idealities (interface traps, series resistance) are off by default: the
-    ideal device is the reference every other figure is compared with, and their values
-    depend on the process, not on the design; presets set a stated "typical process".
+    The non-idealities (interface traps, series resistance, band tails, trap-assisted
+    generation, band-gap narrowing) are off by default: the ideal device is the
+    reference every other figure is compared with, and their values depend on the
+    process (growth, doping, passivation), not on the design; presets set a stated
+    "typical process". A design file written before these fields existed reads as the
+    ideal device.
     """
 
     material: str = "InAs"
@@ -211,6 +255,12 @@ class Design:
     interface_trap_neutral_level_eV: float = 0.0
     source_resistance_ohm_um: float = 0.0
     drain_resistance_ohm_um: float = 0.0
+    # non-idealities: band tails, trap-assisted tunnelling, band-gap narrowing
+    tail_energy_source_meV: float = 0.0
+    tail_energy_channel_meV: float = 0.0
+    tat_lifetime_ns: float = 0.0
+    tat_trap_level_eV: float = 0.0
+    bandgap_narrowing: str = "off"
 
     def __post_init__(self) -> None:
         for f in dataclasses.fields(self):
@@ -237,11 +287,26 @@ class Design:
                 f"gate_source_offset_nm: an underlap of {-self.gate_source_offset_nm:g} nm leaves "
                 f"less than 2 nm of gate (gate_length_nm = {self.gate_length_nm:g} nm); "
                 "gate_length_nm + gate_source_offset_nm must be at least 2 nm")
+        if 0.0 < self.tat_lifetime_ns < TAT_LIFETIME_MIN_NS:
+            raise ValueError(
+                f"tat_lifetime_ns: {self.tat_lifetime_ns:g} ns is too short; use 0 (off) or "
+                f"a lifetime in [{TAT_LIFETIME_MIN_NS:g}, "
+                f"{FIELD_RANGES['tat_lifetime_ns'].high:g}] ns")
         if self.source_length_nm - self.gate_source_offset_nm < 1.0:
             raise ValueError(
                 f"gate_source_offset_nm: an overlap of {self.gate_source_offset_nm:g} nm reaches past "
                 f"the source contact (source_length_nm = {self.source_length_nm:g} nm); "
                 "source_length_nm - gate_source_offset_nm must be at least 1 nm")
+
+    @property
+    def is_ideal(self) -> bool:
+        """True when every non-ideality (interface traps, series resistance, band tails,
+        trap-assisted generation, band-gap narrowing) is off (`NON_IDEAL_OFF`)."""
+        return all(getattr(self, k) == v for k, v in NON_IDEAL_OFF.items())
+
+    def ideal(self) -> Design:
+        """The same design with every non-ideality off (the reference device)."""
+        return self.replace(**NON_IDEAL_OFF)
 
     # ------------------------------------------------------------------ geometry
     @property

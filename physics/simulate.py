@@ -33,6 +33,8 @@ import numpy as np
 
 from sub60.physics._cache import ByteLRU, CacheInfo, array_bytes
 from sub60.physics._threads import single_blas_thread
+from sub60.physics.band_tails import band_tail_current
+from sub60.physics.bandgap_narrowing import narrowed_profiles
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
 from sub60.physics.materials import check_tunnelling_material, group_iv_germanium_fraction
@@ -55,6 +57,7 @@ from sub60.physics.transport import (
     thermionic_current,
     tunnel_window,
 )
+from sub60.physics.trap_assisted import trap_assisted_current
 from sub60.physics.tunneling import TUNNELLING_MODELS
 
 if TYPE_CHECKING:
@@ -89,7 +92,14 @@ class BiasPoint:
     btbt_uA_per_um, electron_thermionic_uA_per_um, hole_thermionic_uA_per_um : parts
     pair_currents_uA_per_um : band-to-band current of each (valence, conduction) subband
         pair, e.g. {"HH1-C1": ...}, weighted by its interband coupling [uA/um]
+    tail_excess_uA_per_um : band-to-band current through band-tail states, beyond the
+        ideal (`physics.band_tails`; 0 without tails) [uA/um]
+    trap_assisted_uA_per_um : trap-assisted (Shockley-Read-Hall with Hurkx field
+        enhancement) generation current of the body (`physics.trap_assisted`; 0 when
+        off) [uA/um]
     current_uA_per_um : total drain current per width [uA/um]
+    current_by_mechanism_uA_per_um : the total split into band-to-band (ideal), band
+        tails, trap-assisted and thermionic [uA/um]
     timings_s : wall time of each stage [s]
     warnings : model-validity warnings (e.g. an indirect-gap material)
     solver_notes : fallbacks the solve needed (bias ramp, damping, finer grid); empty if none
@@ -122,6 +132,8 @@ class BiasPoint:
     solver_notes: tuple[str, ...] = ()
     pair_currents_uA_per_um: dict[str, float] = field(default_factory=dict)
     series_resistance: SeriesSolution | None = None
+    tail_excess_uA_per_um: float = 0.0
+    trap_assisted_uA_per_um: float = 0.0
 
     @property
     def subband_ec_eV(self) -> np.ndarray:
@@ -135,9 +147,23 @@ class BiasPoint:
 
     @property
     def current_uA_per_um(self) -> float:
-        """Total drain current per width: band-to-band plus thermionic [uA/um]."""
+        """Total drain current per width: band-to-band, band-tail excess,
+        trap-assisted and thermionic [uA/um] (the sum of
+        `current_by_mechanism_uA_per_um`)."""
         return self.btbt_uA_per_um + self.electron_thermionic_uA_per_um \
-            + self.hole_thermionic_uA_per_um
+            + self.hole_thermionic_uA_per_um + self.tail_excess_uA_per_um \
+            + self.trap_assisted_uA_per_um
+
+    @property
+    def current_by_mechanism_uA_per_um(self) -> dict[str, float]:
+        """The drain current split by mechanism [uA/um]: "band_to_band" (ideal),
+        "band_tails" (excess through tail states), "trap_assisted" and "thermionic"
+        (electrons and holes); they sum to `current_uA_per_um`."""
+        return {"band_to_band": self.btbt_uA_per_um,
+                "band_tails": self.tail_excess_uA_per_um,
+                "trap_assisted": self.trap_assisted_uA_per_um,
+                "thermionic": self.electron_thermionic_uA_per_um
+                + self.hole_thermionic_uA_per_um}
 
     @property
     def nbytes(self) -> int:
@@ -306,17 +332,20 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
     kT = es.frame.bands.kT_eV
     efs, efd = 0.0, -es.vd_V
     x = es.x_nm
+    if d.bandgap_narrowing == "on":
+        cond, val = narrowed_profiles(d, es.frame.donors_cm3, es.frame.acceptors_cm3, cond, val)
     cprof = [BandProfile(s.label, cond[i], s.inplane_mass) for i, s in enumerate(sb.conduction)]
     vprof = [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)]
-    if group_iv_germanium_fraction(d.semiconductor) is not None:  # Si, Ge, SiGe: indirect
+    weights = sb.pair_weights()
+    indirect = group_iv_germanium_fraction(d.semiconductor) is not None
+    if indirect:  # Si, Ge, SiGe: indirect
         from sub60.physics.indirect_tunnelling import indirect_band_to_band  # loaded when used
 
         spectrum = indirect_band_to_band(d.semiconductor, d.temperature_K, d.body_thickness_nm,
                                          x, cond.min(axis=0), val.max(axis=0), efs, efd, kT,
                                          bulk_gap_eV=float(es.frame.bands.eg_eV))
     else:
-        spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model,
-                                pair_weights=sb.pair_weights())
+        spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model, pair_weights=weights)
     i_n = thermionic_current(cprof, "conduction", efs, efd, kT)
     i_p = thermionic_current(vprof, "valence", efs, efd, kT)
     if es.vd_V == 0:
@@ -324,6 +353,22 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
     window = tunnel_window(x, cond.min(axis=0), val.max(axis=0), (d.gate_start_nm, d.gate_end_nm),
                            d.source_junction_nm, efs, efd)
     t2 = time.perf_counter()
+    timings = {"confinement": t1 - t0, "tunnelling": t2 - t1}
+    tail_excess = trap_assisted = 0.0
+    if (d.tail_energy_source_meV > 0 or d.tail_energy_channel_meV > 0) and not indirect:
+        src = x <= d.source_junction_nm
+        ch = (x >= d.gate_start_nm) & (x <= d.gate_end_nm)
+        closure = max(0.0, float(cond.min(axis=0)[ch].min() - val.max(axis=0)[src].max()))
+        with_tails = band_tail_current(
+            x, cprof, vprof, efs, efd, kT, spectrum.current_uA_per_um,
+            spectrum.pair_currents_uA_per_um, weights, 1e-3 * d.tail_energy_source_meV,
+            1e-3 * d.tail_energy_channel_meV, closure, model)
+        tail_excess = with_tails - spectrum.current_uA_per_um
+        timings["band_tails"] = time.perf_counter() - t2
+    if d.tat_lifetime_ns > 0 and es.vd_V != 0:
+        t3 = time.perf_counter()
+        trap_assisted = trap_assisted_current(es)
+        timings["trap_assisted"] = time.perf_counter() - t3
     return BiasPoint(
         design=d, vg_V=es.vg_V, vd_V=es.vd_V, electrostatics=es, x_nm=x,
         conduction_eV=cond, valence_eV=val,
@@ -333,7 +378,8 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         btbt_uA_per_um=spectrum.current_uA_per_um,
         pair_currents_uA_per_um=dict(spectrum.pair_currents_uA_per_um),
         electron_thermionic_uA_per_um=i_n, hole_thermionic_uA_per_um=i_p,
-        timings_s={"confinement": t1 - t0, "tunnelling": t2 - t1},
+        tail_excess_uA_per_um=tail_excess, trap_assisted_uA_per_um=trap_assisted,
+        timings_s=timings,
         warnings=design_warnings(d) + _bending_warning(es, sb))
 
 
@@ -648,7 +694,9 @@ class Simulator:
                 progress(i + 1, vg.size)
         current = np.array([p.current_uA_per_um for p in points])
         btbt = np.array([p.btbt_uA_per_um for p in points])
-        therm = current - btbt
+        # thermionic: what is neither band-to-band (ideal or through tails) nor trap-assisted
+        therm = current - btbt - np.array([p.tail_excess_uA_per_um + p.trap_assisted_uA_per_um
+                                           for p in points])
         settings = {"temperature_K": design.temperature_K,
                     "ioff_target_uA_per_um": ioff_target_uA_per_um, "vdd_V": vdd_V,
                     "ss_floor_uA_per_um": ss_floor_uA_per_um}
