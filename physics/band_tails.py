@@ -41,8 +41,10 @@ computed with a cheaper estimate of I (every coupled pair, N_TAIL_E energies, th
 transverse integral from the Gaussian fall-off of T(k) measured at one k: Kane's
 transverse-energy factor) and added to the full ideal current. I(eps) is evaluated at
 0 and at shifts placed around the window's closure dE in steps of the larger E0
-(`TAIL_OFFSETS`, up to dE + 8 E0; placed relative to dE, so that they move with the
-bands and the swing stays smooth). log I is
+(`TAIL_OFFSETS`, up to dE + 9 E0; placed relative to dE, so that they move with the
+bands and the swing stays smooth). Against a reference with 64 energies and 16 shifts
+the tail excess of the default design (tails 15/15 meV) is within 10 % (7 % at worst, our own
+convergence check, `tests/physics/test_band_tails.py`). log I is
 interpolated linearly between the shifts and (2) integrated on a fine grid; beyond the
 last shift I is held constant (the kernel's remaining weight).
 
@@ -66,8 +68,8 @@ from sub60.physics.tunneling import wkb_exponent_transverse
 
 #: Shifts at which I_ideal(eps) is evaluated, around the window's closure dE, in units
 #: of the larger tail energy: eps = dE + t E0 (those below 0 dropped; eps = 0 always).
-TAIL_OFFSETS = (-3.0, -2.0, -1.0, 0.0, 1.0, 2.0, 3.5, 5.5, 8.0)
-N_TAIL_E = 24  # energies of each estimate
+TAIL_OFFSETS = (-1.5, -0.75, 0.0, 0.75, 1.5, 2.5, 4.0, 6.0, 9.0)
+N_TAIL_E = 16  # energies of each estimate (cosine-spaced)
 N_TAIL_FINE = 400  # points of the fine grid of eq. (2)
 
 

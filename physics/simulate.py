@@ -34,7 +34,7 @@ import numpy as np
 from sub60.physics._cache import ByteLRU, CacheInfo, array_bytes
 from sub60.physics._threads import single_blas_thread
 from sub60.physics.band_tails import band_tail_current
-from sub60.physics.bandgap_narrowing import narrowed_profiles
+from sub60.physics.bandgap_narrowing import has_narrowing_model, narrowed_profiles
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
 from sub60.physics.materials import check_tunnelling_material, group_iv_germanium_fraction
@@ -456,7 +456,8 @@ def design_warnings(design: Design) -> tuple[str, ...]:
     """Warnings about the model's validity for a design (empty when none).
 
     An indirect gap (no phonon-assisted tunnelling), a body so thin that a satellite (L
-    or X) valley's confined state lies below the Gamma subband C1, and contacts doped
+    or X) valley's confined state lies below the Gamma subband C1, band-gap narrowing
+    asked for a material without a model, and contacts doped
     so heavily that
     the parabolic density of states puts the Fermi level more than 0.5 eV inside the
     band (non-parabolicity and satellite valleys, not modelled in the charge, would
@@ -474,6 +475,9 @@ def _design_warnings(design: Design) -> tuple[str, ...]:
     valley = valley_warning(design)
     if valley:
         out.append(valley)
+    if design.bandgap_narrowing == "on" and not has_narrowing_model(design.material):
+        out.append(f"bandgap_narrowing is on, but sub60 has no band-gap-narrowing model for "
+                   f"{design.material}: no narrowing applied.")
     bands = band_parameters(design)
     n_src = ("source_doping_cm3", design.source_doping_cm3,
              bands.nv_cm3 if design.source_type == "p" else bands.nc_cm3)

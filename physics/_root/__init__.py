@@ -26,11 +26,11 @@ except _metadata.PackageNotFoundError:  # pragma: no cover - run from a bare che
 #: Names re-exported from sub60.physics (loaded lazily, PEP 562); the same list as
 #: ``sub60.physics.__all__`` (a test keeps them in sync).
 _PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "FIELD_RANGES", "Metric",
-                "Metrics", "OutputCurve", "SeriesSolution", "Simulator", "SolverError",
-                "Spectrum", "TUNNELLING_MODELS", "TransferCurve", "VD_RANGE_V", "VG_RANGE_V",
-                "alloys", "band_alignment", "cache_info", "check_bias",
-                "check_tunnelling_material", "clear_cache",
-                "csv_text", "design_warnings", "dielectrics", "figures_of_merit",
+                "Metrics", "NON_IDEAL_OFF", "OutputCurve", "SeriesSolution", "Simulator",
+                "SolverError", "Spectrum", "TUNNELLING_MODELS", "TransferCurve", "VD_RANGE_V",
+                "VG_RANGE_V", "alloys", "band_alignment", "bandgap_narrowing_eV", "cache_info",
+                "check_bias", "check_tunnelling_material", "clear_cache", "csv_text",
+                "design_warnings", "dielectrics", "figures_of_merit", "hurkx_gamma",
                 "interface_trap_density", "output_columns", "output_curve", "output_table",
                 "semiconductors", "solve_bias",
                 "solve_electrostatics", "thermionic_limit_mV_per_dec", "transfer_curve")
