@@ -33,8 +33,8 @@ lowering the conduction profiles and the rest raising the valence profiles.
 Assumptions: the tails follow the band profiles rigidly (uniform E0 along x); the
 occupation of a tail state is that of its energy (Fermi-Dirac of its contact); the
 kernel acts on the current rather than inside the transmission (tail states are
-reached by the same WKB paths as the band states they come from); thermionic currents
-are unchanged.
+reached by the same WKB paths as the band states they come from: an upper estimate,
+see [3]_); thermionic currents are unchanged.
 
 Numerics. The tail excess, I_tail - I_ideal(0) = int K(eps) [I(eps) - I(0)] d eps, is
 computed with a cheaper estimate of I (every coupled pair, N_TAIL_E energies, the
@@ -55,6 +55,11 @@ References
    Electron Device Lett. 38, 1661 (2017), doi:10.1109/LED.2017.2764873.
 .. [2] F. Urbach, Phys. Rev. 92, 1324 (1953) (the exponential absorption edge; from
    memory).
+.. [3] A model of tunnelling between conduction- and valence-band tail states, applied
+   to an InGaAs Esaki diode, J. Appl. Phys. (2020), ETH Zürich research collection,
+   doi:10.3929/ethz-b-000428713 (abstract read): tail-to-band tunnelling becomes
+   visible only for very large tail energies, so treating tail states as reached like
+   band states, as here, is an upper estimate.
 """
 
 from __future__ import annotations
