@@ -180,7 +180,7 @@ def _estimate(
 def band_tail_current(
     x_nm: np.ndarray, conduction: list[BandProfile], valence: list[BandProfile],
     efs_eV: float, efd_eV: float, kT_eV: float, ideal_uA_per_um: float,
-    pair_currents_uA_per_um: dict[str, float], pair_weights: np.ndarray | None,
+    pair_weights: np.ndarray | None,
     e0_source_eV: float, e0_channel_eV: float, closure_eV: float, model: str = "two-band",
 ) -> float:
     """Band-to-band current with exponential band tails, eq. (2) [uA/um].
@@ -190,7 +190,6 @@ def band_tail_current(
     x_nm : (nx,) [nm]; conduction, valence : subband profiles (as for
     `physics.transport.band_to_band`); efs_eV, efd_eV : Fermi levels [eV]; kT_eV [eV];
     ideal_uA_per_um : the ideal band-to-band current of these profiles [uA/um];
-    pair_currents_uA_per_um : its per-pair currents ("HH1-C1": ...);
     pair_weights : (n_valence, n_conduction) couplings or None (all 1);
     e0_source_eV, e0_channel_eV : tail energies [eV] (0 = none; not both 0);
     closure_eV : how far the ideal tunnel window is from opening (channel conduction

@@ -323,7 +323,13 @@ def output_table(curves: Sequence[OutputCurve]) -> Any:
 
 
 def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") -> BiasPoint:
-    """Subband profiles, tunnel window and currents of a solved electrostatics."""
+    """Subband profiles, tunnel window and currents of a solved electrostatics.
+
+    With the design's non-idealities on: band-gap narrowing of the transport profiles
+    (`physics.bandgap_narrowing`), the band-tail excess of the band-to-band current
+    (`physics.band_tails`) and the trap-assisted generation current
+    (`physics.trap_assisted`); off, the result is the ideal one, bit for bit.
+    """
     d = es.design
     t0 = time.perf_counter()
     sb = device_subbands(d)
@@ -360,8 +366,8 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         ch = (x >= d.gate_start_nm) & (x <= d.gate_end_nm)
         closure = max(0.0, float(cond.min(axis=0)[ch].min() - val.max(axis=0)[src].max()))
         with_tails = band_tail_current(
-            x, cprof, vprof, efs, efd, kT, spectrum.current_uA_per_um,
-            spectrum.pair_currents_uA_per_um, weights, 1e-3 * d.tail_energy_source_meV,
+            x, cprof, vprof, efs, efd, kT, spectrum.current_uA_per_um, weights,
+            1e-3 * d.tail_energy_source_meV,
             1e-3 * d.tail_energy_channel_meV, closure, model)
         tail_excess = with_tails - spectrum.current_uA_per_um
         timings["band_tails"] = time.perf_counter() - t2
