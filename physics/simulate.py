@@ -481,6 +481,10 @@ def _design_warnings(design: Design) -> tuple[str, ...]:
     valley = valley_warning(design)
     if valley:
         out.append(valley)
+    if (design.tail_energy_source_meV > 0 or design.tail_energy_channel_meV > 0) \
+            and group_iv_germanium_fraction(design.semiconductor) is not None:
+        out.append("band tails are not modelled for the phonon-assisted tunnelling of "
+                   f"{design.material}: no tail current added.")
     if design.bandgap_narrowing == "on" and not has_narrowing_model(design.material):
         out.append(f"bandgap_narrowing is on, but sub60 has no band-gap-narrowing model for "
                    f"{design.material}: no narrowing applied.")

@@ -61,7 +61,6 @@ from sub60.physics.constants import (
     HBAR_J_S,
     thermal_energy_eV,
 )
-from sub60.physics.materials import get_semiconductor
 
 if TYPE_CHECKING:
     from sub60.physics.electrostatics import Electrostatics
@@ -186,7 +185,7 @@ def trap_assisted_current(es: Electrostatics) -> float:
     bands = frame.bands
     weight = frame.mesh.dy_semiconductor_nm
     rows = weight > 0
-    rec = get_semiconductor(d.material)
+    rec = d.semiconductor
     field = field_magnitude_V_per_m(es.x_nm, es.y_nm, es.psi_V)
     gap = bands.eg_eV + bands.dec_eV + bands.dev_eV
     edge = max(0.5 * gap - 2 * bands.kT_eV, 0.0)
