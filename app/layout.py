@@ -50,6 +50,7 @@ from sub60.app.sharing import (
 from sub60.app.snapshot_schema import SnapshotSettings
 from sub60.app.snapshot_view import SnapshotView
 from sub60.app.state import COMPUTED_PARAMETERS, DESIGN_PARAMETERS, ExplorerState
+from sub60.app.sweep_view import SweepView
 from sub60.physics import check_tunnelling_material, semiconductors
 
 __all__ = ["CAUTION", "SIDEBAR_WIDTH", "TITLE", "Explorer", "create_app", "stylesheet"]
@@ -154,7 +155,14 @@ class Explorer(pn.viewable.Viewer):
         self.main = pn.Column(top, r.metrics, self.material_warning, r.notes, self.alert, r.plots,
                               self.pin_view.compare.view, sizing_mode="stretch_width",
                               css_classes=["sub60-main"], margin=0)
-        self._page = pn.Row(self.sidebar, self.main, sizing_mode="stretch_width", margin=0,
+        # design sweeps in a tab of their own (app.sweep_view); a picked design comes back here
+        sim = self.jobs
+        self.sweep_view = SweepView(self.state, lambda: (sim.simulator.resolution, sim.simulator.model),
+                                    css, self._post, on_load=lambda: setattr(self.tabs, "active", 0))
+        self.tabs = pn.Tabs(("Explorer", self.main), ("Design sweeps", self.sweep_view.view),
+                            sizing_mode="stretch_width", margin=0, css_classes=["sub60-tabs"],
+                            stylesheets=css)
+        self._page = pn.Row(self.sidebar, self.tabs, sizing_mode="stretch_width", margin=0,
                             css_classes=["sub60-page"])
 
     def _watch(self) -> None:
@@ -199,6 +207,7 @@ class Explorer(pn.viewable.Viewer):
         watchers are dropped. Safe to call more than once."""
         self.jobs.close()
         self.pin_jobs.close()
+        self.sweep_view.close()
         for owner, watcher in self._watchers:
             try:
                 owner.param.unwatch(watcher)

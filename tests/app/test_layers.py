@@ -42,12 +42,13 @@ LAYERS: dict[str, int] = {
     "messages": MODEL, "theme": MODEL, "tables": MODEL, "snapshot_fields": MODEL,
     "snapshot_schema": MODEL, "snapshot_reader": MODEL, "snapshot_check": MODEL,
     "presets": MODEL, "atomic": MODEL, "sweep_spec": MODEL, "sweep_engine": MODEL,
-    "number_rules": MODEL,
+    "number_rules": MODEL, "sweep_session": MODEL,
     # views: the page, live plots, export figures and the snapshot bundle that holds them
     "layout": VIEWS, "controls": VIEWS, "results_view": VIEWS, "pin_view": VIEWS,
     "snapshot_view": VIEWS, "compare_panes": VIEWS, "plots": VIEWS, "plots_bias": VIEWS,
     "plots_curves": VIEWS, "plot_style": VIEWS, "metrics_strip": VIEWS, "figures": VIEWS,
     "figures_page": VIEWS, "snapshot_bundle": VIEWS, "session_files": VIEWS,
+    "sweep_view": VIEWS, "sweep_plots": VIEWS,
     # entry points
     "cli": ENTRY, "cli_common": ENTRY, "snapshot_cli": ENTRY, "sweep_cli": ENTRY, "server": ENTRY,
     "__main__": ENTRY, "console": ENTRY,
