@@ -42,7 +42,12 @@ from sub60.app.sweep_plots import (
     pareto_plot,
     sensitivity_plot,
 )
-from sub60.app.sweep_session import LOCAL_WORKERS_RANGE, SweepBusy, SweepSession
+from sub60.app.sweep_session import (
+    LOCAL_WORKERS_RANGE,
+    SweepBusy,
+    SweepSession,
+    check_scheduler_address,
+)
 from sub60.app.sweep_spec import (
     LARGE_SWEEP,
     MAX_KNOBS,
@@ -102,7 +107,7 @@ class KnobRow:
         self.values = pn.widgets.TextInput(value="", width=150, margin=(2, 4),
                                            placeholder="or values: a, b, c",
                                            css_classes=["sweep-knob-values"])
-        self.remove = pn.widgets.Button(name="✕", width=38, margin=(2, 4), button_type="light",
+        self.remove = pn.widgets.Button(label="✕", width=38, margin=(2, 4), button_type="light",
                                         description="Take this knob away")
         if on_remove is not None:
             self.remove.on_click(lambda _e: on_remove(self))
@@ -174,7 +179,7 @@ class SweepView:
         self.knobs: list[KnobRow] = [KnobRow(f, lo, hi, n, self._remove_knob)
                                      for f, lo, hi, n in DEFAULT_KNOBS]
         self.knob_rows = pn.Column(*[k.view for k in self.knobs], margin=0)
-        self.add_knob = pn.widgets.Button(name="+ Add a knob", width=130, margin=(4, 4),
+        self.add_knob = pn.widgets.Button(label="+ Add a knob", width=130, margin=(4, 4),
                                           button_type="light")
         self.add_knob.on_click(self._add_knob)
         heads = "".join(f'<span style="display:inline-block;width:{w}px">{t}</span>'
@@ -182,40 +187,40 @@ class SweepView:
                                      ("steps", 76), ("spacing", 86), ("or a list of values", 150)))
         knob_head = pn.pane.HTML(f'<div class="sweep-head">{heads}</div>', stylesheets=css,
                                  margin=(0, 4), height=18)
-        self.method = pn.widgets.Select(name="Sampling", options=SAMPLING_LABELS, value="grid",
+        self.method = pn.widgets.Select(label="Sampling", options=SAMPLING_LABELS, value="grid",
                                         width=120)
-        self.count = pn.widgets.IntInput(name="Designs drawn", value=16, start=1, end=1_000_000,
+        self.count = pn.widgets.IntInput(label="Designs drawn", value=16, start=1, end=1_000_000,
                                          width=95, disabled=True)
-        self.seed = pn.widgets.IntInput(name="Seed", value=1, start=0, end=2**32 - 1, width=70,
+        self.seed = pn.widgets.IntInput(label="Seed", value=1, start=0, end=2**32 - 1, width=70,
                                         disabled=True)
         self.method.param.watch(self._method_changed, "value")
         lo, hi = state.vg_sweep_V
-        self.vg_from = pn.widgets.TextInput(name="Vg from (V)", value=f"{lo:g}", width=70,
+        self.vg_from = pn.widgets.TextInput(label="Vg from (V)", value=f"{lo:g}", width=70,
                                             css_classes=["sweep-vg-from"])
-        self.vg_to = pn.widgets.TextInput(name="Vg to (V)", value=f"{hi:g}", width=70,
+        self.vg_to = pn.widgets.TextInput(label="Vg to (V)", value=f"{hi:g}", width=70,
                                           css_classes=["sweep-vg-to"])
-        self.vg_points = pn.widgets.IntInput(name="Vg points", value=int(state.vg_points),
+        self.vg_points = pn.widgets.IntInput(label="Vg points", value=int(state.vg_points),
                                              start=3, end=401, width=72,
                                              css_classes=["sweep-vg-points"])
-        self.vd = pn.widgets.TextInput(name="Vd (V)", value=f"{float(state.vd_V):g}", width=62)
-        self.vdd = pn.widgets.TextInput(name="Vdd for Ion (V)", value=f"{float(state.vdd_V):g}",
+        self.vd = pn.widgets.TextInput(label="Vd (V)", value=f"{float(state.vd_V):g}", width=62)
+        self.vdd = pn.widgets.TextInput(label="Vdd for Ion (V)", value=f"{float(state.vdd_V):g}",
                                         width=95)
-        self.ioff = pn.widgets.TextInput(name="Ioff target (µA/µm)",
+        self.ioff = pn.widgets.TextInput(label="Ioff target (µA/µm)",
                                          value=f"{state.ioff_target_uA_per_um:g}", width=115)
         self.run_on = pn.widgets.RadioButtonGroup(options=list(RUN_ON), value=RUN_ON[0],
                                                   button_type="default", width=250)
-        self.workers = pn.widgets.IntInput(name="Local workers (processes)",
+        self.workers = pn.widgets.IntInput(label="Local workers (processes)",
                                            value=LOCAL_WORKERS_RANGE[1], start=LOCAL_WORKERS_RANGE[0],
                                            end=LOCAL_WORKERS_RANGE[1], width=170)
-        self.address = pn.widgets.TextInput(name="Scheduler address", value="",
+        self.address = pn.widgets.TextInput(label="Scheduler address", value="",
                                             placeholder="tcp://HOST:8786", width=250,
                                             disabled=True)
         self.run_on.param.watch(self._run_on_changed, "value")
-        self.run = pn.widgets.Button(name="Run sweep", button_type="primary", width=130,
+        self.run = pn.widgets.Button(label="Run sweep", button_type="primary", width=130,
                                      css_classes=["sweep-run"])
-        self.confirm = pn.widgets.Button(name="Confirm", button_type="warning", width=220,
+        self.confirm = pn.widgets.Button(label="Confirm", button_type="warning", width=220,
                                          visible=False, css_classes=["sweep-confirm"])
-        self.cancel = pn.widgets.Button(name="Cancel", width=90, disabled=True,
+        self.cancel = pn.widgets.Button(label="Cancel", width=90, disabled=True,
                                         css_classes=["sweep-cancel"])
         self.run.on_click(lambda _e: self.start())
         self.confirm.on_click(lambda _e: self.start(confirmed=True))
@@ -248,16 +253,16 @@ class SweepView:
 
         # ---------------------------------------------------------------- results
         metric_opts = {v: k for k, v in METRIC_LABELS.items()}
-        self.map_metric = pn.widgets.Select(name="Map of", options=metric_opts,
+        self.map_metric = pn.widgets.Select(label="Map of", options=metric_opts,
                                             value="ion_uA_per_um", width=140)
-        self.map_x = pn.widgets.Select(name="across", options={}, width=115)
-        self.map_y = pn.widgets.Select(name="and", options={}, width=115)
-        self.pareto_against = pn.widgets.Select(name="Ion against", options=PARETO_AGAINST,
+        self.map_x = pn.widgets.Select(label="across", options={}, width=115)
+        self.map_y = pn.widgets.Select(label="and", options={}, width=115)
+        self.pareto_against = pn.widgets.Select(label="Ion against", options=PARETO_AGAINST,
                                                 value="ss_avg4_mV_per_dec", width=150)
-        self.colour_by = pn.widgets.Select(name="coloured by", options={}, width=170)
-        self.sens_metric = pn.widgets.Select(name="Sensitivity of", options=metric_opts,
+        self.colour_by = pn.widgets.Select(label="coloured by", options={}, width=170)
+        self.sens_metric = pn.widgets.Select(label="Sensitivity of", options=metric_opts,
                                              value="ion_uA_per_um", width=150)
-        self.sens_run = pn.widgets.Button(name="At the present design", width=165,
+        self.sens_run = pn.widgets.Button(label="At the present design", width=165,
                                           margin=(23, 8, 4, 8), css_classes=["sweep-sensitivity-run"])
         self.sens_run.on_click(lambda _e: self.start_sensitivity())
         for w in (self.map_metric, self.map_x, self.map_y):
@@ -363,10 +368,10 @@ class SweepView:
     # ------------------------------------------------------------------ running
     def _target(self) -> tuple[str | None, int | None]:
         if self.run_on.value == RUN_ON[1]:
-            addr = (self.address.value or "").strip()
-            if not addr:
-                raise SpecError("Scheduler address: empty; expected tcp://HOST:PORT")
-            return addr, None
+            try:
+                return check_scheduler_address(self.address.value or ""), None
+            except ValueError as exc:
+                raise SpecError(str(exc)) from None
         return None, self.workers.value
 
     def start(self, confirmed: bool = False) -> bool:
@@ -381,7 +386,7 @@ class SweepView:
                 if big is None:
                     raise
                 self._confirmed_size = None
-                self.confirm.name = f"Confirm: run {big:,} designs"
+                self.confirm.label = f"Confirm: run {big:,} designs"
                 self.confirm.visible = True
                 self._say(f"This sweep holds {big:,} designs, more than {LARGE_SWEEP:,}: at about "
                           f"1 s per design and worker that is {_hours(big, workers)}. Press "
