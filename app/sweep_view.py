@@ -270,12 +270,12 @@ class SweepView:
         for w in (self.pareto_against, self.colour_by):
             w.param.watch(lambda _e: self._draw_pareto(), "value")
         self.sens_metric.param.watch(lambda _e: self._draw_sensitivity(), "value")
-        self.map_pane = pn.pane.Bokeh(message_plot("sweep_map", "Map of a figure of merit",
+        self.map_pane = pn.pane.Bokeh(message_plot("sweep_map_empty", "Map of a figure of merit",
                                                    "run a sweep to fill this map"), margin=(2, 2))
-        self.pareto_pane = pn.pane.Bokeh(message_plot("sweep_pareto", "Pareto front",
+        self.pareto_pane = pn.pane.Bokeh(message_plot("sweep_pareto_empty", "Pareto front",
                                                       "run a sweep to see its Pareto front"),
                                          margin=(2, 2))
-        self.sens_pane = pn.pane.Bokeh(message_plot("sweep_sensitivity", "Sensitivities",
+        self.sens_pane = pn.pane.Bokeh(message_plot("sweep_sensitivity_empty", "Sensitivities",
                                                     "press “At the present design”"),
                                        margin=(2, 2))
         self.sens_notes = pn.pane.HTML("", stylesheets=css, width=420, margin=(0, 8),

@@ -46,14 +46,22 @@ def _type(page, css_class: str, text: str, row: int = 0) -> None:
     box.press("Enter")
 
 
+# the text of the sweep tab's message (an Alert pane: HTML in its model's `text`)
+MESSAGE_JS = """() => {
+  const m = sub60.byClass('sweep-message');
+  if (!m || !m.visible) { return ''; }
+  const t = document.createElement('textarea'); t.innerHTML = m.text;
+  return new DOMParser().parseFromString(t.value, 'text/html').body.textContent;
+}"""
+
+
 def test_range_outside_the_field_bounds_is_refused_naming_the_field(browser, app_url):
     page, errors = _open_sweep_tab(browser, app_url)
     try:
         _type(page, "sweep-knob-high", "50")  # body thickness: allowed 2-30 nm
         page.locator(".sweep-run button").click()
-        msg = page.locator(".sweep-message")
-        msg.wait_for(state="visible", timeout=20_000)
-        text = msg.inner_text()
+        page.wait_for_function(f"() => ({MESSAGE_JS})().includes('Body thickness')", timeout=20_000)
+        text = page.evaluate(MESSAGE_JS)
         assert "Body thickness (nm)" in text and "[2, 30]" in text, text
         assert page.evaluate("() => sub60.byClass('sweep-cancel').disabled") is True  # nothing ran
         assert not errors, errors
@@ -62,10 +70,11 @@ def test_range_outside_the_field_bounds_is_refused_naming_the_field(browser, app
 
 
 POINT_ON_SCREEN = """(i) => {
-  const fig = sub60.model('sweep_pareto');
+  const src = sub60.model('sweep_pareto_source');
+  const fig = [...sub60.doc()._all_models.values()].find(m => m.type === 'Figure' &&
+    m.renderers.some(r => r.data_source === src));
   const view = Bokeh.index.find_one(fig);
   view.canvas_view.el.scrollIntoView({block: 'center'});
-  const src = sub60.model('sweep_pareto_source');
   const sx = view.frame.x_scale.compute(src.data.x[i]);
   const sy = view.frame.y_scale.compute(src.data.y[i]);
   const r = view.canvas_view.el.getBoundingClientRect();
@@ -105,7 +114,8 @@ def test_small_sweep_fills_map_and_front_and_a_click_loads_the_design(browser, a
             arg=want_t, timeout=30_000)
         doping = page.evaluate("() => sub60.sliderOf('ctl-source_doping_log10_cm3').value")
         assert doping == pytest.approx(math.log10(want_na), abs=1e-6)
-        assert page.evaluate("() => sub60.byClass('sub60-tabs').active") == 0  # back to the explorer
+        page.wait_for_function("() => sub60.byClass('sub60-tabs').active === 0",
+                               timeout=20_000)  # the page shows the explorer again
         assert not errors, errors
     finally:
         page.close()
