@@ -70,7 +70,7 @@ PARETO_AGAINST: dict[str, str] = {"SS avg (4 decades)": "ss_avg4_mV_per_dec",
 #: Cells of a map that still get their value written inside.
 CELL_TEXT_LIMIT = 80
 PLOT_WIDTH = 395
-PLOT_HEIGHT = 400
+PLOT_HEIGHT = 430
 #: Fill of a map cell whose figure of merit is undefined (its reason in the hover).
 UNDEFINED_FILL = "#e9ecef"
 
