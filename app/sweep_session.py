@@ -53,6 +53,18 @@ CONNECT_TIMEOUT_S = 10.0
 #: Local worker processes a page may start [-].
 LOCAL_WORKERS_RANGE = (1, max(1, os.cpu_count() or 1))
 
+#: Local clusters the pages of one server may hold at once: each is a set of worker
+#: processes as large as the machine, kept until its page closes (engineering choice for
+#: a shared 2-core machine, no source). A page beyond it is told to wait or to give a
+#: scheduler address.
+MAX_LOCAL_CLUSTERS = 2
+_local_clusters = threading.BoundedSemaphore(MAX_LOCAL_CLUSTERS)
+
+
+class ClusterLimit(RuntimeError):
+    """Every local-cluster place of the server is taken by other pages."""
+
+
 #: Every live `SweepSession` (for tests and diagnostics counting open clusters).
 LIVE_SWEEP_SESSIONS: weakref.WeakSet = weakref.WeakSet()
 
@@ -228,8 +240,16 @@ class SweepSession:
             if on_start:
                 on_start(f"starting a local cluster of {target[1]} worker"
                          f"{'s' if target[1] > 1 else ''}…")
-            cluster = LocalCluster(n_workers=target[1], threads_per_worker=1, processes=True,
-                                   **LOCAL_CLUSTER_OPTIONS)
+            if not _local_clusters.acquire(blocking=False):
+                raise ClusterLimit(f"Local workers: {MAX_LOCAL_CLUSTERS} pages of this server run "
+                                   "local clusters already; wait until one is closed, or give a "
+                                   "Dask scheduler address")
+            try:
+                cluster = LocalCluster(n_workers=target[1], threads_per_worker=1, processes=True,
+                                       **LOCAL_CLUSTER_OPTIONS)
+            except BaseException:
+                _local_clusters.release()
+                raise
             with self._lock:
                 self._cluster = cluster
             client = Client(cluster)
@@ -254,6 +274,8 @@ class SweepSession:
                     thing.close()
                 except Exception:  # noqa: BLE001 - already gone (a lost scheduler)
                     pass
+        if cluster is not None:
+            _local_clusters.release()
 
     def close(self, wait: bool = False) -> None:
         """End the session's sweeps: cancel the run, close the client and the local

@@ -16,6 +16,7 @@ from pathlib import Path
 
 import pytest
 
+from sub60.app import sweep_session
 from sub60.app.state import ExplorerState
 from sub60.app.sweep_engine import (
     BACKGROUND_NICENESS,
@@ -155,3 +156,25 @@ def test_session_runs_a_sweep_and_a_sensitivity_then_closes_its_cluster(tmp_path
     session._pool.shutdown(wait=True)
     assert str(cluster.status) == "Status.closed"
     assert session._client is None and not root.exists()
+
+
+def test_a_page_beyond_the_local_cluster_limit_is_told_to_wait() -> None:
+    """With every local-cluster place taken (by other pages), a sweep is refused with a
+    message naming the control, before any process starts."""
+    taken = 0
+    while sweep_session._local_clusters.acquire(blocking=False):
+        taken += 1
+    try:
+        v = _view()
+        v.knobs[0].values.value = "6"
+        v._remove_knob(v.knobs[1])
+        done = threading.Event()
+        v.post = lambda fn, *a: (fn(*a), done.set() if fn == v._sweep_done else None)
+        assert v.start(), v.message.object
+        assert done.wait(60)
+        assert "Local workers" in v.message.object and "scheduler address" in v.message.object
+        assert not v.session.cluster_running()
+        v.close()
+    finally:
+        for _ in range(taken):
+            sweep_session._local_clusters.release()
