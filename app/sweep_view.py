@@ -397,18 +397,20 @@ class SweepView:
         except SpecError as exc:
             self._say(str(exc))
             return False
+        # the page shows the run before it starts: its end may be delivered at once
+        self._say("")
+        self._busy(True)
+        self.progress.value = 0
+        self.status.object = f"Sweep of {spec.size():,} designs: starting…"
         try:
             self.session.run(spec, scheduler=scheduler, workers=workers,
                              on_progress=lambda p: self.post(self._show_progress, p),
                              on_done=lambda out: self.post(self._sweep_done, out, spec),
                              on_start=lambda t: self.post(self._show_status, t))
         except (SweepBusy, ValueError) as exc:
+            self._busy(False)
             self._say(str(exc))
             return False
-        self._say("")
-        self._busy(True)
-        self.progress.value = 0
-        self.status.object = f"Sweep of {spec.size():,} designs: starting…"
         return True
 
     def _large_size(self) -> int | None:
@@ -433,6 +435,11 @@ class SweepView:
             self._say("Sensitivity needs a numeric knob (a text field such as the material has "
                       "no derivative).")
             return False
+        self._say("")
+        self._busy(True)
+        self.progress.value = 0
+        self.status.object = (f"Sensitivity: {2 * len(fields) + 1} designs (the present one "
+                              f"and ±5 % in {len(fields)} knob{'s' if len(fields) > 1 else ''})…")
         try:
             self.session.run_sensitivity(
                 design, fields, spec, scheduler=scheduler, workers=workers,
@@ -440,13 +447,9 @@ class SweepView:
                 on_done=lambda out: self.post(self._sensitivity_done, out, design),
                 on_start=lambda t: self.post(self._show_status, t))
         except (SweepBusy, ValueError) as exc:
+            self._busy(False)
             self._say(str(exc))
             return False
-        self._say("")
-        self._busy(True)
-        self.progress.value = 0
-        self.status.object = (f"Sensitivity: {2 * len(fields) + 1} designs (the present one "
-                              f"and ±5 % in {len(fields)} knob{'s' if len(fields) > 1 else ''})…")
         return True
 
     def _busy(self, on: bool) -> None:
