@@ -226,6 +226,9 @@ class Controls:
         for name in ("material", "oxide"):
             w[name] = pn.widgets.Select.from_param(s[name], width=WIDGET_WIDTH,
                                                    margin=(4, 10), css_classes=[f"ctl-{name}"])
+        w["tunnelling_model"] = pn.widgets.RadioBoxGroup.from_param(
+            s.tunnelling_model, inline=False, width=WIDGET_WIDTH, margin=(0, 10),
+            css_classes=["ctl-tunnelling_model"])
         for name in ("gate_layout", "source_type", "channel_dopant"):
             w[name] = pn.widgets.RadioButtonGroup.from_param(
                 s[name], width=WIDGET_WIDTH, margin=(4, 10), css_classes=[f"ctl-{name}"])
@@ -250,6 +253,11 @@ class Controls:
             "at V<sub>off</sub> + V<sub>dd</sub>. Low-power logic targets are lower, about "
             "10–100 pA/µm; high-performance ones near 100 nA/µm (common practice).</div>",
             stylesheets=self._css, margin=(0, 12))
+        model_note = pn.pane.HTML(
+            '<div class="note">WKB integrates the decay of the wave through the gap; the '
+            "exact two-band transmission solves the same two-band Hamiltonian by transfer "
+            "matrices along the same subband edges (slower). The Transmission plot draws "
+            "both at the present bias.</div>", stylesheets=self._css, margin=(0, 12))
         return [
             card("Demo designs and snapshots", *snapshots.items),
             card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], w["vdd_V"],
@@ -263,5 +271,7 @@ class Controls:
             card("Gate stack", w["oxide"], w["oxide_thickness_nm"], self.eot,
                  w["oxide_permittivity"], w["gate_workfunction_eV"], collapsed=True),
             card("Material and temperature", w["material"], w["temperature_K"],
+                 collapsed=True),
+            card("Tunnelling model", self._labelled("tunnelling_model"), model_note,
                  collapsed=True),
         ]

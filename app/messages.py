@@ -19,7 +19,8 @@ import param
 from sub60.app.state import ExplorerState, label_of
 
 CAUTION = ("Design-exploration model with stated approximations (semiclassical charge with "
-           "confinement-shifted band edges, WKB tunnelling, ballistic transport, no traps) — "
+           "confinement-shifted band edges, two-band tunnelling by WKB or exact transmission, "
+           "ballistic transport, no traps) — "
            "not calibrated TCAD; decisions rest on local practice and measurement.")
 TITLE = "sub60 · tunnel FET explorer"
 
@@ -91,17 +92,23 @@ def validity_notes_html(warnings: Sequence[str]) -> str:
             f'them with care):<ul>{"".join(items)}</ul></div>')
 
 
+#: Short name of each tunnelling model, for the one-line design summary.
+MODEL_SHORT = {"two-band": "two-band WKB", "one-band": "one-band WKB",
+               "two-band-exact": "exact two-band transmission"}
+
+
 def header_html(state: ExplorerState) -> str:
     """Title, one-line design summary (with its EOT) and the model's caution."""
     try:
         d = state.design()
+        m = state.tunnelling_model
         eot = d.eot_nm
         layout = "double gate" if d.gate_layout == "double" else "single gate"
         src = "p+" if d.source_type == "p" else "n+"
         summary = (f"{d.material} body {d.body_thickness_nm:g} nm · L<sub>g</sub> "
                    f"{d.gate_length_nm:g} nm · {layout} · {d.oxide} {d.oxide_thickness_nm:g} nm "
                    f"(EOT {eot:.2f} nm) · {src} source {d.source_doping_cm3:.1e} cm⁻³ · "
-                   f"{d.temperature_K:g} K")
+                   f"{d.temperature_K:g} K · {MODEL_SHORT.get(m, m)}")
     except ValueError:
         summary = "invalid design — see the message below"
     return (f'<div class="title">{TITLE}</div>'

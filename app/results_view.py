@@ -84,8 +84,8 @@ class ResultsView:
         self.status.object = f"Computing curves… {min(done, total)}/{total} points"
 
     # ------------------------------------------------------------------ bias point
-    def bias_solved(self, bp: Any) -> None:
-        self.figures.show_bias(bp)
+    def bias_solved(self, bp: Any, transmissions: Any = None) -> None:
+        self.figures.show_bias(bp, transmissions)
         self.messages.clear("bias")
         self.show_notes(getattr(bp, "warnings", ()))
 

@@ -20,7 +20,15 @@ from typing import Any
 import numpy as np
 import param
 
-from sub60.physics import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, dielectrics, semiconductors
+from sub60.physics import (
+    FIELD_RANGES,
+    TUNNELLING_MODELS,
+    VD_RANGE_V,
+    VG_RANGE_V,
+    Design,
+    dielectrics,
+    semiconductors,
+)
 
 _DEFAULT = Design()
 
@@ -53,12 +61,22 @@ DESIGN_PARAMETERS: tuple[str, ...] = (
     "drain_doping_log10_cm3", "doping_gradient_nm_per_dec",
     "oxide", "oxide_thickness_nm", "oxide_permittivity", "gate_workfunction_eV",
 )
+#: The tunnelling model of the physics (`physics.TUNNELLING_MODELS`) in plain words, as
+#: the page and its messages name it.
+TUNNELLING_MODEL_NAMES: dict[str, str] = {
+    "two-band": "WKB estimate, both bands set the decay (default)",
+    "one-band": "WKB estimate, conduction band alone sets the decay",
+    "two-band-exact": "Exact quantum transmission, two-band model",
+}
+#: Settings of the numerical model (every curve and band diagram depends on them).
+MODEL_PARAMETERS: tuple[str, ...] = ("tunnelling_model",)
 #: Settings of the single bias point (band diagram).
 BIAS_PARAMETERS: tuple[str, ...] = ("vg_V", "vd_V")
 #: Settings of the transfer-curve sweep and of its figures of merit.
 SWEEP_PARAMETERS: tuple[str, ...] = ("vg_sweep_V", "vg_points", "vdd_V", "ioff_log10_uA_per_um")
 #: Every setting that changes a result.
-COMPUTED_PARAMETERS: tuple[str, ...] = DESIGN_PARAMETERS + BIAS_PARAMETERS + SWEEP_PARAMETERS
+COMPUTED_PARAMETERS: tuple[str, ...] = (DESIGN_PARAMETERS + MODEL_PARAMETERS + BIAS_PARAMETERS
+                                         + SWEEP_PARAMETERS)
 
 #: Output curves: gate voltages below the present one and their spacing [V].
 OUTPUT_CURVES = 4
@@ -163,6 +181,15 @@ class ExplorerState(param.Parameterized):
         default=-3.0, bounds=(-8.0, 0.0), step=0.25, label="Ioff target (per µm of width)",
         doc="log10 of the off-current target that defines Voff [log10 µA/µm].")
 
+    # ---------------------------------------------------------------- numerical model
+    tunnelling_model = param.Selector(
+        default=TUNNELLING_MODELS[0],
+        objects={TUNNELLING_MODEL_NAMES.get(m, m): m for m in TUNNELLING_MODELS},
+        label="Tunnelling model",
+        doc="How the band-to-band transmission is computed: WKB with the two-band or the "
+            "one-band imaginary wave-vector, or the exact two-band transmission "
+            "(physics.TUNNELLING_MODELS).")
+
     # ---------------------------------------------------------------- display
     presentation = param.Boolean(default=False, label="Presentation mode",
                                  doc="Hide the controls and enlarge text and lines.")
@@ -259,12 +286,12 @@ class ExplorerState(param.Parameterized):
     def transfer_key(self) -> tuple:
         """Everything a transfer curve and its metrics depend on (hashable)."""
         lo, hi = self.vg_sweep_V
-        return (self.design(), float(self.vd_V), float(lo), float(hi), int(self.vg_points),
-                self.ioff_target_uA_per_um, float(self.vdd_V))
+        return (self.design(), self.tunnelling_model, float(self.vd_V), float(lo), float(hi),
+                int(self.vg_points), self.ioff_target_uA_per_um, float(self.vdd_V))
 
     def output_key(self) -> tuple:
         """Everything the output curves depend on (hashable)."""
-        return (self.design(), tuple(self.output_gate_voltages()),
+        return (self.design(), self.tunnelling_model, tuple(self.output_gate_voltages()),
                 tuple(self.output_drain_voltages()))
 
 

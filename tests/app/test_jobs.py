@@ -55,7 +55,7 @@ class FakeSimulator:
         self.bias_calls.append((design, vg, vd))
         self._pause()
         return SimpleNamespace(design=design, vg_V=vg, vd_V=vd, electrostatics=None,
-                               current_uA_per_um=1.0)
+                               current_uA_per_um=1.0, pair_currents_uA_per_um={})
 
     def transfer_curve(self, device, vg, vd, ioff_target_uA_per_um, vdd_V, progress=None,
                        cancelled=None, slots=None):
