@@ -170,8 +170,12 @@ def build_parser() -> argparse.ArgumentParser:
                              f"(default {TUNNELLING_MODELS[0]})")
 
     common(sub.add_parser("bands", help="band diagram at one bias"), "0.3", "0.3")
-    t = sub.add_parser("transfer", help="transfer curve Id-Vg with figures of merit")
-    common(t, "-0.3:0.6:46", "0.3")
+    from sub60.app.state import DEFAULT_GATE_SWEEP
+
+    t = sub.add_parser("transfer", help="transfer curve Id-Vg with figures of merit "
+                       f"(default sweep {DEFAULT_GATE_SWEEP.option_text()}, the page's: "
+                       f"{1e3 * DEFAULT_GATE_SWEEP.step_V:g} mV steps)")
+    common(t, DEFAULT_GATE_SWEEP.option_text(), "0.3")
     t.add_argument("--twin", action="store_true", help="also the n+ source MOSFET twin")
     t.add_argument("--ioff", type=ioff_option, default=1e-3, help="Ioff target [uA/um]")
     t.add_argument("--vdd", type=vdd_option, default=0.3,

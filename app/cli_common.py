@@ -26,6 +26,7 @@ from sub60.app.number_rules import (
     parse_json,
     parse_number,
 )
+from sub60.app.state import sweep_voltages
 
 
 class UsageError(Exception):
@@ -52,15 +53,11 @@ def _voltage_range(name: str) -> tuple[float, float]:
     return VD_RANGE_V if name.startswith("vd") else VG_RANGE_V
 
 
-#: Decimals [V] kept of a swept voltage: 1e-12 V is far below any bias that matters and
-#: removes linspace's float noise (-5.55e-17 for 0, -0.27999999999999997 for -0.28).
-SWEEP_DECIMALS = 12
-
-
 def parse_sweep(text: str, name: str) -> np.ndarray:
     """'V' or 'START:STOP:N' -> voltages [V], each number by the shared rules
     (`app.number_rules`) and within the bias range of `name` ("vg..." or "vd...");
-    sweep voltages rounded to 1e-12 V (`SWEEP_DECIMALS`)."""
+    sweep voltages by `app.state.sweep_voltages` (rounded to 1e-12 V, `SWEEP_DECIMALS`:
+    no float noise such as -5.55e-17 for 0), the same numbers as the page's."""
     lo, hi = _voltage_range(name)
     parts = text.split(":")
     try:
@@ -68,9 +65,8 @@ def parse_sweep(text: str, name: str) -> np.ndarray:
             return np.array([parse_number(parts[0], f"--{name}", lo, hi, "V")])
         if len(parts) == 3:
             n = parse_integer(parts[2], f"--{name}: N", 1, 2001)
-            values = np.linspace(parse_number(parts[0], f"--{name}: START", lo, hi, "V"),
-                                 parse_number(parts[1], f"--{name}: STOP", lo, hi, "V"), n)
-            return np.round(values, SWEEP_DECIMALS) + 0.0  # + 0.0 turns -0.0 into 0.0
+            return sweep_voltages(parse_number(parts[0], f"--{name}: START", lo, hi, "V"),
+                                  parse_number(parts[1], f"--{name}: STOP", lo, hi, "V"), n)
     except InputError as exc:
         raise UsageError(str(exc)) from None
     raise UsageError(f"--{name}: expected V or START:STOP:N, got {ascii(text)}")

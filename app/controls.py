@@ -178,6 +178,9 @@ class Controls:
                 self.widgets[name].on_accepted = lambda: messages.clear("input")
         self.eot = pn.pane.HTML(eot_html(state), css_classes=["eot"], stylesheets=self._css,
                                 margin=(0, 12))
+        self.sweep_step = pn.pane.HTML(self._step_html(), css_classes=["vg-step"],
+                                       stylesheets=self._css, margin=(0, 12))
+        state.param.watch(self._refresh_step, ["vg_sweep_V", "vg_points"])
         self.reset_button = pn.widgets.Button(label="Reset all settings to defaults",
                                               color="light", width=WIDGET_WIDTH,
                                               margin=(8, 10), css_classes=["reset-button"])
@@ -198,6 +201,12 @@ class Controls:
         rules = {rule: widget for widget, rule in ENABLE_RULES.items()}
         for e in events:
             self.widgets[rules[e.name]].disabled = not e.new
+
+    def _step_html(self) -> str:
+        return f'<div class="note">{self.state.vg_step_text()} between the sweep\'s ends</div>'
+
+    def _refresh_step(self, *_events) -> None:
+        self.sweep_step.object = self._step_html()
 
     def _refresh_eot(self, *_events) -> None:
         self.eot.object = eot_html(self.state)
@@ -260,7 +269,8 @@ class Controls:
             "both at the present bias.</div>", stylesheets=self._css, margin=(0, 12))
         return [
             card("Demo designs and snapshots", *snapshots.items),
-            card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], w["vdd_V"],
+            card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], self.sweep_step,
+                 w["vdd_V"],
                  w["ioff_log10_uA_per_um"], ioff_note),
             card("Structure", w["body_thickness_nm"], w["gate_length_nm"],
                  w["source_length_nm"], w["drain_length_nm"], self._labelled("gate_layout"),

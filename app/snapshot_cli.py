@@ -41,7 +41,11 @@ def add_snapshot_parser(sub) -> None:
                    help="override one design field (repeatable)")
     e.add_argument("--vg", help="gate voltage of the band diagram [V]")
     e.add_argument("--vd", help="drain voltage of the band diagram and transfer curves [V]")
-    e.add_argument("--sweep", help="gate sweep of the transfer curves START:STOP:N [V]")
+    from sub60.app.state import DEFAULT_GATE_SWEEP
+
+    e.add_argument("--sweep", help="gate sweep of the transfer curves START:STOP:N [V] "
+                   f"(default {DEFAULT_GATE_SWEEP.option_text()}, the page's; a preset "
+                   "keeps its own)")
     e.add_argument("--vdd", type=vdd_option, help="supply for Ion = Id(Voff + Vdd) [V]")
     e.add_argument("--ioff", type=ioff_option, help="Ioff target [uA/um]")
     e.add_argument("--output-vg", help="gate voltages of the output curves, V1,V2,... [V]")

@@ -15,6 +15,7 @@ two stay linked both ways; nothing here imports Panel or Bokeh.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -50,6 +51,56 @@ def _log_bounds(field: str, low: float | None = None) -> tuple[float, float]:
 def _sig(value: float, digits: int = 4) -> float:
     """Round to significant digits, so 10**log10(4e19) gives back exactly 4e19."""
     return float(f"{value:.{digits - 1}e}")
+
+
+@dataclass(frozen=True)
+class GateSweep:
+    """The gate voltages of a transfer curve: first and last [V], number of points [-]."""
+
+    start_V: float
+    stop_V: float
+    points: int
+
+    @property
+    def step_V(self) -> float:
+        """Spacing of the gate voltages [V]."""
+        return vg_step_V(self.start_V, self.stop_V, self.points)
+
+    def gate_voltages(self) -> np.ndarray:
+        """The gate voltages [V]."""
+        return sweep_voltages(self.start_V, self.stop_V, self.points)
+
+    def option_text(self) -> str:
+        """The sweep as the command line writes it, START:STOP:N."""
+        return f"{self.start_V:g}:{self.stop_V:g}:{self.points}"
+
+
+#: The one default transfer sweep of the page, the command line (`sub60 transfer`) and
+#: new snapshots: -0.4 to 0.6 V in 25 mV steps, so that the ambipolar branch and the
+#: on-state are both on the curve. Snapshots keep the sweep they store.
+DEFAULT_GATE_SWEEP = GateSweep(-0.4, 0.6, 41)
+
+
+#: Decimals kept of a sweep's voltages [V]: 1e-12 V removes float noise such as
+#: -0.30000000000000004 and changes no voltage a user can type.
+SWEEP_DECIMALS = 12
+
+
+def sweep_voltages(start_V: float, stop_V: float, points: int) -> np.ndarray:
+    """`points` evenly spaced voltages from start_V to stop_V, rounded to `SWEEP_DECIMALS`
+    (the same numbers on the page, on the command line and in snapshots) [V]."""
+    values = np.linspace(float(start_V), float(stop_V), int(points))
+    return np.round(values, SWEEP_DECIMALS) + 0.0  # + 0.0 turns -0.0 into 0.0
+
+
+def vg_step_V(start_V: float, stop_V: float, points: int) -> float:
+    """Spacing of `points` gate voltages from start_V to stop_V [V]."""
+    return (float(stop_V) - float(start_V)) / max(int(points) - 1, 1)
+
+
+def vg_step_text(start_V: float, stop_V: float, points: int) -> str:
+    """The gate-voltage step in words, e.g. 'Vg step 25 mV'."""
+    return f"Vg step {1e3 * vg_step_V(start_V, stop_V, points):.3g} mV"
 
 
 #: Settings whose change alters the device (and so every curve).
@@ -169,10 +220,12 @@ class ExplorerState(param.Parameterized):
                         doc="Gate voltage of the band diagram [V].")
     vd_V = param.Number(default=0.3, bounds=VD_RANGE_V, step=0.01, label="Drain voltage (V)",
                         doc="Drain voltage of the band diagram and of the transfer curves [V].")
-    vg_sweep_V = param.Range(default=(-0.4, 0.6), bounds=VG_RANGE_V,
+    vg_sweep_V = param.Range(default=(DEFAULT_GATE_SWEEP.start_V, DEFAULT_GATE_SWEEP.stop_V),
+                             bounds=VG_RANGE_V,
                              label="Gate sweep (V)",
                              doc="First and last gate voltage of the transfer curves [V].")
-    vg_points = param.Integer(default=41, bounds=(11, 81), label="Points per transfer curve",
+    vg_points = param.Integer(default=DEFAULT_GATE_SWEEP.points, bounds=(11, 81),
+                              label="Points per transfer curve",
                               doc="Gate voltages of each transfer curve [-].")
     vdd_V = param.Number(default=0.3, bounds=(0.05, 1.0), step=0.01,
                          label="Supply Vdd for Ion (V)",
@@ -270,7 +323,12 @@ class ExplorerState(param.Parameterized):
     def sweep_gate_voltages(self) -> np.ndarray:
         """Gate voltages of the transfer curves [V]."""
         lo, hi = self.vg_sweep_V
-        return np.linspace(lo, hi, int(self.vg_points))
+        return sweep_voltages(lo, hi, self.vg_points)
+
+    def vg_step_text(self) -> str:
+        """The transfer sweep's gate-voltage step in words ('Vg step 25 mV')."""
+        lo, hi = self.vg_sweep_V
+        return vg_step_text(lo, hi, self.vg_points)
 
     def output_gate_voltages(self) -> np.ndarray:
         """Gate voltages of the output curves: up to four, ending at the present Vg [V]."""
