@@ -18,7 +18,12 @@ from bokeh.models import CustomJSTickFormatter
 from panel.links import Callback
 
 from sub60.app.compare_panes import SnapshotControls
-from sub60.app.messages import MessageBoard, eot_html, refused_value_message
+from sub60.app.messages import (
+    MessageBoard,
+    eot_html,
+    refused_sweep_message,
+    refused_value_message,
+)
 from sub60.app.state import DESIGN_PARAMETERS, ExplorerState
 
 SIDEBAR_WIDTH = 330
@@ -144,6 +149,62 @@ class _NowEditableFloatSlider(pn.widgets.EditableFloatSlider):
                                                   self.value))
 
 
+class _CheckedRangeSlider(pn.widgets.EditableRangeSlider):
+    """A range slider with two entry boxes whose typed ends are checked here, on the
+    server: a first voltage not below the last, a value outside the bounds or not a
+    number is refused with a message naming the control (``on_refused``), and both boxes
+    show the kept sweep again; an accepted typed end is complete at once (also the
+    throttled value) and calls ``on_accepted``. Panel's browser-side callbacks, which
+    silently rewrote a first voltage above the last into the last, are dropped."""
+
+    def __init__(self, **params) -> None:
+        self.on_refused: Callable[[str], None] | None = None
+        self.on_accepted: Callable[[], None] | None = None
+        self._restoring = False
+        super().__init__(**params)
+        for box in (self._start_edit, self._end_edit):
+            Callback.registry.pop(box, None)
+
+    @param.depends("start", "end", "fixed_start", "fixed_end", watch=True)
+    def _update_bounds(self) -> None:
+        super()._update_bounds()
+        for box in (self._start_edit, self._end_edit):  # no silent clamping in the browser
+            box.param.update(start=None, end=None)
+
+    def _sync_start_value(self, event) -> None:
+        self._typed(event, 0)
+
+    def _sync_end_value(self, event) -> None:
+        self._typed(event, 1)
+
+    def _typed(self, event, index: int) -> None:
+        if event.name not in ("value", "value_throttled") or self._restoring:
+            return
+        kept = tuple(self.value)
+        new = None if event.new is None else round(float(event.new), VALUE_DECIMALS)
+        pair = list(kept)
+        if new is not None:
+            pair[index] = new
+        lo, hi = self.fixed_start, self.fixed_end
+        ok = (new is not None and math.isfinite(new) and (lo is None or new >= lo)
+              and (hi is None or new <= hi) and pair[0] < pair[1])
+        if not ok:
+            self._restoring = True
+            try:
+                self._start_edit.value, self._end_edit.value = kept
+            finally:
+                self._restoring = False
+            if self.on_refused is not None:
+                self.on_refused(refused_sweep_message(
+                    self.label or self.name, ("first", "last")[index], new, lo, hi, kept))
+            return
+        if tuple(pair) != kept:
+            with param.edit_constant(self):
+                self.param.update(value=tuple(pair), value_throttled=tuple(pair))
+        if self.on_accepted is not None:
+            self.on_accepted()
+
+
 def log_cm3_formatter() -> CustomJSTickFormatter:
     """A new formatter of doping sliders (log10 cm^-3 shown as 4.0e19)."""
     return CustomJSTickFormatter(code=LOG_CM3_JS)
@@ -173,7 +234,7 @@ class Controls:
         self._css = list(css)
         self.widgets = self._make_widgets()
         if messages is not None:
-            for name, _step in EDITABLE_STEPS:
+            for name in [n for n, _ in EDITABLE_STEPS] + ["vg_sweep_V"]:
                 self.widgets[name].on_refused = lambda text: messages.set("input", text)
                 self.widgets[name].on_accepted = lambda: messages.clear("input")
         self.eot = pn.pane.HTML(eot_html(state), css_classes=["eot"], stylesheets=self._css,
@@ -220,7 +281,7 @@ class Controls:
                 s[name], step=step, throttled=True, fixed_start=lo, fixed_end=hi,
                 width=WIDGET_WIDTH, margin=(2, 10), css_classes=[f"ctl-{name}"])
         lo, hi = s.vg_sweep_V.bounds
-        w["vg_sweep_V"] = pn.widgets.EditableRangeSlider.from_param(
+        w["vg_sweep_V"] = _CheckedRangeSlider.from_param(
             s.vg_sweep_V, step=0.05, throttled=True, fixed_start=lo, fixed_end=hi,
             width=WIDGET_WIDTH, margin=(2, 10), css_classes=["ctl-vg_sweep_V"])
         w["vg_points"] = _NowIntSlider.from_param(s.vg_points, step=2, throttled=True,

@@ -330,12 +330,15 @@ def ratio_note(wkb: np.ndarray, exact: np.ndarray, within: float = 1e-3) -> str:
 
 
 class MapPlot:
-    """Conduction-band edge over the cross-section (resampled to a uniform image), with
-    the body boundaries and the gate(s)."""
+    """Bulk conduction-band edge over the cross-section (resampled to a uniform image),
+    with the body boundaries and the gate(s); labelled as the bulk edge, without the
+    confinement shift that the band diagram's subbands carry."""
 
     def __init__(self, x_range: Range1d) -> None:
         self.colour_mapper = LinearColorMapper(palette=list(MAP_PALETTE), low=-1, high=1)
-        f = figure(name="map_plot", title="Conduction-band edge over the cross-section",
+        # the bulk edge (the band diagram draws the confined subbands): said in the title
+        f = figure(name="map_plot",
+                   title="Bulk conduction-band edge over the cross-section (no confinement shift)",
                    x_range=x_range, y_range=Range1d(0, 11),
                    x_axis_label="x (nm)", y_axis_label="y (nm)", tools=TOOLS)
         self.map_source = ColumnDataSource({"image": [], "x": [], "y": [], "dw": [], "dh": []},
@@ -343,8 +346,8 @@ class MapPlot:
         img = f.image("image", x="x", y="y", dw="dw", dh="dh", source=self.map_source,
                       color_mapper=self.colour_mapper)
         f.add_tools(HoverTool(renderers=[img], tooltips=[
-            ("x", "$x{0.0} nm"), ("y", "$y{0.0} nm"), ("Ec", "@image{0.000} eV")]))
-        bar = ColorBar(color_mapper=self.colour_mapper, title="Ec (eV)", width=10,
+            ("x", "$x{0.0} nm"), ("y", "$y{0.0} nm"), ("bulk Ec", "@image{0.000} eV")]))
+        bar = ColorBar(color_mapper=self.colour_mapper, title="bulk Ec (eV)", width=10,
                        title_text_font_size="11px", major_label_text_font_size="10px")
         f.add_layout(bar, "right")
         self.body_spans = [Span(location=0, dimension="width", line_color="white",

@@ -33,7 +33,13 @@ from sub60.app.snapshot_schema import (
     SnapshotSettings,
     TransferSweep,
 )
-from sub60.app.state import CHANNEL_DOPING_FLOOR_CM3, DESIGN_PARAMETERS, ExplorerState, label_of
+from sub60.app.state import (
+    CHANNEL_DOPING_FLOOR_CM3,
+    DESIGN_PARAMETERS,
+    ExplorerState,
+    label_of,
+    plain_words,
+)
 
 # ---------------------------------------------------------------------- snapshots
 
@@ -307,7 +313,7 @@ def updates_from_query(query: Mapping[str, str], base: ExplorerState | None = No
             if culprit is None:
                 break
             problems.append(f"{label_of(culprit)} ({QUERY_KEYS[culprit]}): "
-                            f"{rest.strip() or exc}")
+                            f"{plain_words(rest.strip() or str(exc))}")
             updates.pop(culprit)
             default = base if base is not None else ExplorerState()
             setattr(scratch, culprit, getattr(default, culprit))

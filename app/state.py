@@ -15,6 +15,7 @@ two stay linked both ways; nothing here imports Panel or Bokeh.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from typing import Any
 
@@ -372,3 +373,21 @@ def label_of(name: str) -> str:
     if name in ExplorerState.param:
         return ExplorerState.param[name].label
     return name
+
+
+def setting_words(name: str) -> str:
+    """A setting named in a sentence: its label without the unit, e.g. 'source length'
+    for source_length_nm, 'gate–source overlap' for gate_source_offset_nm."""
+    words = re.split(r" \(|,", label_of(name), maxsplit=1)[0].strip()
+    return words[:1].lower() + words[1:] if words[1:2].islower() else words
+
+
+def plain_words(text: str) -> str:
+    """A message with every internal setting name (``source_length_nm`` ...) replaced by
+    its words (`setting_words`), for the page: 'source_length_nm - gate_source_offset_nm
+    must be at least 1 nm' -> 'source length − gate–source overlap must be at least 1 nm'."""
+    names = sorted((n for n in {*FIELD_LABELS, *ExplorerState.param} if "_" in n),
+                   key=len, reverse=True)
+    out = re.sub(r"\b(" + "|".join(map(re.escape, names)) + r")\b",
+                 lambda m: setting_words(m.group(1)), text)
+    return out.replace(" - ", " − ")
