@@ -131,6 +131,21 @@ def read_bounded(path: str, limit_bytes: int) -> bytes | None:
     return None if len(data) > limit_bytes else data
 
 
+def set_fields_help() -> str:
+    """The design fields that ``--set NAME=VALUE`` accepts, one a line: name, meaning
+    with its unit, allowed values and default (for the commands' ``--help``)."""
+    from sub60.physics import FIELD_RANGES, Design
+
+    default = Design()
+    width = max(len(n) for n in FIELD_RANGES)
+    lines = ["design fields for --set NAME=VALUE (units in the names; numbers like 4e19):"]
+    for name, spec in FIELD_RANGES.items():
+        value = getattr(default, name)
+        shown = "none" if value is None else f"{value:g}" if isinstance(value, float) else value
+        lines.append(f"  {name:<{width}}  {spec.help}; {spec.describe()}; default {shown}")
+    return "\n".join(lines)
+
+
 def load_design(path: str | None, overrides: list[str]):
     """Design from a JSON file (or the default) with name=value overrides; the file is
     read by the shared JSON rules (`app.number_rules.parse_json`) and at most

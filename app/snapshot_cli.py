@@ -24,6 +24,7 @@ from sub60.app.cli_common import (
     load_design,
     parse_sweep,
     read_bounded,
+    set_fields_help,
     solve,
     vdd_option,
 )
@@ -33,12 +34,14 @@ def add_snapshot_parser(sub) -> None:
     """Register `snapshot` and its sub-commands on the `sub60` sub-parsers."""
     sp = sub.add_parser("snapshot", help="write, re-render or check a snapshot file")
     ss = sp.add_subparsers(dest="snapshot_command", parser_class=type(sp))
-    e = ss.add_parser("export", help="compute a view and write its snapshot zip")
+    e = ss.add_parser("export", help="compute a view and write its snapshot zip",
+                      epilog=set_fields_help(),
+                      formatter_class=argparse.RawDescriptionHelpFormatter)
     src = e.add_mutually_exclusive_group()
     src.add_argument("--design", help="design JSON file (the Design record, or settings)")
     src.add_argument("--preset", help="start from a demo preset (assets/presets/NAME.json)")
     e.add_argument("--set", action="append", default=[], metavar="NAME=VALUE",
-                   help="override one design field (repeatable)")
+                   help="override one design field (repeatable; the fields are listed below)")
     e.add_argument("--vg", help="gate voltage of the band diagram [V]")
     e.add_argument("--vd", help="drain voltage of the band diagram and transfer curves [V]")
     from sub60.app.state import DEFAULT_GATE_SWEEP
