@@ -297,7 +297,7 @@ class Controls:
             w[name] = pn.widgets.Select.from_param(s[name], width=WIDGET_WIDTH,
                                                    margin=(4, 10), css_classes=[f"ctl-{name}"])
         w["tunnelling_model"] = pn.widgets.RadioBoxGroup.from_param(
-            s.tunnelling_model, inline=False, width=WIDGET_WIDTH, margin=(0, 10),
+            s.tunnelling_model, inline=False, width=WIDGET_WIDTH, margin=(6, 10, 0, 10),
             css_classes=["ctl-tunnelling_model"])
         for name in ("gate_layout", "source_type", "channel_dopant"):
             w[name] = pn.widgets.RadioButtonGroup.from_param(
@@ -343,6 +343,6 @@ class Controls:
                  w["oxide_permittivity"], w["gate_workfunction_eV"], collapsed=True),
             card("Material and temperature", w["material"], w["temperature_K"],
                  collapsed=True),
-            card("Tunnelling model", self._labelled("tunnelling_model"), model_note,
+            card("Tunnelling model", w["tunnelling_model"], model_note,
                  collapsed=True),
         ]
