@@ -13,7 +13,8 @@ With ``--format csv`` the curves are written by the one table writer of sub60
 (`app.tables`), with the column names of the snapshot files: ``bands`` gives ``x_nm``, one
 ``<subband>_eV`` column per subband (C1 ..., HH1, LH1 ...), ``efs_eV``, ``efd_eV``;
 ``transfer`` gives ``vg_V``, ``design_id_uA_per_um``, ``design_ss_mV_per_dec`` (and with
-``--twin`` ``twin_id_uA_per_um``, ``twin_ss_mV_per_dec``); ``output`` gives ``vd_V`` and
+``--twin`` ``twin_id_uA_per_um``, ``twin_ss_mV_per_dec`` and the twin's figures of merit
+as ``# twin_<metric>`` lines); ``output`` gives ``vd_V`` and
 ``id_uA_per_um_at_vg_<Vg>_V``. Scalars (bias, Fermi levels, figures of merit) come first
 as ``# name = value`` lines.
 
@@ -37,6 +38,7 @@ from sub60.app.cli_common import (
     load_design,
     parse_sweep,
     parse_value,
+    set_fields_help,
     single_voltage,
     solve,
     vdd_option,
@@ -114,7 +116,9 @@ def cmd_transfer(a) -> str:
         twin = solve(lambda: transfer_curve(d.twin(), vg, vd, **kw))
         rec["twin"] = {"design": d.twin().to_dict(), **transfer_record(twin)}
     if a.format == "csv":
-        return csv_text(transfer_table(tc, twin), {"vd_V": vd, **rec["metrics"]})
+        twin_metrics = {f"twin_{k}": v for k, v in rec["twin"]["metrics"].items()} if twin \
+            else {}
+        return csv_text(transfer_table(tc, twin), {"vd_V": vd, **rec["metrics"], **twin_metrics})
     return json.dumps(rec, indent=1)
 
 
@@ -156,9 +160,12 @@ def build_parser() -> argparse.ArgumentParser:
     from sub60.physics import TUNNELLING_MODELS
 
     def common(sp, vg_default: str | None, vd_default: str | None):
+        sp.epilog = set_fields_help()
+        sp.formatter_class = argparse.RawDescriptionHelpFormatter
         sp.add_argument("--design", help="design JSON file (the Design record)")
         sp.add_argument("--set", action="append", default=[], metavar="NAME=VALUE",
-                        help="override one design field (repeatable)")
+                        help="override one design field (repeatable; the fields are listed "
+                             "below)")
         sp.add_argument("--vg", default=vg_default, required=vg_default is None,
                         help="gate voltage V or sweep START:STOP:N [V]")
         sp.add_argument("--vd", default=vd_default, required=vd_default is None,
@@ -170,8 +177,12 @@ def build_parser() -> argparse.ArgumentParser:
                              f"(default {TUNNELLING_MODELS[0]})")
 
     common(sub.add_parser("bands", help="band diagram at one bias"), "0.3", "0.3")
-    t = sub.add_parser("transfer", help="transfer curve Id-Vg with figures of merit")
-    common(t, "-0.3:0.6:46", "0.3")
+    from sub60.app.state import DEFAULT_GATE_SWEEP
+
+    t = sub.add_parser("transfer", help="transfer curve Id-Vg with figures of merit "
+                       f"(default sweep {DEFAULT_GATE_SWEEP.option_text()}, the page's: "
+                       f"{1e3 * DEFAULT_GATE_SWEEP.step_V:g} mV steps)")
+    common(t, DEFAULT_GATE_SWEEP.option_text(), "0.3")
     t.add_argument("--twin", action="store_true", help="also the n+ source MOSFET twin")
     t.add_argument("--ioff", type=ioff_option, default=1e-3, help="Ioff target [uA/um]")
     t.add_argument("--vdd", type=vdd_option, default=0.3,

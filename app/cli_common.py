@@ -26,6 +26,7 @@ from sub60.app.number_rules import (
     parse_json,
     parse_number,
 )
+from sub60.app.state import sweep_voltages
 
 
 class UsageError(Exception):
@@ -52,15 +53,11 @@ def _voltage_range(name: str) -> tuple[float, float]:
     return VD_RANGE_V if name.startswith("vd") else VG_RANGE_V
 
 
-#: Decimals [V] kept of a swept voltage: 1e-12 V is far below any bias that matters and
-#: removes linspace's float noise (-5.55e-17 for 0, -0.27999999999999997 for -0.28).
-SWEEP_DECIMALS = 12
-
-
 def parse_sweep(text: str, name: str) -> np.ndarray:
     """'V' or 'START:STOP:N' -> voltages [V], each number by the shared rules
     (`app.number_rules`) and within the bias range of `name` ("vg..." or "vd...");
-    sweep voltages rounded to 1e-12 V (`SWEEP_DECIMALS`)."""
+    sweep voltages by `app.state.sweep_voltages` (rounded to 1e-12 V, `SWEEP_DECIMALS`:
+    no float noise such as -5.55e-17 for 0), the same numbers as the page's."""
     lo, hi = _voltage_range(name)
     parts = text.split(":")
     try:
@@ -68,9 +65,8 @@ def parse_sweep(text: str, name: str) -> np.ndarray:
             return np.array([parse_number(parts[0], f"--{name}", lo, hi, "V")])
         if len(parts) == 3:
             n = parse_integer(parts[2], f"--{name}: N", 1, 2001)
-            values = np.linspace(parse_number(parts[0], f"--{name}: START", lo, hi, "V"),
-                                 parse_number(parts[1], f"--{name}: STOP", lo, hi, "V"), n)
-            return np.round(values, SWEEP_DECIMALS) + 0.0  # + 0.0 turns -0.0 into 0.0
+            return sweep_voltages(parse_number(parts[0], f"--{name}: START", lo, hi, "V"),
+                                  parse_number(parts[1], f"--{name}: STOP", lo, hi, "V"), n)
     except InputError as exc:
         raise UsageError(str(exc)) from None
     raise UsageError(f"--{name}: expected V or START:STOP:N, got {ascii(text)}")
@@ -133,6 +129,21 @@ def read_bounded(path: str, limit_bytes: int) -> bytes | None:
     except OSError as exc:
         raise UsageError(f"{ascii(path)}: cannot read ({exc.strerror})") from None
     return None if len(data) > limit_bytes else data
+
+
+def set_fields_help() -> str:
+    """The design fields that ``--set NAME=VALUE`` accepts, one a line: name, meaning
+    with its unit, allowed values and default (for the commands' ``--help``)."""
+    from sub60.physics import FIELD_RANGES, Design
+
+    default = Design()
+    width = max(len(n) for n in FIELD_RANGES)
+    lines = ["design fields for --set NAME=VALUE (units in the names; numbers like 4e19):"]
+    for name, spec in FIELD_RANGES.items():
+        value = getattr(default, name)
+        shown = "none" if value is None else f"{value:g}" if isinstance(value, float) else value
+        lines.append(f"  {name:<{width}}  {spec.help}; {spec.describe()}; default {shown}")
+    return "\n".join(lines)
 
 
 def load_design(path: str | None, overrides: list[str]):

@@ -18,7 +18,12 @@ from bokeh.models import CustomJSTickFormatter
 from panel.links import Callback
 
 from sub60.app.compare_panes import SnapshotControls
-from sub60.app.messages import MessageBoard, eot_html, refused_value_message
+from sub60.app.messages import (
+    MessageBoard,
+    eot_html,
+    refused_sweep_message,
+    refused_value_message,
+)
 from sub60.app.state import DESIGN_PARAMETERS, ExplorerState
 
 SIDEBAR_WIDTH = 330
@@ -144,6 +149,62 @@ class _NowEditableFloatSlider(pn.widgets.EditableFloatSlider):
                                                   self.value))
 
 
+class _CheckedRangeSlider(pn.widgets.EditableRangeSlider):
+    """A range slider with two entry boxes whose typed ends are checked here, on the
+    server: a first voltage not below the last, a value outside the bounds or not a
+    number is refused with a message naming the control (``on_refused``), and both boxes
+    show the kept sweep again; an accepted typed end is complete at once (also the
+    throttled value) and calls ``on_accepted``. Panel's browser-side callbacks, which
+    silently rewrote a first voltage above the last into the last, are dropped."""
+
+    def __init__(self, **params) -> None:
+        self.on_refused: Callable[[str], None] | None = None
+        self.on_accepted: Callable[[], None] | None = None
+        self._restoring = False
+        super().__init__(**params)
+        for box in (self._start_edit, self._end_edit):
+            Callback.registry.pop(box, None)
+
+    @param.depends("start", "end", "fixed_start", "fixed_end", watch=True)
+    def _update_bounds(self) -> None:
+        super()._update_bounds()
+        for box in (self._start_edit, self._end_edit):  # no silent clamping in the browser
+            box.param.update(start=None, end=None)
+
+    def _sync_start_value(self, event) -> None:
+        self._typed(event, 0)
+
+    def _sync_end_value(self, event) -> None:
+        self._typed(event, 1)
+
+    def _typed(self, event, index: int) -> None:
+        if event.name not in ("value", "value_throttled") or self._restoring:
+            return
+        kept = tuple(self.value)
+        new = None if event.new is None else round(float(event.new), VALUE_DECIMALS)
+        pair = list(kept)
+        if new is not None:
+            pair[index] = new
+        lo, hi = self.fixed_start, self.fixed_end
+        ok = (new is not None and math.isfinite(new) and (lo is None or new >= lo)
+              and (hi is None or new <= hi) and pair[0] < pair[1])
+        if not ok:
+            self._restoring = True
+            try:
+                self._start_edit.value, self._end_edit.value = kept
+            finally:
+                self._restoring = False
+            if self.on_refused is not None:
+                self.on_refused(refused_sweep_message(
+                    self.label or self.name, ("first", "last")[index], new, lo, hi, kept))
+            return
+        if tuple(pair) != kept:
+            with param.edit_constant(self):
+                self.param.update(value=tuple(pair), value_throttled=tuple(pair))
+        if self.on_accepted is not None:
+            self.on_accepted()
+
+
 def log_cm3_formatter() -> CustomJSTickFormatter:
     """A new formatter of doping sliders (log10 cm^-3 shown as 4.0e19)."""
     return CustomJSTickFormatter(code=LOG_CM3_JS)
@@ -173,11 +234,14 @@ class Controls:
         self._css = list(css)
         self.widgets = self._make_widgets()
         if messages is not None:
-            for name, _step in EDITABLE_STEPS:
+            for name in [n for n, _ in EDITABLE_STEPS] + ["vg_sweep_V"]:
                 self.widgets[name].on_refused = lambda text: messages.set("input", text)
                 self.widgets[name].on_accepted = lambda: messages.clear("input")
         self.eot = pn.pane.HTML(eot_html(state), css_classes=["eot"], stylesheets=self._css,
                                 margin=(0, 12))
+        self.sweep_step = pn.pane.HTML(self._step_html(), css_classes=["vg-step"],
+                                       stylesheets=self._css, margin=(0, 12))
+        state.param.watch(self._refresh_step, ["vg_sweep_V", "vg_points"])
         self.reset_button = pn.widgets.Button(label="Reset all settings to defaults",
                                               color="light", width=WIDGET_WIDTH,
                                               margin=(8, 10), css_classes=["reset-button"])
@@ -199,6 +263,12 @@ class Controls:
         for e in events:
             self.widgets[rules[e.name]].disabled = not e.new
 
+    def _step_html(self) -> str:
+        return f'<div class="note">{self.state.vg_step_text()} between the sweep\'s ends</div>'
+
+    def _refresh_step(self, *_events) -> None:
+        self.sweep_step.object = self._step_html()
+
     def _refresh_eot(self, *_events) -> None:
         self.eot.object = eot_html(self.state)
 
@@ -211,7 +281,7 @@ class Controls:
                 s[name], step=step, throttled=True, fixed_start=lo, fixed_end=hi,
                 width=WIDGET_WIDTH, margin=(2, 10), css_classes=[f"ctl-{name}"])
         lo, hi = s.vg_sweep_V.bounds
-        w["vg_sweep_V"] = pn.widgets.EditableRangeSlider.from_param(
+        w["vg_sweep_V"] = _CheckedRangeSlider.from_param(
             s.vg_sweep_V, step=0.05, throttled=True, fixed_start=lo, fixed_end=hi,
             width=WIDGET_WIDTH, margin=(2, 10), css_classes=["ctl-vg_sweep_V"])
         w["vg_points"] = _NowIntSlider.from_param(s.vg_points, step=2, throttled=True,
@@ -226,6 +296,9 @@ class Controls:
         for name in ("material", "oxide"):
             w[name] = pn.widgets.Select.from_param(s[name], width=WIDGET_WIDTH,
                                                    margin=(4, 10), css_classes=[f"ctl-{name}"])
+        w["tunnelling_model"] = pn.widgets.RadioBoxGroup.from_param(
+            s.tunnelling_model, inline=False, width=WIDGET_WIDTH, margin=(6, 10, 0, 10),
+            css_classes=["ctl-tunnelling_model"])
         for name in ("gate_layout", "source_type", "channel_dopant"):
             w[name] = pn.widgets.RadioButtonGroup.from_param(
                 s[name], width=WIDGET_WIDTH, margin=(4, 10), css_classes=[f"ctl-{name}"])
@@ -250,9 +323,15 @@ class Controls:
             "at V<sub>off</sub> + V<sub>dd</sub>. Low-power logic targets are lower, about "
             "10–100 pA/µm; high-performance ones near 100 nA/µm (common practice).</div>",
             stylesheets=self._css, margin=(0, 12))
+        model_note = pn.pane.HTML(
+            '<div class="note">WKB integrates the decay of the wave through the gap; the '
+            "exact two-band transmission solves the same two-band Hamiltonian by transfer "
+            "matrices along the same subband edges (slower). The Transmission plot draws "
+            "both at the present bias.</div>", stylesheets=self._css, margin=(0, 12))
         return [
             card("Demo designs and snapshots", *snapshots.items),
-            card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], w["vdd_V"],
+            card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], self.sweep_step,
+                 w["vdd_V"],
                  w["ioff_log10_uA_per_um"], ioff_note),
             card("Structure", w["body_thickness_nm"], w["gate_length_nm"],
                  w["source_length_nm"], w["drain_length_nm"], self._labelled("gate_layout"),
@@ -263,5 +342,7 @@ class Controls:
             card("Gate stack", w["oxide"], w["oxide_thickness_nm"], self.eot,
                  w["oxide_permittivity"], w["gate_workfunction_eV"], collapsed=True),
             card("Material and temperature", w["material"], w["temperature_K"],
+                 collapsed=True),
+            card("Tunnelling model", w["tunnelling_model"], model_note,
                  collapsed=True),
         ]

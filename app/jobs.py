@@ -2,7 +2,8 @@
 
 `SessionJobs` owns the session's simulator and its three single-thread workers:
 
-* the *bias* worker solves one bias point (band diagram, J(E), T(E), 2D map);
+* the *bias* worker solves one bias point (band diagram, J(E), T(E), 2D map) and the
+  WKB and exact two-band T(E) of its main subband pair beside each other;
 * the *sweep* worker computes the transfer curves (tunnel FET and MOSFET twin) and the
   output curves, streaming partial transfer curves at most every `STREAM_INTERVAL_S`;
 * the *io* worker exports and verifies snapshots.
@@ -17,7 +18,9 @@ diagram, then band diagrams, then pinned band edges, then sweep points.
 Closing (the page is gone) stops everything at once: queued jobs are skipped, a running
 sweep stops before its next point, nothing more is delivered, the results are dropped.
 The solved points are cached once for all sessions (`shared_simulator`, bounded by
-`SHARED_CACHE_BYTES`), so a session holds no cache of its own.
+`SHARED_CACHE_BYTES`), so a session holds no cache of its own. The simulator follows the
+tunnelling model of the settings (`ExplorerState.tunnelling_model`): a change of model
+takes the shared simulator of that model at the same grid resolution.
 
 Results reach the page through ``post(fn, *args)``: the view passes a function that runs
 ``fn`` on its document's event loop; by default it runs at once in the calling thread.
@@ -44,7 +47,7 @@ from typing import Any, Protocol
 import numpy as np
 
 from sub60.app.state import ExplorerState
-from sub60.physics import Design, SolverError
+from sub60.physics import Design, SolverError, compare_transmissions
 
 
 class PriorityGate:
@@ -168,7 +171,7 @@ class JobListener(Protocol):
     """What a view does with the results of `SessionJobs` (called through ``post``, only
     for results of the newest generation)."""
 
-    def bias_solved(self, bp: Any) -> None: ...
+    def bias_solved(self, bp: Any, transmissions: Any = None) -> None: ...
     def bias_failed(self, exc: Exception) -> None: ...
     def sweep_started(self, transfer: bool, output: bool, total: int) -> None: ...
     def transfer_partial(self, key: str, vg: np.ndarray, ids: np.ndarray, done: int,
@@ -227,6 +230,7 @@ class SessionJobs:
                  background: bool = True, gate: PriorityGate | None = None) -> None:
         self.state = state
         self.simulator = simulator
+        self._model = state.tunnelling_model  # the settings' model the simulator follows
         self.listener = listener
         self.background = background
         self.gate = gate if gate is not None else SWEEP_SLOTS
@@ -289,6 +293,14 @@ class SessionJobs:
         self.last_bias = None  # another grid: no warm start from the old one
         self.shown_transfer = self.shown_output = self.tfet_key = None
 
+    def follow_model(self) -> None:
+        """Take the shared simulator of the settings' tunnelling model when it changed
+        (same grid resolution); nothing solved with the old model is reused."""
+        model = self.state.tunnelling_model
+        if model != self._model:
+            self._model = model
+            self.use_simulator(shared_simulator(self.simulator.resolution, model))
+
     def transfer_stale(self) -> bool:
         """Whether the shown curves are not those of the present (valid) settings."""
         try:
@@ -308,12 +320,14 @@ class SessionJobs:
     # ------------------------------------------------------------------ bias point
     def solve_bias_now(self, design: Design) -> None:
         """First band diagram of the session, in the calling thread, delivered at once."""
+        self.follow_model()
         self.bias_generation += 1
         self._bias_job(self.bias_generation, design, float(self.state.vg_V),
                        float(self.state.vd_V), post=False)
 
     def request_bias(self, design: Design) -> None:
         """Solve the present bias point on the bias worker (supersedes older requests)."""
+        self.follow_model()
         self.bias_generation += 1
         g = self.bias_generation
         with self._lock:
@@ -335,7 +349,7 @@ class SessionJobs:
                     bp = None if self.closed.is_set() else self.simulator.solve_bias(
                         design, vg, vd, initial=start)
                 if bp is not None:
-                    outcome = (self._deliver_bias, g, bp)
+                    outcome = (self._deliver_bias, g, bp, self.transmissions(bp))
         except (ValueError, SolverError) as exc:
             outcome = (self._deliver_bias_failure, g, exc)
         finally:
@@ -353,11 +367,22 @@ class SessionJobs:
                 if self._bias_pending == 0:
                     self.bias_idle.set()
 
-    def _deliver_bias(self, g: int, bp: Any) -> None:
+    def transmissions(self, bp: Any) -> Any:
+        """WKB and exact two-band T(E, k = 0) of the bias point's main subband pair
+        (`physics.compare_transmissions`; the WKB of the one-band model when that model is
+        chosen, else the two-band one), or None when no pair carries current."""
+        wkb = "one-band" if self.simulator.model == "one-band" else "two-band"
+        try:
+            return compare_transmissions(bp, wkb_model=wkb)
+        except ValueError:
+            log.debug("sub60: no transmission comparison", exc_info=True)
+            return None
+
+    def _deliver_bias(self, g: int, bp: Any, transmissions: Any = None) -> None:
         if g != self.bias_generation or self.closed.is_set():
             return
         self.last_bias = bp
-        self.listener.bias_solved(bp)
+        self.listener.bias_solved(bp, transmissions)
 
     def _deliver_bias_failure(self, g: int, exc: Exception) -> None:
         if g == self.bias_generation:
@@ -367,6 +392,7 @@ class SessionJobs:
     def request_sweeps(self, design: Design) -> None:
         """Transfer and output curves of the present settings, on the sweep worker; only
         what differs from the shown curves is computed."""
+        self.follow_model()
         self.sweep_generation += 1
         self._sweep_requested.set()
         self.submit("sweep", self._sweep_job,

@@ -49,7 +49,12 @@ from sub60.app.sharing import (
 )
 from sub60.app.snapshot_schema import SnapshotSettings
 from sub60.app.snapshot_view import SnapshotView
-from sub60.app.state import COMPUTED_PARAMETERS, DESIGN_PARAMETERS, ExplorerState
+from sub60.app.state import (
+    COMPUTED_PARAMETERS,
+    DESIGN_PARAMETERS,
+    MODEL_PARAMETERS,
+    ExplorerState,
+)
 from sub60.app.sweep_view import SweepView
 from sub60.physics import check_tunnelling_material, semiconductors
 
@@ -102,8 +107,9 @@ class Explorer(pn.viewable.Viewer):
         self.messages = MessageBoard()
         self.results = ResultsView(self.state, self.messages, css)
         self.figures = self.results.figures
-        self.jobs = SessionJobs(self.state, simulator or shared_simulator(), self.results,
-                                background)
+        self.jobs = SessionJobs(
+            self.state, simulator or shared_simulator(model=self.state.tunnelling_model),
+            self.results, background)
         self.results.jobs = self.jobs
         self.pin_view = PinView(self.state, self.figures, css, self._post)
         self.pins: PinBoard = PinBoard()
@@ -170,7 +176,8 @@ class Explorer(pn.viewable.Viewer):
         watch = self.state.param.watch
         self._watchers = [
             (self.state, watch(self._on_presentation, "presentation")),
-            (self.state, watch(self._refresh_header, list(DESIGN_PARAMETERS))),
+            (self.state, watch(self._refresh_header,
+                               [*DESIGN_PARAMETERS, *MODEL_PARAMETERS])),
             (self.state, watch(self._refresh_material_warning, "material")),
             (self.state, watch(self._sync_url, list(LINKED_PARAMETERS))),
             (self.state, watch(self._on_settings, list(COMPUTED_PARAMETERS))),
@@ -311,13 +318,13 @@ class Explorer(pn.viewable.Viewer):
 
     # ------------------------------------------------------------------ snapshots
     def apply_settings(self, settings: SnapshotSettings, updates: dict) -> None:
-        """Every control, the numerical model and the pinned designs of a snapshot, in
-        one update of the state (one recomputation)."""
+        """Every control (the tunnelling model among them), the grid resolution and the
+        pinned designs of a snapshot, in one update of the state (one recomputation)."""
         m = settings.model
         sim = self.jobs.simulator
-        new_model = (m.resolution, m.tunnelling_model) != (sim.resolution, sim.model)
-        if new_model:
-            self.jobs.use_simulator(shared_simulator(m.resolution, m.tunnelling_model))
+        new_model = m.resolution != sim.resolution
+        if new_model:  # the state's tunnelling model follows with the updates
+            self.jobs.use_simulator(shared_simulator(m.resolution, sim.model))
         self.pin_view.replace_all(settings.pinned, settings.transfer_sweep)
         before = (self.jobs.bias_generation, self.jobs.sweep_generation)
         self._importing = True

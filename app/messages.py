@@ -16,10 +16,11 @@ from collections.abc import Sequence
 
 import param
 
-from sub60.app.state import ExplorerState, label_of
+from sub60.app.state import ExplorerState, label_of, plain_words
 
 CAUTION = ("Design-exploration model with stated approximations (semiclassical charge with "
-           "confinement-shifted band edges, WKB tunnelling, ballistic transport, no traps) — "
+           "confinement-shifted band edges, two-band tunnelling by WKB or exact transmission, "
+           "ballistic transport, no traps) — "
            "not calibrated TCAD; decisions rest on local practice and measurement.")
 TITLE = "sub60 · tunnel FET explorer"
 
@@ -45,9 +46,10 @@ def value_message(exc: Exception) -> str:
     text = str(exc)
     field, sep, rest = text.partition(":")
     if sep and " " not in field.strip():
-        return (f"**{label_of(field.strip())}**: {html_escape(rest.strip())}. The plots show the last "
-                "valid result.")
-    return f"**Invalid setting**: {html_escape(text)}. The plots show the last valid result."
+        return (f"**{label_of(field.strip())}**: {html_escape(plain_words(rest.strip()))}. "
+                "The plots show the last valid result.")
+    return (f"**Invalid setting**: {html_escape(plain_words(text))}. The plots show the last "
+            "valid result.")
 
 
 def refused_value_message(label: str, value: float | None, low: float | None,
@@ -66,6 +68,21 @@ def refused_value_message(label: str, value: float | None, low: float | None,
     kept_text = "" if kept is None else f" The last valid value, {kept:g}, is kept."
     return (f"**{html_escape(label)}**: {typed} is not allowed; allowed is {allowed}."
             f"{kept_text}")
+
+
+def refused_sweep_message(label: str, end: str, value: float | None, low: float,
+                          high: float, kept: tuple[float, float]) -> str:
+    """The message of a typed sweep end that was refused ('first' or 'last' ``end``): the
+    control, the rule (first below last, both within [low, high]) and the sweep kept."""
+    if value is None:
+        typed = f"An empty {end} voltage"
+    elif not math.isfinite(value):
+        typed = f"The {end} voltage is not a number and"
+    else:
+        typed = f"A {end} voltage of {value:g} V"
+    return (f"**{html_escape(label)}**: {typed} is not allowed; the first voltage must be "
+            f"below the last, both from {low:g} to {high:g} V. The last valid sweep, "
+            f"{kept[0]:g} to {kept[1]:g} V, is kept.")
 
 
 def solver_message(exc: Exception, changed: str | None, what: str) -> str:
@@ -91,17 +108,23 @@ def validity_notes_html(warnings: Sequence[str]) -> str:
             f'them with care):<ul>{"".join(items)}</ul></div>')
 
 
+#: Short name of each tunnelling model, for the one-line design summary.
+MODEL_SHORT = {"two-band": "two-band WKB", "one-band": "one-band WKB",
+               "two-band-exact": "exact two-band transmission"}
+
+
 def header_html(state: ExplorerState) -> str:
     """Title, one-line design summary (with its EOT) and the model's caution."""
     try:
         d = state.design()
+        m = state.tunnelling_model
         eot = d.eot_nm
         layout = "double gate" if d.gate_layout == "double" else "single gate"
         src = "p+" if d.source_type == "p" else "n+"
         summary = (f"{d.material} body {d.body_thickness_nm:g} nm · L<sub>g</sub> "
                    f"{d.gate_length_nm:g} nm · {layout} · {d.oxide} {d.oxide_thickness_nm:g} nm "
                    f"(EOT {eot:.2f} nm) · {src} source {d.source_doping_cm3:.1e} cm⁻³ · "
-                   f"{d.temperature_K:g} K")
+                   f"{d.temperature_K:g} K · {MODEL_SHORT.get(m, m)}")
     except ValueError:
         summary = "invalid design — see the message below"
     return (f'<div class="title">{TITLE}</div>'
@@ -117,7 +140,7 @@ def eot_html(state: ExplorerState) -> str:
         return (f'<div class="eot">EOT = {d.eot_nm:.2f} nm '
                 f'(ε<sub>r</sub> = {eps:g})</div>')
     except ValueError as exc:
-        return f'<div class="eot">EOT unavailable: {html_escape(str(exc))}</div>'
+        return f'<div class="eot">EOT unavailable: {html_escape(plain_words(str(exc)))}</div>'
 
 
 class MessageBoard(param.Parameterized):

@@ -48,7 +48,8 @@ class PinJobs:
     def curve_key(self, pin: Pin) -> tuple:
         """Everything a pinned transfer curve and its metrics depend on."""
         st = self.jobs.state
-        return (pin.design, pin.sweep, st.ioff_target_uA_per_um, float(st.vdd_V))
+        return (pin.design, pin.sweep, st.tunnelling_model, st.ioff_target_uA_per_um,
+                float(st.vdd_V))
 
     def band_key(self, pin: Pin) -> tuple:
         """Everything a pinned design's band edges depend on."""
@@ -105,7 +106,7 @@ class PinJobs:
         if curves:
             self.generation += 1
             self.jobs.submit("sweep", self._curves_job, self.generation, curves,
-                             st.ioff_target_uA_per_um, float(st.vdd_V))
+                             st.tunnelling_model, st.ioff_target_uA_per_um, float(st.vdd_V))
 
     def _bands_job(self, g: int, pins: list[Pin], vg: float, vd: float) -> None:
         jobs = self.jobs
@@ -121,7 +122,7 @@ class PinJobs:
                 continue
             self.jobs.post(self._deliver_band, pin, (pin.design, vg, vd), bp)
 
-    def _curves_job(self, g: int, pins: list[Pin], ioff: float, vdd: float) -> None:
+    def _curves_job(self, g: int, pins: list[Pin], model: str, ioff: float, vdd: float) -> None:
         def superseded() -> bool:  # asked before every point
             if self.jobs.closed.is_set():
                 return True
@@ -139,7 +140,8 @@ class PinJobs:
             except (ValueError, SolverError) as exc:
                 self.jobs.post(self._deliver_failure, pin, exc)
                 continue
-            self.jobs.post(self._deliver_curve, pin, (pin.design, pin.sweep, ioff, vdd), tc)
+            self.jobs.post(self._deliver_curve, pin, (pin.design, pin.sweep, model, ioff, vdd),
+                           tc)
 
     def _deliver_band(self, pin: Pin, key: tuple, bp: Any) -> None:
         now = self.board.get(pin.slot)

@@ -25,6 +25,7 @@ COLOURS: dict[str, str] = {
     "tfet": PALETTE["design"],
     "twin": PALETTE["twin"],
     "transmission": PALETTE["transmission"],
+    "transmission_exact": PALETTE["transmission_exact"],
     "limit": PALETTE["limit"],
     "marker": PALETTE["marker"],
     "text": PALETTE["text"],

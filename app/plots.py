@@ -10,7 +10,8 @@ the metrics strip in `app.metrics_strip`; their names stay importable from here.
 
 Test hooks: figures are named ``band_plot``, ``spectrum_plot``, ``transmission_plot``,
 ``transfer_plot``, ``swing_plot``, ``map_plot``, ``output_plot``; their sources
-``band_source``, ``spectrum_source``, ``window_source``, ``transfer_tfet_source``,
+``band_source``, ``spectrum_source``, ``transmission_source`` (WKB and exact T(E)),
+``window_source``, ``transfer_tfet_source``,
 ``transfer_twin_source``, ``vg_marker_source``, ``limit_source``, ``swing_tfet_source``,
 ``swing_twin_source``, ``map_source``, ``output_source_0`` ... ; pinned designs
 (slot k = 0 ... 7): ``pin_band_source_k``, ``pin_transfer_source_k``, renderers
@@ -85,7 +86,7 @@ class ExplorerFigures:
     _SHARED = {
         "band_plot": ("gate_box", "region_labels", "window_source", "window_closed",
                       "band_source", "fermi_source", "fermi_labels", "band_items"),
-        "spectrum_plots": ("spectrum_source", "spectrum_total", "t_ticker",
+        "spectrum_plots": ("spectrum_source", "transmission_source", "spectrum_total", "t_ticker",
                            "transmission_note", "fermi_spans", "spectrum", "transmission"),
         "map_plot": ("colour_mapper", "map_source", "body_spans", "gates_source"),
         "transfer_plot": ("transfer_sources", "limit_source", "limit_item", "ioff_span",
@@ -133,6 +134,7 @@ class ExplorerFigures:
         style_legend(self.transfer, side="below", columns=3)
         style_legend(self.swing, side="below", columns=2)
         style_legend(self.output, side="below", columns=4)
+        style_legend(self.transmission, side="below", columns=1)
         self.set_presentation(False)
 
     def _new_line(self, glyph: object, width: float) -> None:
@@ -142,12 +144,13 @@ class ExplorerFigures:
             glyph.line_width = width * 1.8
 
     # ------------------------------------------------------------------ updates
-    def show_bias(self, bp) -> None:
-        """Band diagram, tunnel window, J(E), T(E), 2D map and the Vg marker of one
-        bias point (`physics.simulate.BiasPoint`)."""
+    def show_bias(self, bp, transmissions=None) -> None:
+        """Band diagram, tunnel window, J(E), 2D map and the Vg marker of one bias point
+        (`physics.simulate.BiasPoint`); the WKB and exact T(E) of ``transmissions`` (a
+        `physics.TransmissionComparison`, None: no pair carries current)."""
         self.band_plot.show(bp)
         self._name_devices(bp.design.source_type)
-        self.spectrum_plots.show(bp)
+        self.spectrum_plots.show(bp, transmissions)
         self.map_plot.show(bp)
         self.transfer_plot.show_marker(bp.vg_V, bp.current_uA_per_um)
         self.output_plot.vd_span.location = bp.vd_V

@@ -210,7 +210,13 @@ class BandPlot:
 
 class SpectrumPlots:
     """Spectral current J(E) and transmission T(E) (log), on the band diagram's energy
-    axis, with the Fermi levels and the total band-to-band current."""
+    axis, with the Fermi levels and the total band-to-band current. T(E) is drawn twice
+    for the main subband pair at k⊥ = 0: by WKB and by the exact two-band transmission
+    (`physics.compare_transmissions`), with a legend under the plot."""
+
+    #: Legend texts of the two transmissions (the WKB one names its decay model).
+    WKB_LABEL = "WKB ({})"
+    EXACT_LABEL = "exact two-band"
 
     def __init__(self, energy_range: Range1d) -> None:
         self.spectrum_source = ColumnDataSource({"energy_eV": [], "j": [], "t": []},
@@ -228,13 +234,22 @@ class SpectrumPlots:
                                     name="btbt_total_label", background_fill_color="white",
                                     background_fill_alpha=0.8)
         s.add_layout(self.spectrum_total)
+        # WKB and exact T(E) of one pair on one energy grid (NaN below T_FLOOR: gaps)
+        self.transmission_source = ColumnDataSource(
+            {"energy_eV": [], "wkb": [], "exact": []}, name="transmission_source")
         t = figure(name="transmission_plot", title="Transmission", y_range=energy_range,
                    x_axis_type="log", x_range=Range1d(1e-12, 1.5),
                    x_axis_label="T(E), k⊥ = 0", tools=TOOLS)
-        tr = t.line("t", "energy_eV", source=self.spectrum_source,
-                    line_color=COLOURS["transmission"], line_width=2)
-        t.add_tools(HoverTool(renderers=[tr], tooltips=[
-            ("E", "@energy_eV{0.000} eV"), ("T", "@t{0.00e+0}")], mode="hline"))
+        tw = t.line("wkb", "energy_eV", source=self.transmission_source,
+                    line_color=COLOURS["transmission"], line_width=2,
+                    legend_label=self.WKB_LABEL.format("two-band"), name="transmission_wkb")
+        te = t.line("exact", "energy_eV", source=self.transmission_source,
+                    line_color=COLOURS["transmission_exact"], line_width=2, line_dash="dashed",
+                    legend_label=self.EXACT_LABEL, name="transmission_exact")
+        t.legend[0].name = "transmission_legend"
+        t.add_tools(HoverTool(renderers=[tw, te], tooltips=[
+            ("E", "@energy_eV{0.000} eV"), ("T WKB", "@wkb{0.00e+0}"),
+            ("T exact", "@exact{0.00e+0}")], mode="hline"))
         self.t_ticker = FixedTicker(ticks=[1e-12, 1e-6, 1.0], name="transmission_ticker")
         t.xaxis.ticker = self.t_ticker
         self.transmission_note = Label(x=4, y=4, x_units="screen", y_units="screen", text="",
@@ -261,13 +276,29 @@ class SpectrumPlots:
         """Text labels drawn on the plots."""
         return [self.spectrum_total, self.transmission_note]
 
-    def show(self, bp) -> None:
-        """J(E), T(E) (values below `T_FLOOR` as gaps), Fermi levels, total current."""
+    def show(self, bp, transmissions=None) -> None:
+        """J(E), Fermi levels and total current of a bias point; the WKB and exact T(E)
+        of ``transmissions`` (a `physics.TransmissionComparison`; values below `T_FLOOR`
+        as gaps), or none with a note when no subband pair carries current."""
         sp = bp.spectrum
-        t = positive_or_nan(sp.transmission, T_FLOOR)
         self.spectrum_source.data = {"energy_eV": np.asarray(sp.energy_eV, float),
-                                     "j": np.asarray(sp.current_density, float), "t": t}
-        finite = t[np.isfinite(t)]
+                                     "j": np.asarray(sp.current_density, float),
+                                     "t": positive_or_nan(sp.transmission, T_FLOOR)}
+        tc = transmissions
+        if tc is None:
+            self.transmission_source.data = {"energy_eV": [], "wkb": [], "exact": []}
+            finite = np.array([])
+        else:
+            wkb = positive_or_nan(tc.wkb, T_FLOOR)
+            exact = positive_or_nan(tc.exact, T_FLOOR)
+            self.transmission_source.data = {"energy_eV": np.asarray(tc.energy_eV, float),
+                                             "wkb": wkb, "exact": exact}
+            both = np.concatenate([wkb, exact])
+            finite = both[np.isfinite(both)]
+            self.transmission.legend[0].items[0].label = value(
+                self.WKB_LABEL.format(tc.wkb_model))
+            pair = tc.pair.replace("-", "–")
+            self.transmission.xaxis.axis_label = f"T(E) {pair}, k⊥ = 0"
         t_lo = 10.0 ** math.floor(math.log10(float(finite.min()))) if finite.size else 1e-12
         t_lo = max(t_lo, 1e-30)
         self.transmission.x_range.start = t_lo
@@ -275,19 +306,39 @@ class SpectrumPlots:
         k_lo = int(round(math.log10(t_lo)))
         step = max(1, int(math.ceil(-k_lo / 2)))
         self.t_ticker.ticks = [10.0 ** k for k in range(0, k_lo - 1, -step)][::-1]
-        self.transmission_note.text = "" if finite.size else f"T < {T_FLOOR:.0e}\neverywhere"
+        if tc is None:
+            self.transmission_note.text = "no subband pair\ncarries current"
+        elif not finite.size:
+            self.transmission_note.text = f"T < {T_FLOOR:.0e}\neverywhere"
+        else:
+            self.transmission_note.text = ratio_note(tc.wkb, tc.exact)
         for span, level in zip(self.fermi_spans, (bp.efs_eV, bp.efd_eV) * 2, strict=True):
             span.location = level
         self.spectrum_total.text = f"BTBT total\n{format_current(bp.btbt_uA_per_um)}"
 
 
+def ratio_note(wkb: np.ndarray, exact: np.ndarray, within: float = 1e-3) -> str:
+    """'exact/WKB' and the range of that ratio where the WKB T(E) is within a factor
+    ``within`` of its peak (where the current flows); '' when there is none."""
+    wkb, exact = np.asarray(wkb, float), np.asarray(exact, float)
+    top = np.nanmax(wkb) if wkb.size else 0.0
+    keep = (wkb >= within * top) & (wkb > 0) & np.isfinite(exact) if top > 0 else wkb > 1
+    if not keep.any():
+        return ""
+    r = exact[keep] / wkb[keep]
+    return f"exact/WKB\n{r.min():.2g}–{r.max():.2g}"
+
+
 class MapPlot:
-    """Conduction-band edge over the cross-section (resampled to a uniform image), with
-    the body boundaries and the gate(s)."""
+    """Bulk conduction-band edge over the cross-section (resampled to a uniform image),
+    with the body boundaries and the gate(s); labelled as the bulk edge, without the
+    confinement shift that the band diagram's subbands carry."""
 
     def __init__(self, x_range: Range1d) -> None:
         self.colour_mapper = LinearColorMapper(palette=list(MAP_PALETTE), low=-1, high=1)
-        f = figure(name="map_plot", title="Conduction-band edge over the cross-section",
+        # the bulk edge (the band diagram draws the confined subbands): said in the title
+        f = figure(name="map_plot",
+                   title="Bulk conduction-band edge over the cross-section (no confinement shift)",
                    x_range=x_range, y_range=Range1d(0, 11),
                    x_axis_label="x (nm)", y_axis_label="y (nm)", tools=TOOLS)
         self.map_source = ColumnDataSource({"image": [], "x": [], "y": [], "dw": [], "dh": []},
@@ -295,8 +346,8 @@ class MapPlot:
         img = f.image("image", x="x", y="y", dw="dw", dh="dh", source=self.map_source,
                       color_mapper=self.colour_mapper)
         f.add_tools(HoverTool(renderers=[img], tooltips=[
-            ("x", "$x{0.0} nm"), ("y", "$y{0.0} nm"), ("Ec", "@image{0.000} eV")]))
-        bar = ColorBar(color_mapper=self.colour_mapper, title="Ec (eV)", width=10,
+            ("x", "$x{0.0} nm"), ("y", "$y{0.0} nm"), ("bulk Ec", "@image{0.000} eV")]))
+        bar = ColorBar(color_mapper=self.colour_mapper, title="bulk Ec (eV)", width=10,
                        title_text_font_size="11px", major_label_text_font_size="10px")
         f.add_layout(bar, "right")
         self.body_spans = [Span(location=0, dimension="width", line_color="white",

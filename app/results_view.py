@@ -18,7 +18,7 @@ import panel as pn
 from sub60.app.jobs import SessionJobs, SweepRequest
 from sub60.app.messages import MessageBoard, solver_message, validity_notes_html, value_message
 from sub60.app.plots import ExplorerFigures, metrics_html
-from sub60.app.state import ExplorerState
+from sub60.app.state import ExplorerState, vg_step_text
 from sub60.physics import SolverError, check_tunnelling_material, semiconductors
 
 
@@ -84,8 +84,8 @@ class ResultsView:
         self.status.object = f"Computing curves… {min(done, total)}/{total} points"
 
     # ------------------------------------------------------------------ bias point
-    def bias_solved(self, bp: Any) -> None:
-        self.figures.show_bias(bp)
+    def bias_solved(self, bp: Any, transmissions: Any = None) -> None:
+        self.figures.show_bias(bp, transmissions)
         self.messages.clear("bias")
         self.show_notes(getattr(bp, "warnings", ()))
 
@@ -123,6 +123,9 @@ class ResultsView:
         self._set_progress(done, total)
         if key == "twin":  # both curves are complete
             self.figures.transfer.title.text = "Transfer curve"
+            vg = request.vg_V
+            self.figures.transfer.xaxis.axis_label = (
+                f"Gate voltage Vg (V) · {vg_step_text(vg[0], vg[-1], vg.size)}")
             self.messages.clear("sweep")
             self.show_metrics(stale=False)
             anchor_vg, anchor_id = self.jobs.limit_anchor(request.ioff_uA_per_um)

@@ -48,7 +48,7 @@ class OpenedSnapshot:
 
 def snapshot_of_session(state: ExplorerState, board: PinBoard, simulator: Any) -> SnapshotSettings:
     """The snapshot settings of a page: controls, numerical model, pinned designs."""
-    model = ModelSettings(simulator.resolution, simulator.model)
+    model = ModelSettings(simulator.resolution, state.tunnelling_model)
     return settings_from_state(state, [p.record() for p in board.pins], model)
 
 

@@ -33,7 +33,13 @@ from sub60.app.snapshot_schema import (
     SnapshotSettings,
     TransferSweep,
 )
-from sub60.app.state import CHANNEL_DOPING_FLOOR_CM3, DESIGN_PARAMETERS, ExplorerState, label_of
+from sub60.app.state import (
+    CHANNEL_DOPING_FLOOR_CM3,
+    DESIGN_PARAMETERS,
+    ExplorerState,
+    label_of,
+    plain_words,
+)
 
 # ---------------------------------------------------------------------- snapshots
 
@@ -87,6 +93,7 @@ def state_updates(settings: SnapshotSettings) -> tuple[dict[str, Any], list[str]
                      f"voltage for both: {sweep.vd_V:g} V.")
     ms = settings.metric_settings
     updates.update(
+        tunnelling_model=settings.model.tunnelling_model,
         vg_V=settings.bias.vg_V, vd_V=sweep.vd_V,
         vg_sweep_V=(sweep.vg_start_V, sweep.vg_stop_V), vg_points=sweep.vg_points,
         vdd_V=ms.vdd_V, ioff_log10_uA_per_um=math.log10(ms.ioff_target_uA_per_um))
@@ -159,8 +166,10 @@ QUERY_KEYS: dict[str, str] = {
     "gate_workfunction_eV": "wf_eV",
     "vg_V": "vg", "vd_V": "vd", "vg_sweep_V": "vg_sweep", "vg_points": "vg_points",
     "vdd_V": "vdd", "ioff_log10_uA_per_um": "ioff_uA_um",
+    "tunnelling_model": "model",
 }
-#: Settings kept in the address: the design, the bias and the transfer sweep.
+#: Settings kept in the address: the design, the bias, the transfer sweep and the
+#: tunnelling model.
 LINKED_PARAMETERS: tuple[str, ...] = tuple(QUERY_KEYS)
 _PARAM_OF_KEY = {v: k for k, v in QUERY_KEYS.items()}
 _POWERS = ("source_doping_log10_cm3", "channel_doping_log10_cm3", "drain_doping_log10_cm3",
@@ -304,7 +313,7 @@ def updates_from_query(query: Mapping[str, str], base: ExplorerState | None = No
             if culprit is None:
                 break
             problems.append(f"{label_of(culprit)} ({QUERY_KEYS[culprit]}): "
-                            f"{rest.strip() or exc}")
+                            f"{plain_words(rest.strip() or str(exc))}")
             updates.pop(culprit)
             default = base if base is not None else ExplorerState()
             setattr(scratch, culprit, getattr(default, culprit))

@@ -52,10 +52,11 @@ def transfer_csv(main: TransferCurve, twin: TransferCurve) -> bytes:
 
 
 def pinned_csv(names: tuple[str, ...], curves: tuple[TransferCurve, ...]) -> bytes:
-    """pinned.csv, long format: pin index, vg_V, Id, point swing. The names stay in
-    settings.json (they may hold commas); the index counts its "pinned" entries from 1."""
-    del names
-    return csv_bytes(pinned_table(curves))
+    """pinned.csv, long format: pin index, vg_V, Id, point swing. The index counts the
+    "pinned" entries of settings.json from 1; a ``# pin_K = name`` line names each (names
+    may hold commas, so they are not in the columns; they hold no line breaks)."""
+    return csv_bytes(pinned_table(curves),
+                     {f"pin_{k}": name for k, name in enumerate(names, start=1)})
 
 
 def output_csv(curves: tuple[OutputCurve, ...]) -> bytes:
@@ -99,7 +100,8 @@ def readme_text(settings: SnapshotSettings, members: list[str]) -> str:
     ]
     if "pinned.csv" in members:
         lines += ["pinned.csv          Id-Vg of each pinned design; pin_index_1 counts the",
-                  "                    entries of settings.json \"pinned\" from 1."]
+                  "                    entries of settings.json \"pinned\" from 1, and the",
+                  "                    '# pin_K = name' lines at the top name them."]
     lines += [
         "figures/*.png, .svg static figures: band diagram with the tunnel window shaded,",
         "                    spectrum, transfer curves with the (ln 10)kT/q reference, output",

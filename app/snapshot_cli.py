@@ -24,6 +24,7 @@ from sub60.app.cli_common import (
     load_design,
     parse_sweep,
     read_bounded,
+    set_fields_help,
     solve,
     vdd_option,
 )
@@ -33,15 +34,21 @@ def add_snapshot_parser(sub) -> None:
     """Register `snapshot` and its sub-commands on the `sub60` sub-parsers."""
     sp = sub.add_parser("snapshot", help="write, re-render or check a snapshot file")
     ss = sp.add_subparsers(dest="snapshot_command", parser_class=type(sp))
-    e = ss.add_parser("export", help="compute a view and write its snapshot zip")
+    e = ss.add_parser("export", help="compute a view and write its snapshot zip",
+                      epilog=set_fields_help(),
+                      formatter_class=argparse.RawDescriptionHelpFormatter)
     src = e.add_mutually_exclusive_group()
     src.add_argument("--design", help="design JSON file (the Design record, or settings)")
     src.add_argument("--preset", help="start from a demo preset (assets/presets/NAME.json)")
     e.add_argument("--set", action="append", default=[], metavar="NAME=VALUE",
-                   help="override one design field (repeatable)")
+                   help="override one design field (repeatable; the fields are listed below)")
     e.add_argument("--vg", help="gate voltage of the band diagram [V]")
     e.add_argument("--vd", help="drain voltage of the band diagram and transfer curves [V]")
-    e.add_argument("--sweep", help="gate sweep of the transfer curves START:STOP:N [V]")
+    from sub60.app.state import DEFAULT_GATE_SWEEP
+
+    e.add_argument("--sweep", help="gate sweep of the transfer curves START:STOP:N [V] "
+                   f"(default {DEFAULT_GATE_SWEEP.option_text()}, the page's; a preset "
+                   "keeps its own)")
     e.add_argument("--vdd", type=vdd_option, help="supply for Ion = Id(Voff + Vdd) [V]")
     e.add_argument("--ioff", type=ioff_option, help="Ioff target [uA/um]")
     e.add_argument("--output-vg", help="gate voltages of the output curves, V1,V2,... [V]")

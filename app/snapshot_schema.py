@@ -34,6 +34,7 @@ from sub60.app.snapshot_fields import (
     read_number,
     show_value,
 )
+from sub60.app.state import DEFAULT_GATE_SWEEP, sweep_voltages
 from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_V, Design, Metrics, check_bias
 
 # ---------------------------------------------------------------------- constants
@@ -87,16 +88,17 @@ class BiasSettings:
 @dataclass(frozen=True)
 class TransferSweep:
     """Gate sweep of a transfer curve: first and last gate voltage [V], number of points
-    [-], drain voltage [V]."""
+    [-], drain voltage [V]. The default is the page's and the command line's
+    (`app.state.DEFAULT_GATE_SWEEP`); a file always states its own."""
 
-    vg_start_V: float = -0.2
-    vg_stop_V: float = 0.6
-    vg_points: int = 41
+    vg_start_V: float = DEFAULT_GATE_SWEEP.start_V
+    vg_stop_V: float = DEFAULT_GATE_SWEEP.stop_V
+    vg_points: int = DEFAULT_GATE_SWEEP.points
     vd_V: float = 0.3
 
     def gate_voltages(self) -> np.ndarray:
         """Gate voltages of the sweep [V]."""
-        return np.linspace(self.vg_start_V, self.vg_stop_V, self.vg_points)
+        return sweep_voltages(self.vg_start_V, self.vg_stop_V, self.vg_points)
 
 
 @dataclass(frozen=True)

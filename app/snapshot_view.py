@@ -56,6 +56,7 @@ class SnapshotView:
         self.messages = messages
         self._post = post
         self._apply = apply
+        self._demo_note = False  # the report shows a demo design's note
         self._report_token = 0  # a report for an older file or demo design is dropped
         self.controls = SnapshotControls(list(css), WIDGET_WIDTH, preset_labels(),
                                          self._download)
@@ -67,9 +68,14 @@ class SnapshotView:
         self.controls.download.disabled = not design_valid
 
     def forget_demo(self) -> None:
-        """The page was changed by hand: it no longer shows the chosen demo design."""
+        """The page was changed by hand: it no longer shows the chosen demo design (the
+        selector is cleared and the demo's note goes)."""
         if self.controls.presets.value:
             self.controls.presets.value = ""
+        if self._demo_note:
+            self._demo_note = False
+            self.controls.report.object = ""
+            self.controls.report.visible = False
 
     # ------------------------------------------------------------------ export
     def export_bytes(self, created: _dt.datetime | None = None) -> tuple[str, bytes]:
@@ -125,6 +131,7 @@ class SnapshotView:
             self.messages.set("snapshot", str(exc))
             return False
         settings, report = opened.settings, opened.report
+        self._demo_note = False  # the report becomes the file's
         self._take(opened)
         label = html_escape(filename)
         heading = f"Opened {label}" + (f": {html_escape(settings.title)}" if settings.title
@@ -179,4 +186,5 @@ class SnapshotView:
         self.controls.show_report("info",
                                   f"Demo design: {html_escape(settings.title or name)}",
                                   ([settings.note] if settings.note else []) + opened.notes)
+        self._demo_note = True
         return True

@@ -15,12 +15,22 @@ two stay linked both ways; nothing here imports Panel or Bokeh.
 from __future__ import annotations
 
 import math
+import re
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 import param
 
-from sub60.physics import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, dielectrics, semiconductors
+from sub60.physics import (
+    FIELD_RANGES,
+    TUNNELLING_MODELS,
+    VD_RANGE_V,
+    VG_RANGE_V,
+    Design,
+    dielectrics,
+    semiconductors,
+)
 
 _DEFAULT = Design()
 
@@ -44,6 +54,56 @@ def _sig(value: float, digits: int = 4) -> float:
     return float(f"{value:.{digits - 1}e}")
 
 
+@dataclass(frozen=True)
+class GateSweep:
+    """The gate voltages of a transfer curve: first and last [V], number of points [-]."""
+
+    start_V: float
+    stop_V: float
+    points: int
+
+    @property
+    def step_V(self) -> float:
+        """Spacing of the gate voltages [V]."""
+        return vg_step_V(self.start_V, self.stop_V, self.points)
+
+    def gate_voltages(self) -> np.ndarray:
+        """The gate voltages [V]."""
+        return sweep_voltages(self.start_V, self.stop_V, self.points)
+
+    def option_text(self) -> str:
+        """The sweep as the command line writes it, START:STOP:N."""
+        return f"{self.start_V:g}:{self.stop_V:g}:{self.points}"
+
+
+#: The one default transfer sweep of the page, the command line (`sub60 transfer`) and
+#: new snapshots: -0.4 to 0.6 V in 25 mV steps, so that the ambipolar branch and the
+#: on-state are both on the curve. Snapshots keep the sweep they store.
+DEFAULT_GATE_SWEEP = GateSweep(-0.4, 0.6, 41)
+
+
+#: Decimals kept of a sweep's voltages [V]: 1e-12 V removes float noise such as
+#: -0.30000000000000004 and changes no voltage a user can type.
+SWEEP_DECIMALS = 12
+
+
+def sweep_voltages(start_V: float, stop_V: float, points: int) -> np.ndarray:
+    """`points` evenly spaced voltages from start_V to stop_V, rounded to `SWEEP_DECIMALS`
+    (the same numbers on the page, on the command line and in snapshots) [V]."""
+    values = np.linspace(float(start_V), float(stop_V), int(points))
+    return np.round(values, SWEEP_DECIMALS) + 0.0  # + 0.0 turns -0.0 into 0.0
+
+
+def vg_step_V(start_V: float, stop_V: float, points: int) -> float:
+    """Spacing of `points` gate voltages from start_V to stop_V [V]."""
+    return (float(stop_V) - float(start_V)) / max(int(points) - 1, 1)
+
+
+def vg_step_text(start_V: float, stop_V: float, points: int) -> str:
+    """The gate-voltage step in words, e.g. 'Vg step 25 mV'."""
+    return f"Vg step {1e3 * vg_step_V(start_V, stop_V, points):.3g} mV"
+
+
 #: Settings whose change alters the device (and so every curve).
 DESIGN_PARAMETERS: tuple[str, ...] = (
     "material", "temperature_K",
@@ -53,12 +113,22 @@ DESIGN_PARAMETERS: tuple[str, ...] = (
     "drain_doping_log10_cm3", "doping_gradient_nm_per_dec",
     "oxide", "oxide_thickness_nm", "oxide_permittivity", "gate_workfunction_eV",
 )
+#: The tunnelling model of the physics (`physics.TUNNELLING_MODELS`) in plain words, as
+#: the page and its messages name it.
+TUNNELLING_MODEL_NAMES: dict[str, str] = {
+    "two-band": "WKB estimate, both bands set the decay (default)",
+    "one-band": "WKB estimate, conduction band alone sets the decay",
+    "two-band-exact": "Exact quantum transmission, two-band model",
+}
+#: Settings of the numerical model (every curve and band diagram depends on them).
+MODEL_PARAMETERS: tuple[str, ...] = ("tunnelling_model",)
 #: Settings of the single bias point (band diagram).
 BIAS_PARAMETERS: tuple[str, ...] = ("vg_V", "vd_V")
 #: Settings of the transfer-curve sweep and of its figures of merit.
 SWEEP_PARAMETERS: tuple[str, ...] = ("vg_sweep_V", "vg_points", "vdd_V", "ioff_log10_uA_per_um")
 #: Every setting that changes a result.
-COMPUTED_PARAMETERS: tuple[str, ...] = DESIGN_PARAMETERS + BIAS_PARAMETERS + SWEEP_PARAMETERS
+COMPUTED_PARAMETERS: tuple[str, ...] = (DESIGN_PARAMETERS + MODEL_PARAMETERS + BIAS_PARAMETERS
+                                         + SWEEP_PARAMETERS)
 
 #: Output curves: gate voltages below the present one and their spacing [V].
 OUTPUT_CURVES = 4
@@ -151,10 +221,12 @@ class ExplorerState(param.Parameterized):
                         doc="Gate voltage of the band diagram [V].")
     vd_V = param.Number(default=0.3, bounds=VD_RANGE_V, step=0.01, label="Drain voltage (V)",
                         doc="Drain voltage of the band diagram and of the transfer curves [V].")
-    vg_sweep_V = param.Range(default=(-0.4, 0.6), bounds=VG_RANGE_V,
+    vg_sweep_V = param.Range(default=(DEFAULT_GATE_SWEEP.start_V, DEFAULT_GATE_SWEEP.stop_V),
+                             bounds=VG_RANGE_V,
                              label="Gate sweep (V)",
                              doc="First and last gate voltage of the transfer curves [V].")
-    vg_points = param.Integer(default=41, bounds=(11, 81), label="Points per transfer curve",
+    vg_points = param.Integer(default=DEFAULT_GATE_SWEEP.points, bounds=(11, 81),
+                              label="Points per transfer curve",
                               doc="Gate voltages of each transfer curve [-].")
     vdd_V = param.Number(default=0.3, bounds=(0.05, 1.0), step=0.01,
                          label="Supply Vdd for Ion (V)",
@@ -162,6 +234,15 @@ class ExplorerState(param.Parameterized):
     ioff_log10_uA_per_um = param.Number(
         default=-3.0, bounds=(-8.0, 0.0), step=0.25, label="Ioff target (per µm of width)",
         doc="log10 of the off-current target that defines Voff [log10 µA/µm].")
+
+    # ---------------------------------------------------------------- numerical model
+    tunnelling_model = param.Selector(
+        default=TUNNELLING_MODELS[0],
+        objects={TUNNELLING_MODEL_NAMES.get(m, m): m for m in TUNNELLING_MODELS},
+        label="Tunnelling model",
+        doc="How the band-to-band transmission is computed: WKB with the two-band or the "
+            "one-band imaginary wave-vector, or the exact two-band transmission "
+            "(physics.TUNNELLING_MODELS).")
 
     # ---------------------------------------------------------------- display
     presentation = param.Boolean(default=False, label="Presentation mode",
@@ -243,7 +324,12 @@ class ExplorerState(param.Parameterized):
     def sweep_gate_voltages(self) -> np.ndarray:
         """Gate voltages of the transfer curves [V]."""
         lo, hi = self.vg_sweep_V
-        return np.linspace(lo, hi, int(self.vg_points))
+        return sweep_voltages(lo, hi, self.vg_points)
+
+    def vg_step_text(self) -> str:
+        """The transfer sweep's gate-voltage step in words ('Vg step 25 mV')."""
+        lo, hi = self.vg_sweep_V
+        return vg_step_text(lo, hi, self.vg_points)
 
     def output_gate_voltages(self) -> np.ndarray:
         """Gate voltages of the output curves: up to four, ending at the present Vg [V]."""
@@ -259,12 +345,12 @@ class ExplorerState(param.Parameterized):
     def transfer_key(self) -> tuple:
         """Everything a transfer curve and its metrics depend on (hashable)."""
         lo, hi = self.vg_sweep_V
-        return (self.design(), float(self.vd_V), float(lo), float(hi), int(self.vg_points),
-                self.ioff_target_uA_per_um, float(self.vdd_V))
+        return (self.design(), self.tunnelling_model, float(self.vd_V), float(lo), float(hi),
+                int(self.vg_points), self.ioff_target_uA_per_um, float(self.vdd_V))
 
     def output_key(self) -> tuple:
         """Everything the output curves depend on (hashable)."""
-        return (self.design(), tuple(self.output_gate_voltages()),
+        return (self.design(), self.tunnelling_model, tuple(self.output_gate_voltages()),
                 tuple(self.output_drain_voltages()))
 
 
@@ -287,3 +373,21 @@ def label_of(name: str) -> str:
     if name in ExplorerState.param:
         return ExplorerState.param[name].label
     return name
+
+
+def setting_words(name: str) -> str:
+    """A setting named in a sentence: its label without the unit, e.g. 'source length'
+    for source_length_nm, 'gate–source overlap' for gate_source_offset_nm."""
+    words = re.split(r" \(|,", label_of(name), maxsplit=1)[0].strip()
+    return words[:1].lower() + words[1:] if words[1:2].islower() else words
+
+
+def plain_words(text: str) -> str:
+    """A message with every internal setting name (``source_length_nm`` ...) replaced by
+    its words (`setting_words`), for the page: 'source_length_nm - gate_source_offset_nm
+    must be at least 1 nm' -> 'source length − gate–source overlap must be at least 1 nm'."""
+    names = sorted((n for n in {*FIELD_LABELS, *ExplorerState.param} if "_" in n),
+                   key=len, reverse=True)
+    out = re.sub(r"\b(" + "|".join(map(re.escape, names)) + r")\b",
+                 lambda m: setting_words(m.group(1)), text)
+    return out.replace(" - ", " − ")

@@ -30,6 +30,7 @@ PALETTE: dict[str, str | tuple[str, ...]] = {
     "design": "#0e7a70",
     "twin": "#b07a10",
     "transmission": "#5b4b8a",
+    "transmission_exact": "#c0397f",
     "pinned": ("#5a5f8c", "#8c5a7d", "#4f7f3a", "#7a6a55", "#3f6f8f", "#8f3f4f", "#6a6a6a",
                "#2f5f4f"),
     "limit": "#444444",

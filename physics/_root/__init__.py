@@ -27,9 +27,10 @@ except _metadata.PackageNotFoundError:  # pragma: no cover - run from a bare che
 #: ``sub60.physics.__all__`` (a test keeps them in sync).
 _PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "FIELD_RANGES", "Metric",
                 "Metrics", "NON_IDEAL_OFF", "OutputCurve", "SeriesSolution", "Simulator",
-                "SolverError", "Spectrum", "TUNNELLING_MODELS", "TransferCurve", "VD_RANGE_V",
-                "VG_RANGE_V", "alloys", "band_alignment", "bandgap_narrowing_eV", "cache_info",
-                "check_bias", "check_tunnelling_material", "clear_cache", "csv_text",
+                "SolverError", "Spectrum", "TUNNELLING_MODELS", "TransferCurve",
+                "TransmissionComparison", "VD_RANGE_V", "VG_RANGE_V", "alloys", "band_alignment",
+                "bandgap_narrowing_eV", "cache_info", "check_bias", "check_tunnelling_material",
+                "clear_cache", "compare_transmissions", "csv_text",
                 "design_warnings", "dielectrics", "figures_of_merit", "hurkx_gamma",
                 "interface_trap_density", "output_columns", "output_curve", "output_table",
                 "semiconductors", "solve_bias",

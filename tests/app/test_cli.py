@@ -191,6 +191,29 @@ def test_transfer_csv_with_twin(capsys):
     np.testing.assert_allclose([number(r["twin_id_uA_per_um"]) for r in rows],
                                rec["twin"]["id_uA_per_um"], rtol=1e-9)
     assert set(comments) >= {"vd_V"} | METRIC_KEYS
+    # the twin's figures of merit too, as in the JSON record (they were left out)
+    assert set(comments) >= {f"twin_{k}" for k in METRIC_KEYS}
+    for k, v in rec["twin"]["metrics"].items():
+        shown = comments[f"twin_{k}"]
+        assert (shown == "") if v is None else float(shown) == pytest.approx(v, rel=1e-12), k
+
+
+def test_help_lists_the_design_fields_of_set(capsys):
+    """`--help` of every command with --set lists each design field with its range
+    (`physics.FIELD_RANGES`) and default (`Design()`)."""
+    from sub60.physics import FIELD_RANGES, Design
+
+    for command in (["bands"], ["transfer"], ["output"], ["snapshot", "export"]):
+        with pytest.raises(SystemExit) as stop:
+            main([*command, "--help"])
+        assert stop.value.code == 0
+        out = capsys.readouterr().out
+        lines = {line.split()[0]: line for line in out.splitlines()
+                 if line.startswith("  ") and line.split() and line.split()[0] in FIELD_RANGES}
+        assert set(lines) == set(FIELD_RANGES), command
+        assert "[1e+17, 1e+21]" in lines["source_doping_cm3"]
+        assert "[nm]" in lines["body_thickness_nm"] and "[2, 30]" in lines["body_thickness_nm"]
+        assert f"default {Design().body_thickness_nm:g}" in lines["body_thickness_nm"]
 
 
 # ----------------------------------------------------------------- output

@@ -55,7 +55,7 @@ class FakeSimulator:
         self.bias_calls.append((design, vg, vd))
         self._pause()
         return SimpleNamespace(design=design, vg_V=vg, vd_V=vd, electrostatics=None,
-                               current_uA_per_um=1.0)
+                               current_uA_per_um=1.0, pair_currents_uA_per_um={})
 
     def transfer_curve(self, device, vg, vd, ioff_target_uA_per_um, vdd_V, progress=None,
                        cancelled=None, slots=None):
@@ -285,6 +285,7 @@ def test_a_closed_session_is_no_longer_referenced():
     _settle(jobs, "sweep")
     jobs.close(wait=True)
     page.drain()  # deliveries posted before the close hold the session until run
+    gc.collect()  # sessions of earlier tests left for the collector are not counted
     n = len(LIVE_SESSIONS)
     del jobs
     gc.collect()

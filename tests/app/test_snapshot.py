@@ -246,7 +246,10 @@ def test_csv_headers_carry_units_and_match_the_curves(exported):
     head, rows = read("output.csv")
     assert head == ["vd_V", "id_uA_per_um_at_vg_0.2_V", "id_uA_per_um_at_vg_0.3_V"]
     assert len(rows) == 5 and float(rows[0][1]) == pytest.approx(0.0, abs=1e-9)  # Id(Vd=0)=0
-    head, rows = read("pinned.csv")
+    text = files["pinned.csv"].decode()
+    assert text.startswith("# pin_1 = thin oxide\n")  # each pin named, not only numbered
+    rows = list(csv.reader(io.StringIO(text.split("\n", 1)[1])))
+    head, rows = rows[0], rows[1:]
     assert head == ["pin_index_1", "vg_V", "id_uA_per_um", "ss_mV_per_dec"] and len(rows) == 15
 
 
