@@ -186,7 +186,7 @@ class SnapshotSettings:
     stored: StoredResults | None = None
     #: Schema version of the file these settings were read from (None: made in code;
     #: an export always writes `SCHEMA_VERSION`).
-    schema_version: int | None = None
+    schema_version: int | None = field(default=None, compare=False)
 
     def __post_init__(self) -> None:
         # the same checks as an import, so settings made in code are valid too
