@@ -246,6 +246,7 @@ class Controls:
                                               color="light", width=WIDGET_WIDTH,
                                               margin=(8, 10), css_classes=["reset-button"])
         self.reset_button.on_click(lambda _event: self.state.reset())
+        self._add_composition()
         self.cards = self._make_cards(snapshots)
         self.sidebar = pn.Column(
             pn.pane.HTML('<div class="side-title">Settings</div>', stylesheets=self._css,
@@ -257,6 +258,29 @@ class Controls:
         state.param.watch(self._apply_enable_rule, list(ENABLE_RULES.values()))
         # the EOT line says why when the design is invalid: any design setting counts
         state.param.watch(self._refresh_eot, list(DESIGN_PARAMETERS))
+
+    # ------------------------------------------------------------ alloy composition
+    def _add_composition(self) -> None:
+        """The composition slider with its entry box: enabled for alloy bodies only, its
+        label says what x is for the chosen family (derived settings of the state)."""
+        s = self.state.param
+        lo, hi = s.composition_x.bounds
+        widget = _NowEditableFloatSlider.from_param(
+            s.composition_x, step=0.01, throttled=True, fixed_start=lo, fixed_end=hi,
+            name=self.state.composition_text, width=WIDGET_WIDTH, margin=(2, 10),
+            css_classes=["ctl-composition_x"], disabled=not self.state.composition_enabled)
+        if self.messages is not None:
+            messages = self.messages
+            widget.on_refused = lambda text: messages.set("input", text)
+            widget.on_accepted = lambda: messages.clear("input")
+        self.widgets["composition_x"] = widget
+        self.state.param.watch(self._apply_composition_rules,
+                               ["composition_enabled", "composition_text"])
+
+    def _apply_composition_rules(self, *_events) -> None:
+        widget = self.widgets["composition_x"]
+        widget.param.update(disabled=not self.state.composition_enabled,
+                            name=self.state.composition_text)
 
     def _apply_enable_rule(self, *events) -> None:
         rules = {rule: widget for widget, rule in ENABLE_RULES.items()}
@@ -341,8 +365,8 @@ class Controls:
                  w["drain_doping_log10_cm3"], w["doping_gradient_nm_per_dec"], collapsed=True),
             card("Gate stack", w["oxide"], w["oxide_thickness_nm"], self.eot,
                  w["oxide_permittivity"], w["gate_workfunction_eV"], collapsed=True),
-            card("Material and temperature", w["material"], w["temperature_K"],
-                 collapsed=True),
+            card("Material and temperature", w["material"], w["composition_x"],
+                 w["temperature_K"], collapsed=True),
             card("Tunnelling model", w["tunnelling_model"], model_note,
                  collapsed=True),
         ]

@@ -36,6 +36,7 @@ from panel.io.state import set_curdoc
 
 from sub60.app.controls import SIDEBAR_WIDTH, Controls
 from sub60.app.jobs import SessionJobs, shared_simulator
+from sub60.app.material_card import MaterialCard
 from sub60.app.messages import CAUTION, TITLE, MessageBoard, header_html, html_escape, value_message
 from sub60.app.pin_jobs import PinJobs
 from sub60.app.pin_view import PinView
@@ -56,7 +57,7 @@ from sub60.app.state import (
     ExplorerState,
 )
 from sub60.app.sweep_view import SweepView
-from sub60.physics import check_tunnelling_material, semiconductors
+from sub60.physics import check_tunnelling_material
 
 __all__ = ["CAUTION", "SIDEBAR_WIDTH", "TITLE", "Explorer", "create_app", "stylesheet"]
 
@@ -153,12 +154,15 @@ class Explorer(pn.viewable.Viewer):
                                               sizing_mode="stretch_width", margin=(2, 8))
         self.presentation_toggle = pn.widgets.Toggle.from_param(
             self.state.param.presentation, color="default", width=170, margin=(6, 8))
+        # material card: every parameter of the body material with its source
+        self.material_card = MaterialCard(self.state, css)
         r = self.results
         top = pn.Row(self.header,
                      pn.Column(self.presentation_toggle, r.progress, r.status,
                                width=280, margin=0),
                      sizing_mode="stretch_width", margin=0)
         self.main = pn.Column(top, r.metrics, self.material_warning, r.notes, self.alert, r.plots,
+                              self.material_card.view,
                               self.pin_view.compare.view, sizing_mode="stretch_width",
                               css_classes=["sub60-main"], margin=0)
         # design sweeps in a tab of their own (app.sweep_view); a picked design comes back here
@@ -178,7 +182,7 @@ class Explorer(pn.viewable.Viewer):
             (self.state, watch(self._on_presentation, "presentation")),
             (self.state, watch(self._refresh_header,
                                [*DESIGN_PARAMETERS, *MODEL_PARAMETERS])),
-            (self.state, watch(self._refresh_material_warning, "material")),
+            (self.state, watch(self._refresh_material_warning, ["material", "composition_x"])),
             (self.state, watch(self._sync_url, list(LINKED_PARAMETERS))),
             (self.state, watch(self._on_settings, list(COMPUTED_PARAMETERS))),
             (self.messages, self.messages.param.watch(self._refresh_alert, "text")),
@@ -215,6 +219,7 @@ class Explorer(pn.viewable.Viewer):
         self.jobs.close()
         self.pin_jobs.close()
         self.sweep_view.close()
+        self.material_card.close()
         for owner, watcher in self._watchers:
             try:
                 owner.param.unwatch(watcher)
@@ -258,7 +263,11 @@ class Explorer(pn.viewable.Viewer):
         self.header.object = header_html(self.state)
 
     def _refresh_material_warning(self, *_events) -> None:
-        text = check_tunnelling_material(semiconductors()[self.state.material])
+        try:
+            record = self.state.design().semiconductor
+        except ValueError:  # the design's own message is shown elsewhere
+            record = None
+        text = check_tunnelling_material(record) if record is not None else None
         self.material_warning.object = text or ""
         self.material_warning.visible = bool(text)
 

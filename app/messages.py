@@ -121,7 +121,7 @@ def header_html(state: ExplorerState) -> str:
         eot = d.eot_nm
         layout = "double gate" if d.gate_layout == "double" else "single gate"
         src = "p+" if d.source_type == "p" else "n+"
-        summary = (f"{d.material} body {d.body_thickness_nm:g} nm · L<sub>g</sub> "
+        summary = (f"{d.semiconductor.name} body {d.body_thickness_nm:g} nm · L<sub>g</sub> "
                    f"{d.gate_length_nm:g} nm · {layout} · {d.oxide} {d.oxide_thickness_nm:g} nm "
                    f"(EOT {eot:.2f} nm) · {src} source {d.source_doping_cm3:.1e} cm⁻³ · "
                    f"{d.temperature_K:g} K · {MODEL_SHORT.get(m, m)}")

@@ -154,7 +154,7 @@ def _outside_control(name: str, value: Any, state: ExplorerState) -> str:
 
 #: Query key of each setting in the page's address (short, readable, with units).
 QUERY_KEYS: dict[str, str] = {
-    "material": "material", "temperature_K": "T_K",
+    "material": "material", "composition_x": "x", "temperature_K": "T_K",
     "body_thickness_nm": "body_nm", "gate_length_nm": "lg_nm",
     "source_length_nm": "ls_nm", "drain_length_nm": "ld_nm",
     "gate_layout": "gates", "gate_source_offset_nm": "overlap_nm",
@@ -300,6 +300,12 @@ def updates_from_query(query: Mapping[str, str], base: ExplorerState | None = No
                             f"range{_range_text(name, scratch)}")
             continue
         updates[name] = value
+    # alloy composition: only an alloy body takes one (the state would ignore it)
+    if updates.get("composition_x", 0.0) != 0.0 and not scratch.composition_enabled:
+        problems.append(f"{label_of('composition_x')} ({QUERY_KEYS['composition_x']}): "
+                        f"{scratch.material} is not an alloy, so it takes no composition")
+        updates.pop("composition_x")
+        scratch.composition_x = 0.0
     # combination rules of the design (e.g. an underlap longer than the gate)
     for _ in range(len(DESIGN_PARAMETERS)):
         try:

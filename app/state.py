@@ -28,6 +28,7 @@ from sub60.physics import (
     VD_RANGE_V,
     VG_RANGE_V,
     Design,
+    alloys,
     dielectrics,
     semiconductors,
 )
@@ -106,7 +107,7 @@ def vg_step_text(start_V: float, stop_V: float, points: int) -> str:
 
 #: Settings whose change alters the device (and so every curve).
 DESIGN_PARAMETERS: tuple[str, ...] = (
-    "material", "temperature_K",
+    "material", "composition_x", "temperature_K",
     "body_thickness_nm", "gate_length_nm", "source_length_nm", "drain_length_nm",
     "gate_layout", "gate_source_offset_nm", "buried_oxide_thickness_nm",
     "source_type", "source_doping_log10_cm3", "channel_dopant", "channel_doping_log10_cm3",
@@ -136,13 +137,41 @@ OUTPUT_VG_STEP_V = 0.1
 OUTPUT_VD_POINTS = 13
 
 
+# ---------------------------------------------------------------- alloy composition
+#: Body choices of the material picker: label -> design material (fixed records, then the
+#: alloy families, whose composition is the `composition_x` setting).
+MATERIAL_CHOICES: dict[str, str] = {
+    **{name: name for name in semiconductors()},
+    **{f"{name} alloy: {fam.formula.replace('1-x', '1−x')}": name
+       for name, fam in alloys().items()},
+}
+#: Label of the composition control without an alloy body.
+NO_ALLOY_LABEL = "Alloy composition x (only for alloy bodies)"
+
+
+def composition_label(material: str) -> str:
+    """What x is for an alloy body, e.g. "In fraction x of In(x)Ga(1−x)As" (a fixed
+    material: `NO_ALLOY_LABEL`)."""
+    family = alloys().get(material)
+    if family is None:
+        return NO_ALLOY_LABEL
+    element = re.search(r"([A-Z][a-z]?)\(x\)", family.formula)
+    formula = family.formula.replace("1-x", "1−x")
+    return f"{element.group(1) if element else 'Composition'} fraction x of {formula}"
+
+
 class ExplorerState(param.Parameterized):
     """All settings of one explorer session (units in the names and labels)."""
 
     # ---------------------------------------------------------------- material, temperature
     material = param.Selector(
-        default=_DEFAULT.material, objects=list(semiconductors()), label="Body semiconductor",
-        doc="Body semiconductor (a record of physics.materials).")
+        default=_DEFAULT.material, objects=MATERIAL_CHOICES, label="Body semiconductor",
+        doc="Body semiconductor: a fixed record or an alloy family of physics.materials.")
+    # ---------------------------------------------------------------- alloy composition
+    composition_x = param.Number(
+        default=_DEFAULT.composition_x, bounds=_bounds("composition_x"), step=0.01,
+        label="Alloy composition x (–)",
+        doc="x of an alloy body (see composition_label); 0 for a fixed material [-].")
     temperature_K = param.Number(
         default=_DEFAULT.temperature_K, bounds=_bounds("temperature_K"), step=1.0,
         label="Temperature (K)", doc="Lattice temperature [K].")
@@ -256,6 +285,23 @@ class ExplorerState(param.Parameterized):
         default=False, constant=True, precedence=-1,
         doc="The buried oxide applies (single gate); derived, read-only.")
 
+    # ---------------------------------------------------------------- alloy composition rules
+    composition_enabled = param.Boolean(
+        default=False, constant=True, precedence=-1,
+        doc="The body is an alloy, so its composition applies; derived, read-only.")
+    composition_text = param.String(
+        default=NO_ALLOY_LABEL, constant=True, precedence=-1,
+        doc="What x is for the present body (label of the composition control); derived.")
+
+    @param.depends("material", watch=True, on_init=True)
+    def _update_composition_rules(self) -> None:
+        alloy = self.material in alloys()
+        with param.parameterized.edit_constant(self):
+            self.param.update(composition_enabled=alloy,
+                              composition_text=composition_label(self.material))
+        if not alloy and self.composition_x != 0.0:
+            self.composition_x = 0.0  # a fixed material takes no composition
+
     @param.depends("oxide", "gate_layout", watch=True, on_init=True)
     def _update_enable_rules(self) -> None:
         with param.parameterized.edit_constant(self):
@@ -285,6 +331,7 @@ class ExplorerState(param.Parameterized):
             buried_oxide_thickness_nm=self.buried_oxide_thickness_nm,
             gate_source_offset_nm=self.gate_source_offset_nm,
             temperature_K=self.temperature_K,
+            composition_x=self.composition_x if self.material in alloys() else 0.0,
         )
 
     def design_settings(self, design: Design) -> dict[str, Any]:
@@ -300,7 +347,7 @@ class ExplorerState(param.Parameterized):
         for name in ("doping_gradient_nm_per_dec", "body_thickness_nm", "gate_length_nm",
                      "source_length_nm", "drain_length_nm", "oxide_thickness_nm", "oxide",
                      "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
-                     "gate_source_offset_nm", "temperature_K"):
+                     "gate_source_offset_nm", "temperature_K", "composition_x"):
             out[name] = getattr(design, name)
         if design.oxide_permittivity is not None:
             out["oxide_permittivity"] = design.oxide_permittivity

@@ -40,6 +40,7 @@ _API: dict[str, str] = {
     "csv_text": "tables",
     "design_warnings": "simulate",
     "dielectrics": "materials",
+    "material_parameters": "materials",
     "figures_of_merit": "metrics",
     "hurkx_gamma": "trap_assisted",
     "interface_trap_density": "interface_traps",

@@ -1312,3 +1312,122 @@ def band_alignment(first: Semiconductor | str, second: Semiconductor | str,
         kind = "staggered (type II)"
     return BandAlignment(recs[0].name, recs[1].name, float(temperature_K), ev1, ec1, ev2, ec2,
                          kind)
+
+
+# --- the parameter list of one record (for a material card) --------------------------
+@dataclass(frozen=True)
+class MaterialParameter:
+    """One parameter of a body material, ready to list.
+
+    Attributes
+    ----------
+    label : readable name, e.g. "Band gap Eg(T)"
+    value : the number, or a short text (the kind of gap)
+    unit : unit text, "" for a relative quantity
+    source : where the number comes from (the record's citation, or how it is derived)
+    """
+
+    label: str
+    value: float | str
+    unit: str
+    source: str
+
+
+def material_parameters(semiconductor: Semiconductor, temperature_K: float
+                        ) -> tuple[MaterialParameter, ...]:
+    """Every parameter of a body record at a temperature, each with its source.
+
+    The record's own fields with their ``sources`` entries; the gap, non-parabolicity,
+    effective densities of states and intrinsic density at ``temperature_K`` (Varshni
+    law; `Semiconductor.effective_dos_cm3`, `Semiconductor.intrinsic_density_cm3`); the
+    confined and in-plane hole masses from the Luttinger parameters (Luttinger, Phys.
+    Rev. 102, 1030 (1956)); and the other valleys: L and X of the III-Vs
+    (`satellite_valleys`), the X-like and L-like gaps of Si(1-x)Ge(x) (`sige_gaps_eV`)
+    and the direct Gamma gap of Ge (`sub60.physics.indirect_tunnelling.GE_GAMMA_GAP`).
+
+    Parameters
+    ----------
+    semiconductor : Semiconductor
+        a fixed record or an alloy record.
+    temperature_K : float
+        lattice temperature, > 0 [K].
+
+    Returns
+    -------
+    tuple of MaterialParameter
+    """
+    s = semiconductor
+    t = float(_temperature(temperature_K, allow_zero=False))
+    src = s.sources
+    lutt = src["luttinger"]
+    gap_src = f"{src['eg0_eV']}; Varshni law (Varshni, Physica 34, 149 (1967))"
+    rows = [
+        MaterialParameter("Band gap Eg(T)", float(s.bandgap_eV(t)), "eV", gap_src),
+        MaterialParameter("Band gap at 0 K", s.eg0_eV, "eV", src["eg0_eV"]),
+        MaterialParameter("Kind of gap", "direct (Γ)" if s.direct_gap else "indirect", "",
+                          src["direct_gap"]),
+        MaterialParameter("Varshni α", s.varshni_alpha_eV_per_K * 1e3, "meV/K",
+                          src["varshni_alpha_eV_per_K"]),
+        MaterialParameter("Varshni β", s.varshni_beta_K, "K", src["varshni_beta_K"]),
+        MaterialParameter("Electron affinity χ", s.electron_affinity_eV, "eV",
+                          src["electron_affinity_eV"]),
+    ]
+    if s.valence_band_offset_eV is not None:
+        rows.append(MaterialParameter("Valence-band offset (InSb top = 0)",
+                                      s.valence_band_offset_eV, "eV",
+                                      src["valence_band_offset_eV"]))
+    rows += [
+        MaterialParameter("Relative permittivity εr", s.permittivity, "",
+                          src["permittivity"]),
+        MaterialParameter("Electron mass m*", s.electron_mass, "m0", src["electron_mass"]),
+        MaterialParameter("Electron DOS mass", s.electron_dos_mass, "m0",
+                          src["electron_dos_mass"]),
+        MaterialParameter("Hole DOS mass", s.hole_dos_mass, "m0", src["hole_dos_mass"]),
+        *(MaterialParameter(f"Luttinger γ{i + 1}", g, "", lutt)
+          for i, g in enumerate(s.luttinger)),
+        MaterialParameter("Heavy hole, along [001]", s.heavy_hole_mass_confined, "m0",
+                          f"derived: 1/(γ1 − 2γ2) (Luttinger 1956); γ: {lutt}"),
+        MaterialParameter("Light hole, along [001]", s.light_hole_mass_confined, "m0",
+                          f"derived: 1/(γ1 + 2γ2) (Luttinger 1956); γ: {lutt}"),
+        MaterialParameter("Non-parabolicity α at 0 K", s.nonparabolicity_per_eV, "1/eV",
+                          src["nonparabolicity_per_eV"]),
+        MaterialParameter("Non-parabolicity α(T)", s.nonparabolicity_at_per_eV(t), "1/eV",
+                          "derived: (1 − m*)²/Eg(T) (Kane 1957; from memory)" if s.direct_gap
+                          else src["nonparabolicity_per_eV"]),
+    ]
+    nc, nv = s.effective_dos_cm3(t)
+    dos_src = "derived: 2 (m kT / 2πħ²)^1.5 with the DOS masses above (Sze & Ng, ch. 1)"
+    rows += [
+        MaterialParameter("Conduction-band DOS Nc(T)", float(nc), "cm⁻³", dos_src),
+        MaterialParameter("Valence-band DOS Nv(T)", float(nv), "cm⁻³", dos_src),
+        MaterialParameter("Intrinsic density ni(T)", float(s.intrinsic_density_cm3(t)), "cm⁻³",
+                          "derived: √(Nc Nv) exp(−Eg/2kT) (Sze & Ng, ch. 1)"),
+    ]
+    rows += _valley_rows(s, t)
+    return tuple(rows)
+
+
+def _src_of(s: Semiconductor, name: str) -> str:
+    """The source of one field of a record, Varshni law added for the gap."""
+    return f"{s.sources[name]}; Varshni law" if name == "eg0_eV" else s.sources[name]
+
+
+def _valley_rows(s: Semiconductor, t: float) -> list[MaterialParameter]:
+    family = s.composition[0] if s.composition is not None else None
+    if family == "SiGe" or s.name in ("Si", "Ge"):
+        x = s.composition[1] if s.composition is not None else (1.0 if s.name == "Ge" else 0.0)
+        gx, gl = sige_gaps_eV(x, t)
+        fit = f"derived: {_WEBER_ALONSO}, tied to the Si (X) and Ge (L) records"
+        rows = [MaterialParameter("X-valley gap (T)", gx, "eV",
+                                  _src_of(s, "eg0_eV") if gx <= gl else fit),
+                MaterialParameter("L-valley gap (T)", gl, "eV",
+                                  _src_of(s, "eg0_eV") if gl < gx else fit)]
+        if x == 1.0:
+            from sub60.physics.indirect_tunnelling import GE_GAMMA_GAP
+
+            rows.append(MaterialParameter(
+                "Direct Γ gap (T)", float(varshni_gap_eV(*GE_GAMMA_GAP, t)), "eV",
+                "Varshni law 0.8893 eV, 0.6842 meV/K, 398 K (from memory)"))
+        return rows
+    return [MaterialParameter(f"{v.name}-valley gap (T)", v.gap_eV(t), "eV", v.source)
+            for v in satellite_valleys(s)]

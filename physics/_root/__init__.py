@@ -32,6 +32,7 @@ _PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "FIELD_RANGES", "Metric
                 "bandgap_narrowing_eV", "cache_info", "check_bias", "check_tunnelling_material",
                 "clear_cache", "compare_transmissions", "csv_text",
                 "design_warnings", "dielectrics", "figures_of_merit", "hurkx_gamma",
+                "material_parameters",
                 "interface_trap_density", "output_columns", "output_curve", "output_table",
                 "semiconductors", "solve_bias",
                 "solve_electrostatics", "thermionic_limit_mV_per_dec", "transfer_curve")
