@@ -19,7 +19,7 @@ from sub60.app.jobs import SessionJobs, SweepRequest
 from sub60.app.messages import MessageBoard, solver_message, validity_notes_html, value_message
 from sub60.app.plots import ExplorerFigures, metrics_html
 from sub60.app.state import ExplorerState, vg_step_text
-from sub60.physics import SolverError, check_tunnelling_material, semiconductors
+from sub60.physics import SolverError, check_tunnelling_material
 
 
 class ResultsView:
@@ -91,7 +91,10 @@ class ResultsView:
 
     def show_notes(self, warnings: Sequence[str]) -> None:
         """Show the model's validity warnings (none: the note is hidden)."""
-        material = check_tunnelling_material(semiconductors()[self.state.material])
+        try:  # the body record (an alloy at its composition, too)
+            material = check_tunnelling_material(self.state.design().semiconductor)
+        except ValueError:
+            material = None
         notes = [w for w in warnings if w != material]
         self.notes.object = validity_notes_html(notes)
 

@@ -52,16 +52,16 @@ from typing import Any, Protocol
 
 import numpy as np
 import pytest
-from hypothesis import given
+from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
-from sub60.physics.materials import DIELECTRICS, SEMICONDUCTORS
+from sub60.physics.materials import ALLOYS, DIELECTRICS, SEMICONDUCTORS
 from sub60.physics.poisson import SolverError
 from sub60.physics.simulate import BiasPoint, Simulator
 from sub60.physics.subbands import BARRIER_NM, device_subbands
 
-MATERIALS = tuple(SEMICONDUCTORS)
+MATERIALS = tuple(SEMICONDUCTORS) + tuple(ALLOYS)  # fixed records, then alloy families
 OXIDES = tuple(DIELECTRICS) + ("custom",)
 NUMERIC_FIELDS = tuple(k for k, s in FIELD_RANGES.items() if s.kind is float)
 TEXT_FIELDS = tuple(k for k, s in FIELD_RANGES.items() if s.kind is str)
@@ -169,6 +169,12 @@ def draw_design_fields(src: Source) -> dict[str, Any]:
     low, high = _range("gate_source_offset_nm")
     f["gate_source_offset_nm"] = src.uniform(max(low, 2.0 - f["gate_length_nm"]),
                                              min(high, f["source_length_nm"] - 1.0))
+    # alloy composition: across [0, 1] for an alloy body (ends included), absent or 0
+    # otherwise (a fixed material takes none)
+    if f["material"] in ALLOYS:
+        f["composition_x"] = src.uniform(*_range("composition_x"))
+    elif src.chance(0.2):
+        f["composition_x"] = 0.0
     return f
 
 
@@ -368,6 +374,11 @@ def biases(draw) -> tuple[float, float]:
 @given(design=designs(), bias=biases())
 def test_random_design_converges_with_invariants_or_reports(design, bias, fuzz_log):
     """Finite, invariant-respecting result, or a SolverError that names the bias point."""
+    check_case(design, bias, fuzz_log)
+
+
+def check_case(design: Design, bias: tuple[float, float], fuzz_log: list) -> None:
+    """Solve one case, log it; assert a clean result or a SolverError naming the bias."""
     vg, vd = bias
     bp, error, seconds = solve_case(design, vg, vd)
     violations = [] if bp is None else invariant_violations(bp)
@@ -381,6 +392,55 @@ def test_random_design_converges_with_invariants_or_reports(design, bias, fuzz_l
         return
     problems = [(tag, text) for tag, text in violations if tag not in OPEN_BUGS]
     assert not problems, f"{problems}\nVg = {vg!r} V, Vd = {vd!r} V, design {design.to_dict()}"
+
+
+# ----------------------------------------------------------------------------- alloys
+@st.composite
+def alloy_designs(draw) -> Design:
+    """A random design whose body is an alloy family at a random composition."""
+    src = HypothesisSource(draw)
+    fields = draw_design_fields(src)
+    fields["material"] = src.choice(tuple(ALLOYS))
+    fields["composition_x"] = src.uniform(*_range("composition_x"))
+    return Design(**fields)
+
+
+@settings(max_examples=8)  # a few alloy solves in every run; --long runs the big test above
+@given(design=alloy_designs(), bias=biases())
+def test_random_alloy_design_converges_with_invariants_or_reports(design, bias, fuzz_log):
+    """Alloy bodies over x in [0, 1]: the same contract as any random design."""
+    assert design.semiconductor.composition == (design.material, design.composition_x)
+    check_case(design, bias, fuzz_log)
+
+
+@given(case=st.data())
+def test_composition_on_a_fixed_material_names_material_and_composition(case):
+    """A composition other than 0 on a fixed material is refused naming both fields."""
+    src = HypothesisSource(case.draw)
+    fields = draw_design_fields(src)
+    fields["material"] = src.choice(tuple(SEMICONDUCTORS))
+    fields["composition_x"] = case.draw(st.floats(0.0, 1.0).filter(lambda v: v != 0.0))
+    with pytest.raises(ValueError) as err:
+        Design(**fields)
+    msg = str(err.value)
+    assert msg.startswith("material:") and "composition_x" in msg, msg
+    assert all(name in msg for name in ALLOYS), msg
+
+
+@given(case=st.data())
+def test_alloy_composition_outside_its_range_names_field_and_range(case):
+    """An alloy body with x outside [0, 1] (or not a number): ValueError names
+    composition_x and its range."""
+    src = HypothesisSource(case.draw)
+    fields = draw_design_fields(src)
+    fields["material"] = src.choice(tuple(ALLOYS))
+    fields["composition_x"] = (src.choice(NOT_A_NUMBER) if src.chance(0.3)
+                               else draw_outside(src, *_range("composition_x")))
+    with pytest.raises(ValueError) as err:
+        Design(**fields)
+    msg = str(err.value)
+    assert msg.startswith("composition_x:"), msg
+    assert FIELD_RANGES["composition_x"].describe() in msg, msg
 
 
 # ----------------------------------------------------------------------------- (b)
