@@ -30,7 +30,7 @@ from sub60.app.sharing import (
 from sub60.app.snapshot_reader import import_snapshot
 from sub60.app.snapshot_schema import TransferSweep
 from sub60.app.state import NO_ALLOY_LABEL, ExplorerState, composition_label
-from sub60.physics import Design
+from sub60.physics import Design, Simulator
 from sub60.physics.materials import alloy_semiconductor, varshni_gap_eV
 
 
@@ -200,3 +200,21 @@ def test_demo_presets_of_our_own_load_in_the_page(name, material, x):
     state = ExplorerState()
     state.param.update(**updates)
     assert state.design() == settings.design
+
+
+def test_alloy_preset_keeps_its_promise():
+    """What the In0.7Ga0.3As preset's note says: less on-current than the pinned InAs
+    design at the same supply and off-current target, and less ambipolar leakage."""
+    settings = load_preset("ingaas-tunnel-fet")
+    ms, sw = settings.metric_settings, settings.transfer_sweep
+    pinned = settings.pinned[0].design
+    assert pinned == Design() and settings.design.replace(
+        material="InAs", composition_x=0.0) == pinned  # only the body differs
+    sim = Simulator()
+    vg = sw.gate_voltages()
+    assert vg[0] == -0.4
+    alloy, inas = (sim.transfer_curve(d, vg, sw.vd_V, vdd_V=ms.vdd_V,
+                                      ioff_target_uA_per_um=ms.ioff_target_uA_per_um)
+                   for d in (settings.design, pinned))
+    assert alloy.metrics.ion_uA_per_um.value < 0.5 * inas.metrics.ion_uA_per_um.value
+    assert alloy.id_uA_per_um[0] < 0.1 * inas.id_uA_per_um[0]  # at Vg = -0.4 V

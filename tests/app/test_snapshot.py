@@ -323,7 +323,8 @@ def test_cli_export_render_check(tmp_path, capsys):
 
 
 # ---------------------------------------------------------------------- presets
-PRESETS = ("high-on-current", "low-power-switch", "mosfet-baseline", "single-gate-soi")
+PRESETS = ("high-on-current", "ingaas-tunnel-fet", "low-power-switch", "mosfet-baseline",
+           "silicon-tunnel-fet", "single-gate-soi")
 
 
 def test_presets_load_validate_and_solve():
