@@ -70,7 +70,7 @@ def test_alloy_composition_typed_recomputes_plots_and_card(browser, app_url):
         page.locator(".ctl-material select").select_option(label="Si")
         expect(entry).to_be_disabled(timeout=TIMEOUT_MS)
         expect(entry).to_have_value("0", timeout=TIMEOUT_MS)
-        page.wait_for_function(f"() => ({CARD_TEXT})().includes('<b>Si</b>')",
+        page.wait_for_function(f"() => ({CARD_TEXT})().includes('Thurmond')",  # Si's gap source
                                timeout=TIMEOUT_MS)
         assert not errors, errors
     finally:
