@@ -31,7 +31,7 @@ A sweep file is TOML (or JSON with the same structure)::
     seed = 1
 
     [bias]
-    vg_V = [-0.3, 0.6, 46]        # gate sweep: start, stop, number of points [V]
+    vg_V = [-0.4, 0.6, 41]        # gate sweep: start, stop, number of points [V]
     vd_V = 0.3                    # drain voltage [V]
     ioff_target_uA_per_um = 1e-3  # Ioff target for Voff and Ion [uA/um]
     vdd_V = 0.3                   # supply: Ion = Id(Voff + Vdd) [V]
@@ -62,6 +62,7 @@ from typing import Any
 import numpy as np
 
 from sub60.app.number_rules import InputError, check_document, parse_json
+from sub60.app.state import DEFAULT_GATE_SWEEP
 from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_V, Design
 
 #: Knobs per sweep.
@@ -202,9 +203,9 @@ class BiasPlan:
     vdd_V : supply; Ion = Id(Voff + Vdd) [V]
     """
 
-    vg_start_V: float = -0.3
-    vg_stop_V: float = 0.6
-    vg_points: int = 46
+    vg_start_V: float = DEFAULT_GATE_SWEEP.start_V
+    vg_stop_V: float = DEFAULT_GATE_SWEEP.stop_V
+    vg_points: int = DEFAULT_GATE_SWEEP.points
     vd_V: float = 0.3
     ioff_target_uA_per_um: float = 1e-3
     vdd_V: float = 0.3
