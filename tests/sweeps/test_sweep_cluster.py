@@ -80,11 +80,13 @@ def test_sweep_through_a_scheduler_survives_a_killed_worker(tmp_path: Path) -> N
         procs.append(sweep)
         cache = out / "cache"
         done_at_kill = _wait_for(lambda: len(list(cache.glob("*/*.json"))) >= 3 and
-                                 len(list(cache.glob("*/*.json"))), 50, "three designs done")
+                                 len(list(cache.glob("*/*.json"))), 180, "three designs done")
         assert victim.poll() is None, "the worker ended by itself"
         os.kill(victim.pid, signal.SIGKILL)
         victim.wait(10)
-        stdout, stderr = sweep.communicate(timeout=55)
+        # generous guards, not speed checks: on a loaded 2-core machine a cold worker
+        # (imports, first compilation of the kernels) takes tens of seconds per design
+        stdout, stderr = sweep.communicate(timeout=300)
         assert sweep.returncode == 0, stderr
         assert done_at_kill < 20, "the sweep finished before the worker was killed"
         rows = read_table(out)
