@@ -22,6 +22,7 @@ from typing import Any
 import numpy as np
 import param
 
+from sub60.app.nonideal import NONIDEAL_FIELDS, NonIdealSettings
 from sub60.physics import (
     FIELD_RANGES,
     TUNNELLING_MODELS,
@@ -112,7 +113,7 @@ DESIGN_PARAMETERS: tuple[str, ...] = (
     "source_type", "source_doping_log10_cm3", "channel_dopant", "channel_doping_log10_cm3",
     "drain_doping_log10_cm3", "doping_gradient_nm_per_dec",
     "oxide", "oxide_thickness_nm", "oxide_permittivity", "gate_workfunction_eV",
-)
+) + NONIDEAL_FIELDS  # non-idealities: app.nonideal
 #: The tunnelling model of the physics (`physics.TUNNELLING_MODELS`) in plain words, as
 #: the page and its messages name it.
 TUNNELLING_MODEL_NAMES: dict[str, str] = {
@@ -136,7 +137,7 @@ OUTPUT_VG_STEP_V = 0.1
 OUTPUT_VD_POINTS = 13
 
 
-class ExplorerState(param.Parameterized):
+class ExplorerState(NonIdealSettings):
     """All settings of one explorer session (units in the names and labels)."""
 
     # ---------------------------------------------------------------- material, temperature
@@ -285,6 +286,7 @@ class ExplorerState(param.Parameterized):
             buried_oxide_thickness_nm=self.buried_oxide_thickness_nm,
             gate_source_offset_nm=self.gate_source_offset_nm,
             temperature_K=self.temperature_K,
+            **self.nonideal_fields(),  # non-idealities: app.nonideal
         )
 
     def design_settings(self, design: Design) -> dict[str, Any]:
@@ -302,6 +304,7 @@ class ExplorerState(param.Parameterized):
                      "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
                      "gate_source_offset_nm", "temperature_K"):
             out[name] = getattr(design, name)
+        out.update({name: getattr(design, name) for name in NONIDEAL_FIELDS})
         if design.oxide_permittivity is not None:
             out["oxide_permittivity"] = design.oxide_permittivity
         return out
