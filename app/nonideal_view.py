@@ -33,7 +33,7 @@ NONIDEAL_CHOICES: tuple[str, ...] = ("interface_trap_profile", "bandgap_narrowin
 
 IDEAL_LABEL = "tunnel FET, ideal"
 #: Fill of the band-tail fringes (the band colours, light).
-TAIL_ALPHA = 0.22
+TAIL_ALPHA = 0.55
 
 
 def nonideal_card(controls: Any, card: Callable[..., pn.Card], width: int) -> pn.Card:

@@ -41,7 +41,8 @@ def test_typed_tail_energy_shows_ideal_curve_and_breakdown(browser, app_url):
         page.wait_for_function(f"() => ({BREAKDOWN})().includes('band tails')",
                                timeout=240_000)
         assert page.evaluate("() => sub60.model('transfer_ideal').visible")
-        assert page.evaluate("() => sub60.model('transfer_ideal').glyph.line_dash.length") > 0
+        dash = page.evaluate("() => JSON.stringify(sub60.model('transfer_ideal').glyph.line_dash)")
+        assert "7" in dash and "4" in dash, dash  # dashed [7, 4]
         html = page.evaluate(BREAKDOWN)
         values = page.evaluate("""() => {
             const d = new DOMParser().parseFromString(
