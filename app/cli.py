@@ -18,6 +18,16 @@ as ``# twin_<metric>`` lines); ``output`` gives ``vd_V`` and
 ``id_uA_per_um_at_vg_<Vg>_V``. Scalars (bias, Fermi levels, figures of merit) come first
 as ``# name = value`` lines.
 
+When any non-ideality of the design is on (band tails, trap-assisted generation, interface
+traps, series resistance, band-gap narrowing; `Design.is_ideal`), ``transfer`` also
+solves the ideal device (the same design with `NON_IDEAL_OFF`) and records it beside the
+non-ideal one: JSON keys ``ideal`` (curve and figures of merit) and
+``off_state_by_mechanism`` (the current at Voff split into ``band_to_band_uA_per_um``,
+``band_tails_uA_per_um``, ``trap_assisted_uA_per_um``, ``thermionic_uA_per_um``, with
+``total_uA_per_um``, ``vg_V``, ``vd_V``); CSV columns ``ideal_id_uA_per_um``,
+``ideal_ss_mV_per_dec`` and scalar lines ``ideal_<figure>`` and ``off_<mechanism>_uA_per_um``.
+``bands`` then gives ``current_by_mechanism_uA_per_um`` and ``ideal_current_uA_per_um``.
+
 A bad option or design value exits with status 2 and a one-line message naming it.
 """
 
@@ -44,6 +54,7 @@ from sub60.app.cli_common import (
     vdd_option,
     warn_design,
 )
+from sub60.app.nonideal import ideal_design, off_state_breakdown
 from sub60.app.snapshot_cli import add_snapshot_parser, run_snapshot
 from sub60.app.tables import bands_table, csv_text, output_table, transfer_table
 
@@ -93,13 +104,20 @@ def cmd_bands(a) -> str:
     bp = solve(_simulator(a).solve_bias, d, single_voltage(parse_sweep(a.vg, "vg"), "vg"),
                 single_voltage(parse_sweep(a.vd, "vd"), "vd"))
     rec = {"design": d.to_dict(), **bands_record(bp), "warnings": warn_design(d)}
+    extra: dict = {}
+    if not d.is_ideal:
+        ideal = solve(_simulator(a).solve_bias, ideal_design(d), bp.vg_V, bp.vd_V)
+        rec["current_by_mechanism_uA_per_um"] = dict(bp.current_by_mechanism_uA_per_um)
+        rec["ideal_current_uA_per_um"] = ideal.current_uA_per_um
+        extra = {f"{k}_uA_per_um": v for k, v in rec["current_by_mechanism_uA_per_um"].items()}
+        extra["ideal_current_uA_per_um"] = ideal.current_uA_per_um
     if a.format == "csv":
         w = rec["window"]
         return csv_text(bands_table(bp),
                         {"vg_V": bp.vg_V, "vd_V": bp.vd_V, "efs_eV": bp.efs_eV, "efd_eV": bp.efd_eV,
                          "window_e_min_eV": None if w is None else w["e_min_eV"],
                          "window_e_max_eV": None if w is None else w["e_max_eV"],
-                         "current_uA_per_um": rec["current_uA_per_um"]})
+                         "current_uA_per_um": rec["current_uA_per_um"], **extra})
     return json.dumps(rec, indent=1)
 
 
@@ -115,10 +133,23 @@ def cmd_transfer(a) -> str:
     if a.twin:
         twin = solve(lambda: transfer_curve(d.twin(), vg, vd, **kw))
         rec["twin"] = {"design": d.twin().to_dict(), **transfer_record(twin)}
+    comments = {"vd_V": vd, **rec["metrics"]}
+    table = transfer_table(tc, twin)
+    if not d.is_ideal:
+        sim = _simulator(a)
+        ideal = solve(lambda: transfer_curve(ideal_design(d), vg, vd, **kw))
+        rec["ideal"] = {"design": ideal_design(d).to_dict(), **transfer_record(ideal)}
+        br = solve(lambda: off_state_breakdown(sim.solve_bias, d, tc.metrics.voff_V.value, vd))
+        rec["off_state_by_mechanism"] = br
+        cols = ideal.columns()
+        table["ideal_id_uA_per_um"] = cols["id_uA_per_um"]
+        table["ideal_ss_mV_per_dec"] = cols["ss_mV_per_dec"]
+        comments.update({f"ideal_{k}": v for k, v in rec["ideal"]["metrics"].items()})
+        comments.update({f"off_{k}": v for k, v in br.items() if k != "reason"})
     if a.format == "csv":
-        twin_metrics = {f"twin_{k}": v for k, v in rec["twin"]["metrics"].items()} if twin \
-            else {}
-        return csv_text(transfer_table(tc, twin), {"vd_V": vd, **rec["metrics"], **twin_metrics})
+        if twin:
+            comments.update({f"twin_{k}": v for k, v in rec["twin"]["metrics"].items()})
+        return csv_text(table, comments)
     return json.dumps(rec, indent=1)
 
 

@@ -24,6 +24,7 @@ from sub60.app.messages import (
     refused_sweep_message,
     refused_value_message,
 )
+from sub60.app.nonideal_view import NONIDEAL_STEPS, nonideal_card
 from sub60.app.state import DESIGN_PARAMETERS, ExplorerState
 
 SIDEBAR_WIDTH = 330
@@ -48,6 +49,7 @@ EDITABLE_STEPS: tuple[tuple[str, float], ...] = (
     ("buried_oxide_thickness_nm", 0.5), ("doping_gradient_nm_per_dec", 0.1),
     ("oxide_thickness_nm", 0.05), ("oxide_permittivity", 0.5),
     ("gate_workfunction_eV", 0.01), ("temperature_K", 1.0))
+EDITABLE_STEPS += NONIDEAL_STEPS  # the non-idealities card (app.nonideal_view)
 DOPINGS = ("source_doping_log10_cm3", "channel_doping_log10_cm3", "drain_doping_log10_cm3")
 #: Widget name -> derived state parameter that enables it.
 ENABLE_RULES = {"oxide_permittivity": "custom_permittivity_enabled",
@@ -369,4 +371,5 @@ class Controls:
                  w["temperature_K"], collapsed=True),
             card("Tunnelling model", w["tunnelling_model"], model_note,
                  collapsed=True),
+            nonideal_card(self, card, WIDGET_WIDTH),  # app.nonideal_view
         ]

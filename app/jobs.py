@@ -181,6 +181,9 @@ class JobListener(Protocol):
     def outputs_solved(self, curves: list, complete: bool, done: int, total: int) -> None: ...
     def sweep_finished(self, seconds: float) -> None: ...
     def sweep_failed(self, exc: Exception) -> None: ...
+    # non-idealities (app.nonideal): the ideal curve (None: the design is ideal) and the
+    # off-state current by mechanism (None: idem)
+    def nonideal_solved(self, ideal: Any, breakdown: dict | None) -> None: ...
 
 
 @dataclass(frozen=True)
@@ -423,7 +426,8 @@ class SessionJobs:
                 self._sweep_requested.clear()
             if not self._current(g):
                 return
-        n_t = 2 * job.vg_V.size if need_transfer else 0
+        nonideal = not job.design.is_ideal
+        n_t = (3 if nonideal else 2) * job.vg_V.size if need_transfer else 0
         n_o = job.output_vg_V.size * job.output_vd_V.size if need_output else 0
         total = max(n_t + n_o, 1)
         done = 0
@@ -441,6 +445,8 @@ class SessionJobs:
                         slots=self.gate)
                     done += job.vg_V.size
                     self.post(self._deliver_transfer, g, key, tc, job, done, total)
+                    if key == "tfet":
+                        done = self._nonideal_job(g, job, tc, done, total, superseded)
             if need_output:
                 curves: list = []
                 for vg in job.output_vg_V:
@@ -455,6 +461,41 @@ class SessionJobs:
             return
         except (ValueError, SolverError) as exc:
             self.post(self._deliver, g, self.listener.sweep_failed, exc)
+
+    def _nonideal_job(self, g: int, job: SweepRequest, tc: Any, done: int, total: int,
+                      superseded: Callable[[], bool]) -> int:
+        """With any non-ideality on: the ideal device's transfer curve (the same design
+        with `NON_IDEAL_OFF`) and the off-state current by mechanism at the design's
+        Voff; else nothing (the listener is told). Returns the points done."""
+        from sub60.app.nonideal import ideal_design, off_state_breakdown
+
+        if job.design.is_ideal:
+            self.curves.pop("ideal", None)
+            self.post(self._deliver, g, self.listener.nonideal_solved, None, None)
+            return done
+        sim = self.simulator
+        ideal = ideal_design(job.design)
+        progress = self._progress_callback(g, "ideal", ideal, job, done, total)
+        itc = sim.transfer_curve(ideal, job.vg_V, job.vd_V,
+                                 ioff_target_uA_per_um=job.ioff_uA_per_um, vdd_V=job.vdd_V,
+                                 progress=progress, cancelled=superseded, slots=self.gate)
+        done += job.vg_V.size
+        if superseded():
+            raise InterruptedError
+
+        def solve_bias(d: Design, vg: float, vd: float) -> Any:
+            with self.gate.hold(PriorityGate.SWEEP):
+                return sim.solve_bias(d, vg, vd)
+
+        br = off_state_breakdown(solve_bias, job.design, tc.metrics.voff_V.value, job.vd_V)
+        self.post(self._deliver_nonideal, g, itc, br)
+        return done
+
+    def _deliver_nonideal(self, g: int, itc: Any, br: dict) -> None:
+        if not self._current(g):
+            return
+        self.curves["ideal"] = itc
+        self.listener.nonideal_solved(itc, br)
 
     def _progress_callback(self, g: int, key: str, device: Design, job: SweepRequest,
                            done: int, total: int) -> Callable[[int, int], None]:

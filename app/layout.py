@@ -161,7 +161,8 @@ class Explorer(pn.viewable.Viewer):
                      pn.Column(self.presentation_toggle, r.progress, r.status,
                                width=280, margin=0),
                      sizing_mode="stretch_width", margin=0)
-        self.main = pn.Column(top, r.metrics, self.material_warning, r.notes, self.alert, r.plots,
+        self.main = pn.Column(top, r.metrics, r.breakdown,  # breakdown: app.nonideal_view
+                              self.material_warning, r.notes, self.alert, r.plots,
                               self.material_card.view,
                               self.pin_view.compare.view, sizing_mode="stretch_width",
                               css_classes=["sub60-main"], margin=0)

@@ -27,6 +27,7 @@ import numpy as np
 from bokeh.models import Range1d
 
 from sub60.app.metrics_strip import METRIC_COLUMNS, metrics_html
+from sub60.app.nonideal_view import IdealOverlay
 from sub60.app.plot_style import (
     COLOURS,
     TOOLS,
@@ -116,6 +117,7 @@ class ExplorerFigures:
         self.map = self.map_plot.figure
         self.output = self.output_plot.figure
         self.pins = PinOverlays(self.band, self.transfer)
+        self.nonideal = IdealOverlay(self)  # ideal curves, band-tail fringes
         for builder, names in self._SHARED.items():
             for name in names:
                 setattr(self, name, getattr(getattr(self, builder), name))
@@ -149,6 +151,7 @@ class ExplorerFigures:
         (`physics.simulate.BiasPoint`); the WKB and exact T(E) of ``transmissions`` (a
         `physics.TransmissionComparison`, None: no pair carries current)."""
         self.band_plot.show(bp)
+        self.nonideal.show_tails(bp)
         self._name_devices(bp.design.source_type)
         self.spectrum_plots.show(bp, transmissions)
         self.map_plot.show(bp)

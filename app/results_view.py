@@ -17,6 +17,7 @@ import panel as pn
 
 from sub60.app.jobs import SessionJobs, SweepRequest
 from sub60.app.messages import MessageBoard, solver_message, validity_notes_html, value_message
+from sub60.app.nonideal_view import breakdown_html, breakdown_pane
 from sub60.app.plots import ExplorerFigures, metrics_html
 from sub60.app.state import ExplorerState, vg_step_text
 from sub60.physics import SolverError, check_tunnelling_material
@@ -52,6 +53,8 @@ class ResultsView:
         # made the browser report "Out of bounds" on a design change)
         self.notes = pn.pane.HTML("", css_classes=["validity-notes"],
                                   stylesheets=css, sizing_mode="stretch_width", margin=(2, 8))
+        self.breakdown = breakdown_pane(css)  # off-state current by mechanism
+        self._breakdown: dict | None = None
         self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 2))
                            for k, fig in self.figures.figures.items()}
         p = self.plot_panes
@@ -71,6 +74,9 @@ class ResultsView:
         if self.state.source_type == "p":  # an n+ source design is its own twin: one row
             rows.append(("twin", "MOSFET twin (n+ source)",
                          getattr(curves.get("twin"), "metrics", None)))
+        if self.state.any_nonideal:  # non-idealities: the ideal device beside
+            rows.insert(1, ("ideal", "same, ideal (non-idealities off)",
+                            getattr(curves.get("ideal"), "metrics", None)))
         body = metrics_html(rows, self.state.temperature_K, self.state.vdd_V)
         self.metrics.object = f'<div class="{"stale" if stale else "fresh"}">{body}</div>'
 
@@ -110,6 +116,8 @@ class ResultsView:
         self.status.object = f"Computing {' and '.join(parts)}…"
         if transfer:
             self.show_metrics(stale=True)
+            if self._breakdown is not None or self.state.any_nonideal:
+                self.breakdown.object = breakdown_html(self._breakdown or {}, pending=True)
             self.figures.transfer.title.text = "Transfer curve · updating…"
         if output:
             self.figures.output.title.text = f"{self.figures.output_title} · updating…"
@@ -117,6 +125,8 @@ class ResultsView:
     def transfer_partial(self, key: str, vg: np.ndarray, ids: np.ndarray, done: int,
                          total: int) -> None:
         self.figures.show_transfer(key, vg, ids)
+        if key == "ideal":
+            self.figures.nonideal.set_visible(True)
         self._set_progress(done, total)
 
     def transfer_solved(self, key: str, tc: Any, request: SweepRequest, done: int,
@@ -134,6 +144,18 @@ class ResultsView:
             anchor_vg, anchor_id = self.jobs.limit_anchor(request.ioff_uA_per_um)
             self.figures.show_limits(request.design.temperature_K, request.ioff_uA_per_um,
                                      anchor_vg, anchor_id, float(request.vg_V[-1]))
+
+    def nonideal_solved(self, ideal: Any, breakdown: dict | None) -> None:
+        """The ideal device's curve (dashed) and the off-state breakdown, or neither."""
+        overlay = self.figures.nonideal
+        if ideal is None:
+            overlay.clear()
+        else:
+            self.figures.show_transfer("ideal", ideal.vg_V, ideal.id_uA_per_um, None, None,
+                                       ideal.ss_mV_per_dec)
+            overlay.set_visible(True)
+        self._breakdown = breakdown
+        self.breakdown.object = breakdown_html(breakdown)
 
     def outputs_solved(self, curves: list, complete: bool, done: int, total: int) -> None:
         self.figures.show_outputs(curves)

@@ -22,6 +22,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 from urllib.parse import parse_qsl, urlencode
 
+from sub60.app.nonideal import NONIDEAL_QUERY_KEYS
 from sub60.app.number_rules import InputError, parse_integer, parse_number
 from sub60.app.snapshot_fields import SnapshotError
 from sub60.app.snapshot_schema import (
@@ -167,6 +168,7 @@ QUERY_KEYS: dict[str, str] = {
     "vg_V": "vg", "vd_V": "vd", "vg_sweep_V": "vg_sweep", "vg_points": "vg_points",
     "vdd_V": "vdd", "ioff_log10_uA_per_um": "ioff_uA_um",
     "tunnelling_model": "model",
+    **NONIDEAL_QUERY_KEYS,  # non-idealities: app.nonideal
 }
 #: Settings kept in the address: the design, the bias, the transfer sweep and the
 #: tunnelling model.

@@ -22,6 +22,7 @@ from typing import Any
 import numpy as np
 import param
 
+from sub60.app.nonideal import NONIDEAL_FIELDS, NonIdealSettings
 from sub60.physics import (
     FIELD_RANGES,
     TUNNELLING_MODELS,
@@ -113,7 +114,7 @@ DESIGN_PARAMETERS: tuple[str, ...] = (
     "source_type", "source_doping_log10_cm3", "channel_dopant", "channel_doping_log10_cm3",
     "drain_doping_log10_cm3", "doping_gradient_nm_per_dec",
     "oxide", "oxide_thickness_nm", "oxide_permittivity", "gate_workfunction_eV",
-)
+) + NONIDEAL_FIELDS  # non-idealities: app.nonideal
 #: The tunnelling model of the physics (`physics.TUNNELLING_MODELS`) in plain words, as
 #: the page and its messages name it.
 TUNNELLING_MODEL_NAMES: dict[str, str] = {
@@ -160,7 +161,7 @@ def composition_label(material: str) -> str:
     return f"{element.group(1) if element else 'Composition'} fraction x of {formula}"
 
 
-class ExplorerState(param.Parameterized):
+class ExplorerState(NonIdealSettings):
     """All settings of one explorer session (units in the names and labels)."""
 
     # ---------------------------------------------------------------- material, temperature
@@ -332,6 +333,7 @@ class ExplorerState(param.Parameterized):
             gate_source_offset_nm=self.gate_source_offset_nm,
             temperature_K=self.temperature_K,
             composition_x=self.composition_x if self.material in alloys() else 0.0,
+            **self.nonideal_fields(),  # non-idealities: app.nonideal
         )
 
     def design_settings(self, design: Design) -> dict[str, Any]:
@@ -349,6 +351,7 @@ class ExplorerState(param.Parameterized):
                      "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
                      "gate_source_offset_nm", "temperature_K", "composition_x"):
             out[name] = getattr(design, name)
+        out.update({name: getattr(design, name) for name in NONIDEAL_FIELDS})
         if design.oxide_permittivity is not None:
             out["oxide_permittivity"] = design.oxide_permittivity
         return out

@@ -43,6 +43,7 @@ LAYERS: dict[str, int] = {
     "snapshot_schema": MODEL, "snapshot_reader": MODEL, "snapshot_check": MODEL,
     "presets": MODEL, "atomic": MODEL, "sweep_spec": MODEL, "sweep_engine": MODEL,
     "number_rules": MODEL, "sweep_session": MODEL,
+    "nonideal": MODEL, "nonideal_view": VIEWS,  # non-idealities
     # views: the page, live plots, export figures and the snapshot bundle that holds them
     "layout": VIEWS, "controls": VIEWS, "results_view": VIEWS, "pin_view": VIEWS,
     "snapshot_view": VIEWS, "compare_panes": VIEWS, "plots": VIEWS, "plots_bias": VIEWS,
