@@ -101,7 +101,9 @@ def solve_series_resistance(
     ----------
     intrinsic : callable
         ``intrinsic(vg_int_V, vd_int_V) -> current [uA/um]``: one intrinsic solve (the
-        caller keeps the solved point of the last call).
+        caller keeps the solved point of the last call). It must be a function of the
+        voltages alone (e.g. every call warm-started from the same anchors, not from the
+        previous call): the secant and the bracket assume a reproducible I_int(V').
     vg_V, vd_V : float
         external bias [V].
     source_resistance_ohm_um, drain_resistance_ohm_um : float
