@@ -133,7 +133,7 @@ class ExplorerFigures:
         # valence band, the tunnel FET's current minimum, the Ioff crossing and the top
         # output curve); below, the band frame stays level with the J(E) and T(E) frames
         style_legend(self.band, side="below", columns=3)
-        style_legend(self.transfer, side="below", columns=3)
+        style_legend(self.transfer, side="below", columns=2)  # 3 across clip at 1600 px
         style_legend(self.swing, side="below", columns=2)
         style_legend(self.output, side="below", columns=4)
         style_legend(self.transmission, side="below", columns=1)

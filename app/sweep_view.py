@@ -398,20 +398,11 @@ class SweepView:
             self._say(str(exc))
             return False
         # the page shows the run before it starts: its end may be delivered at once
-        self._say("")
-        self._busy(True)
-        self.progress.value = 0
-        self.status.object = f"Sweep of {spec.size():,} designs: starting…"
-        try:
-            self.session.run(spec, scheduler=scheduler, workers=workers,
-                             on_progress=lambda p: self.post(self._show_progress, p),
-                             on_done=lambda out: self.post(self._sweep_done, out, spec),
-                             on_start=lambda t: self.post(self._show_status, t))
-        except (SweepBusy, ValueError) as exc:
-            self._busy(False)
-            self._say(str(exc))
-            return False
-        return True
+        return self._launch(
+            f"Sweep of {spec.size():,} designs: starting…",
+            lambda **hooks: self.session.run(spec, scheduler=scheduler, workers=workers,
+                                             **hooks),
+            self._sweep_done, spec)
 
     def _large_size(self) -> int | None:
         """The size of a valid sweep refused only for being large, else None."""
@@ -435,16 +426,25 @@ class SweepView:
             self._say("Sensitivity needs a numeric knob (a text field such as the material has "
                       "no derivative).")
             return False
+        return self._launch(
+            f"Sensitivity: {2 * len(fields) + 1} designs (the present one and ±5 % in "
+            f"{len(fields)} knob{'s' if len(fields) > 1 else ''})…",
+            lambda **hooks: self.session.run_sensitivity(design, fields, spec,
+                                                         scheduler=scheduler,
+                                                         workers=workers, **hooks),
+            self._sensitivity_done, design)
+
+    def _launch(self, status: str, run: Any, done: Any, *done_args: Any) -> bool:
+        """Show the run as started, then start it with the page's progress, end
+        (``done(result, *done_args)``) and status hooks, each posted to this page's event
+        loop; a refused start is told and undone."""
         self._say("")
         self._busy(True)
         self.progress.value = 0
-        self.status.object = (f"Sensitivity: {2 * len(fields) + 1} designs (the present one "
-                              f"and ±5 % in {len(fields)} knob{'s' if len(fields) > 1 else ''})…")
+        self.status.object = status
         try:
-            self.session.run_sensitivity(
-                design, fields, spec, scheduler=scheduler, workers=workers,
-                on_progress=lambda p: self.post(self._show_progress, p),
-                on_done=lambda out: self.post(self._sensitivity_done, out, design),
+            run(on_progress=lambda p: self.post(self._show_progress, p),
+                on_done=lambda out: self.post(done, out, *done_args),
                 on_start=lambda t: self.post(self._show_status, t))
         except (SweepBusy, ValueError) as exc:
             self._busy(False)
