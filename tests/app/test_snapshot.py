@@ -324,7 +324,7 @@ def test_cli_export_render_check(tmp_path, capsys):
 
 # ---------------------------------------------------------------------- presets
 PRESETS = ("high-on-current", "ingaas-tunnel-fet", "low-power-switch", "mosfet-baseline",
-           "silicon-tunnel-fet", "single-gate-soi")
+           "silicon-tunnel-fet", "single-gate-soi", "typical-process")
 
 
 def test_presets_load_validate_and_solve():
