@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Sequence
+from typing import Any
 
 import panel as pn
 import param
@@ -217,6 +218,28 @@ def log_current_formatter() -> CustomJSTickFormatter:
     return CustomJSTickFormatter(code=LOG_CURRENT_JS)
 
 
+
+def folded_card(title: str, items: Sequence[Any], collapsed: bool = False) -> pn.Card:
+    """A card of the sidebar. A card that starts collapsed gets its controls when it is
+    first opened: a page opens without building the browser side of controls nobody has
+    looked at yet (each slider with its entry box is about a hundred Bokeh properties to
+    create, send and draw). The controls themselves exist from the start, bound to the
+    state, so their values are always those of the settings."""
+    kw = dict(title=title, collapsed=collapsed, width=SIDEBAR_WIDTH - 14, margin=(4, 4),
+              header_background="#eef2f5", css_classes=["control-group"])
+    if not collapsed:
+        return pn.Card(*items, **kw)
+    box = pn.Card(**kw)
+    pending = list(items)
+
+    def fill(event: Any) -> None:
+        if not event.new and pending:  # opened for the first time
+            box.objects = pending[:]
+            pending.clear()
+
+    box.param.watch(fill, "collapsed")
+    return box
+
 class Controls:
     """The sidebar of one session: cards of widgets, the reset button.
 
@@ -340,9 +363,7 @@ class Controls:
         w = self.widgets
 
         def card(title: str, *items, collapsed: bool = False) -> pn.Card:
-            return pn.Card(*items, title=title, collapsed=collapsed, width=SIDEBAR_WIDTH - 14,
-                           margin=(4, 4), header_background="#eef2f5",
-                           css_classes=["control-group"])
+            return folded_card(title, items, collapsed)
 
         ioff_note = pn.pane.HTML(
             '<div class="note">I<sub>off</sub> fixes V<sub>off</sub>; I<sub>on</sub> is taken '

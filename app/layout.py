@@ -170,7 +170,7 @@ class Explorer(pn.viewable.Viewer):
         sim = self.jobs
         self.sweep_view = SweepView(self.state, lambda: (sim.simulator.resolution, sim.simulator.model),
                                     css, self._post, on_load=lambda: setattr(self.tabs, "active", 0))
-        self.tabs = pn.Tabs(("Explorer", self.main), ("Design sweeps", self.sweep_view.view),
+        self.tabs = pn.Tabs(("Explorer", self.main), ("Design sweeps", self.sweep_view.view), dynamic=True,
                             sizing_mode="stretch_width", margin=0, css_classes=["sub60-tabs"],
                             stylesheets=css)
         self._page = pn.Row(self.sidebar, self.tabs, sizing_mode="stretch_width", margin=0,

@@ -32,6 +32,7 @@ from sub60.app.plot_style import (
     COLOURS,
     TOOLS,
     positive_or_nan,
+    slim_renderers,
     style_figure,
     style_legend,
     uniform_map,
@@ -126,6 +127,7 @@ class ExplorerFigures:
                         "map": self.map, "output": self.output, "swing": self.swing}
         for fig in self.figures.values():
             style_figure(fig)
+            slim_renderers(fig)
             for r in fig.renderers:
                 if hasattr(r, "glyph") and hasattr(r.glyph, "line_width"):
                     self._base_widths[r.glyph] = r.glyph.line_width

@@ -294,6 +294,24 @@ def _page_with_heap_release(create_app):
     return page
 
 
+def quiet_closed_sockets(io_loop: Any) -> None:
+    """Drop asyncio's "Task exception was never retrieved" tracebacks for updates that
+    were on their way to a page closed meanwhile (tornado's WebSocketClosedError and
+    StreamClosedError): a closed browser tab is normal, and each such traceback filled
+    the terminal with 40 lines. Every other unhandled error is reported as before."""
+    from tornado.iostream import StreamClosedError
+    from tornado.websocket import WebSocketClosedError
+
+    loop = io_loop.asyncio_loop
+
+    def handler(the_loop: Any, context: dict) -> None:
+        if isinstance(context.get("exception"), (WebSocketClosedError, StreamClosedError)):
+            return
+        the_loop.default_exception_handler(context)
+
+    loop.set_exception_handler(handler)
+
+
 def configure() -> None:
     """Panel settings of the explorer: local resources, our stylesheet, no extras."""
     import panel as pn
@@ -333,6 +351,7 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
         print(warning, file=sys.stderr)
     if not threaded:
         guard(server._tornado, allowed_hosts(host, port))
+        quiet_closed_sockets(server.io_loop)
         if start:
             server.start()
             server.io_loop.start()

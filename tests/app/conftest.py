@@ -11,6 +11,7 @@ import os
 import socket
 import subprocess
 import sys
+import tempfile
 import time
 from collections.abc import Iterator
 from pathlib import Path
@@ -90,8 +91,7 @@ def wait_for_port(port: int, proc: subprocess.Popen, timeout_s: float = 90.0) ->
     deadline = time.monotonic() + timeout_s
     while time.monotonic() < deadline:
         if proc.poll() is not None:
-            out = proc.stdout.read().decode(errors="replace") if proc.stdout else ""
-            raise RuntimeError(f"sub60 serve exited with {proc.returncode}:\n{out}")
+            raise RuntimeError(f"sub60 serve exited with {proc.returncode}:\n{server_log(proc)}")
         try:
             with socket.create_connection(("127.0.0.1", port), timeout=0.5):
                 return
@@ -100,13 +100,27 @@ def wait_for_port(port: int, proc: subprocess.Popen, timeout_s: float = 90.0) ->
     raise TimeoutError(f"sub60 serve did not listen on port {port} within {timeout_s} s")
 
 
+def server_log(proc: subprocess.Popen, tail_chars: int = 4000) -> str:
+    """The end of what a server started by `start_server` printed ('' if unknown)."""
+    path = getattr(proc, "log_path", None)
+    if path is None or not os.path.exists(path):
+        return ""
+    with open(path, "rb") as f:
+        return f.read().decode(errors="replace")[-tail_chars:]
+
+
 def start_server(port: int) -> subprocess.Popen:
-    """`python -m sub60.app serve` on 127.0.0.1:port, one BLAS thread, output captured."""
+    """`python -m sub60.app serve` on 127.0.0.1:port, one BLAS thread, its output in a
+    log file (``proc.log_path``, see `server_log`). Never a pipe: a pipe nobody reads
+    fills after 64 KiB of log lines and then blocks the server in the middle of a run."""
     env = dict(os.environ, OPENBLAS_NUM_THREADS="1", OMP_NUM_THREADS="1",
                PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
-    proc = subprocess.Popen([sys.executable, "-m", "sub60.app", "serve", "--port", str(port),
-                             "--host", "127.0.0.1"], cwd=ROOT, env=env,
-                            stdout=subprocess.PIPE, stderr=subprocess.STDOUT)
+    fd, log_path = tempfile.mkstemp(prefix="sub60-serve-", suffix=".log")
+    with os.fdopen(fd, "wb") as log:
+        proc = subprocess.Popen([sys.executable, "-m", "sub60.app", "serve", "--port",
+                                 str(port), "--host", "127.0.0.1"], cwd=ROOT, env=env,
+                                stdout=log, stderr=subprocess.STDOUT)
+    proc.log_path = log_path
     try:
         wait_for_port(port, proc)
     except Exception:
@@ -116,7 +130,8 @@ def start_server(port: int) -> subprocess.Popen:
 
 
 def stop_server(proc: subprocess.Popen) -> None:
-    """Stop the server process started by `start_server` (by its own handle)."""
+    """Stop the server process started by `start_server` (by its own handle); its log
+    file goes with it."""
     if proc.poll() is None:
         proc.terminate()
         try:
@@ -124,11 +139,28 @@ def stop_server(proc: subprocess.Popen) -> None:
         except subprocess.TimeoutExpired:
             proc.kill()
             proc.wait(timeout=10)
+    path = getattr(proc, "log_path", None)
+    if path is not None and os.path.exists(path):
+        os.unlink(path)
 
 
-def open_app(browser, url: str, timeout_ms: float = 90_000):
+#: How long a page may take to open in a test [ms]: a generous guard against a hang, not
+#: a speed check (a page opens in about 10 s on a quiet 2-core machine; CI machines are
+#: shared and slower). SUB60_PAGE_TIMEOUT_S overrides it.
+PAGE_TIMEOUT_MS = 1000 * float(os.environ.get("SUB60_PAGE_TIMEOUT_S", "240"))
+
+PAGE_STATE_JS = """() => { try { return {
+  transfer: sub60.model('transfer_plot').title.text,
+  output: sub60.model('output_plot').title.text,
+  points: [sub60.model('transfer_tfet_source').data.vg.length,
+           sub60.model('transfer_twin_source').data.vg.length],
+  fresh: sub60.metrics() !== null }; } catch (e) { return String(e); } }"""
+
+
+def open_app(browser, url: str, timeout_ms: float = PAGE_TIMEOUT_MS):
     """A new page on the served app, its Bokeh document loaded and the first transfer
-    and output curves complete; returns (page, requests, errors)."""
+    and output curves complete; returns (page, requests, errors). A page that does not
+    get there fails with what it showed."""
     page = browser.new_page(viewport=VIEWPORT)
     requests: list[str] = []
     errors: list[str] = []
@@ -140,7 +172,12 @@ def open_app(browser, url: str, timeout_ms: float = 90_000):
                            "Bokeh.documents[0].get_model_by_name('band_source') != null",
                            timeout=timeout_ms)
     page.evaluate(JS_HELPERS)
-    page.wait_for_function("() => sub60.allDone(41)", timeout=timeout_ms)
+    try:
+        page.wait_for_function("() => sub60.allDone(41)", timeout=timeout_ms)
+    except Exception as exc:
+        shown = page.evaluate(PAGE_STATE_JS)
+        raise AssertionError(f"the page did not complete its first curves: {shown}; "
+                             f"page errors: {errors}") from exc
     return page, requests, errors
 
 

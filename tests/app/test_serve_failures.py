@@ -89,3 +89,33 @@ def test_closed_pipe_gives_no_traceback():
     proc.stdout.close()                          # EPIPE on the child's first write
     _, err = proc.communicate(timeout=180)
     assert proc.returncode == 1 and err.decode().strip() == "", err.decode()
+
+
+def test_closed_page_updates_are_not_reported_but_other_errors_are(caplog):
+    """An update on its way to a closed tab (tornado's WebSocketClosedError) is dropped
+    silently; any other unhandled task error still reaches asyncio's report (its default
+    handler logs "... exception=..." on the 'asyncio' logger: Python docs, asyncio event
+    loop, default_exception_handler)."""
+    import asyncio
+    import logging
+
+    from tornado.websocket import WebSocketClosedError
+
+    from sub60.app.server import quiet_closed_sockets
+
+    loop = asyncio.new_event_loop()
+    try:
+        class Holder:  # stands for tornado's IOLoop, which carries its asyncio loop
+            asyncio_loop = loop
+
+        quiet_closed_sockets(Holder())
+        with caplog.at_level(logging.ERROR, logger="asyncio"):
+            loop.call_exception_handler({"message": "Task exception was never retrieved",
+                                         "exception": WebSocketClosedError()})
+            assert not caplog.records
+            loop.call_exception_handler({"message": "Task exception was never retrieved",
+                                         "exception": RuntimeError("a real failure")})
+        assert any("a real failure" in (r.getMessage() + str(r.exc_info))
+                   for r in caplog.records), caplog.records
+    finally:
+        loop.close()
