@@ -31,6 +31,7 @@ from typing import Any
 
 import panel as pn
 import param
+from bokeh.models import CustomJS
 from panel.io.document import hold
 from panel.io.state import set_curdoc
 
@@ -76,6 +77,66 @@ def stylesheet() -> str:
     except OSError:
         return ""
 
+
+
+#: Natural width of the results column [CSS px]: the widest row of plots (frames, borders
+#: and pane margins of `app.plots.ExplorerFigures.SIZES`) and the column's own margins.
+PRESENT_CONTENT_WIDTH = 1190
+
+#: Browser side of the presentation mode (a Bokeh callback of the toggle): the results
+#: column is zoomed (CSS ``zoom``) so that its plots fill the window's width (at most
+#: 1.8x), and again whenever the window is resized. Zooming is one style change; resizing
+#: the seven figures one by one made the browser lay the page out seven times (seconds).
+PRESENT_JS = """
+const find = (root, cls) => {
+  const stack = [root];
+  while (stack.length) {
+    const n = stack.pop();
+    if (n.classList && n.classList.contains(cls)) { return n; }
+    if (n.shadowRoot) { stack.push(n.shadowRoot); }
+    for (const c of (n.children || [])) { stack.push(c); }
+  }
+  return null;
+};
+window.sub60Present = window.sub60Present || {
+  on: false,
+  fit() {
+    const main = find(document.body, 'sub60-main');
+    if (!main) { return; }
+    const room = document.documentElement.clientWidth - 16;
+    main.style.zoom = this.on ? String(Math.max(1, Math.min(1.8, room / this.width))) : '';
+  },
+};
+const p = window.sub60Present;
+p.on = Boolean(cb_obj.active);
+p.width = content_width;
+if (!p.listening) {
+  p.listening = true;
+  window.addEventListener('resize', () => requestAnimationFrame(() => p.fit()));
+}
+p.fit();
+"""
+
+
+#: The P key (outside a text box or list) toggles the presentation mode, as the button does.
+PRESENT_KEY_JS = """
+if (!window.sub60PresentKey) {
+  window.sub60PresentKey = true;
+  document.addEventListener('keydown', (e) => {
+    if ((e.key !== 'p' && e.key !== 'P') || e.ctrlKey || e.metaKey || e.altKey) { return; }
+    const t = e.composedPath()[0];
+    if (t && (['INPUT', 'TEXTAREA', 'SELECT'].includes(t.tagName) || t.isContentEditable)) {
+      return;
+    }
+    for (const m of Bokeh.documents[0]._all_models.values()) {
+      if (Array.isArray(m.css_classes) && m.css_classes.includes('presentation-toggle')) {
+        m.active = !m.active;
+        return;
+      }
+    }
+  });
+}
+"""
 
 class Explorer(pn.viewable.Viewer):
     """One session of the explorer: settings, work and views of one browser page.
@@ -153,7 +214,10 @@ class Explorer(pn.viewable.Viewer):
                                               css_classes=["sub60-material-warning"],
                                               sizing_mode="stretch_width", margin=(2, 8))
         self.presentation_toggle = pn.widgets.Toggle.from_param(
-            self.state.param.presentation, color="default", width=170, margin=(6, 8))
+            self.state.param.presentation, color="default", width=170, margin=(6, 8),
+            css_classes=["presentation-toggle"])
+        self.presentation_toggle.jscallback(value=PRESENT_JS,
+                                            args={"content_width": PRESENT_CONTENT_WIDTH})
         # material card: every parameter of the body material with its source
         self.material_card = MaterialCard(self.state, css)
         r = self.results
@@ -170,9 +234,13 @@ class Explorer(pn.viewable.Viewer):
         sim = self.jobs
         self.sweep_view = SweepView(self.state, lambda: (sim.simulator.resolution, sim.simulator.model),
                                     css, self._post, on_load=lambda: setattr(self.tabs, "active", 0))
-        self.tabs = pn.Tabs(("Explorer", self.main), ("Design sweeps", self.sweep_view.view), dynamic=True,
+        # the sweep tab's contents reach the browser when the tab is first shown (its
+        # hundred-odd models need not slow every page's opening)
+        self._sweep_slot = pn.Column(sizing_mode="stretch_width", margin=0)
+        self.tabs = pn.Tabs(("Explorer", self.main), ("Design sweeps", self._sweep_slot),
                             sizing_mode="stretch_width", margin=0, css_classes=["sub60-tabs"],
                             stylesheets=css)
+        self.tabs.param.watch(self._on_tab, "active")
         self._page = pn.Row(self.sidebar, self.tabs, sizing_mode="stretch_width", margin=0,
                             css_classes=["sub60-page"])
 
@@ -198,6 +266,7 @@ class Explorer(pn.viewable.Viewer):
         served = self._doc is not None and self._doc.session_context is not None
         if served:
             self._location = pn.state.location
+            self._doc.js_on_event("document_ready", CustomJS(code=PRESENT_KEY_JS))
         design = self._design_or_error()
         if design is not None:
             self.jobs.solve_bias_now(design)
@@ -254,11 +323,12 @@ class Explorer(pn.viewable.Viewer):
 
     # ------------------------------------------------------------------ watchers
     def _on_presentation(self, event) -> None:
-        on = bool(event.new)
-        self.sidebar.visible = not on
-        self.results.set_presentation(on)
-        self.header.css_classes = [c for c in self.header.css_classes if c != "presenting"] + (
-            ["presenting"] if on else [])
+        """The controls hide (or show); the browser zooms the results (`PRESENT_JS`)."""
+        self.sidebar.visible = not bool(event.new)
+
+    def _on_tab(self, event) -> None:
+        if event.new == 1 and not self._sweep_slot.objects:
+            self._sweep_slot.objects = [self.sweep_view.view]
 
     def _refresh_header(self, *_events) -> None:
         self.header.object = header_html(self.state)

@@ -78,10 +78,6 @@ class ExplorerFigures:
         "band": (462, 345), "spectrum": (110, 345), "transmission": (110, 345),
         "transfer": (266, 345), "map": (462, 195), "output": (212, 195), "swing": (246, 195),
     }
-    SIZES_PRESENTING = {  # the controls are hidden: the plots take their width
-        "band": (580, 365), "spectrum": (136, 365), "transmission": (136, 365),
-        "transfer": (360, 365), "map": (580, 190), "output": (290, 190), "swing": (330, 190),
-    }
     LEFT_BORDER = {"band": 66, "map": 66, "spectrum": 6, "transmission": 6}
     #: Attributes of the builders shown here under the same name (the page and the tests
     #: use them).
@@ -102,10 +98,8 @@ class ExplorerFigures:
     def __init__(self) -> None:
         self.energy_range = Range1d(-1.2, 0.8, name="energy_range")
         self.x_range = Range1d(0.0, 70.0, name="position_range")
-        self._base_widths: dict[object, float] = {}
-        self._presenting = False
         self.output_title = "Output curves (tunnel FET)"
-        self.band_plot = BandPlot(self.x_range, self.energy_range, self._new_line)
+        self.band_plot = BandPlot(self.x_range, self.energy_range)
         self.spectrum_plots = SpectrumPlots(self.energy_range)
         self.transfer_plot = TransferPlot()
         self.swing_plot = SwingPlot()
@@ -128,9 +122,6 @@ class ExplorerFigures:
         for fig in self.figures.values():
             style_figure(fig)
             slim_renderers(fig)
-            for r in fig.renderers:
-                if hasattr(r, "glyph") and hasattr(r.glyph, "line_width"):
-                    self._base_widths[r.glyph] = r.glyph.line_width
         # legends below the plot areas, out of the data's way (inside they covered the
         # valence band, the tunnel FET's current minimum, the Ioff crossing and the top
         # output curve); below, the band frame stays level with the J(E) and T(E) frames
@@ -139,13 +130,7 @@ class ExplorerFigures:
         style_legend(self.swing, side="below", columns=2)
         style_legend(self.output, side="below", columns=4)
         style_legend(self.transmission, side="below", columns=1)
-        self.set_presentation(False)
-
-    def _new_line(self, glyph: object, width: float) -> None:
-        """A line made after the start (a new subband): keep its width for presenting."""
-        self._base_widths[glyph] = width
-        if self._presenting:
-            glyph.line_width = width * 1.8
+        self._size_and_fonts()
 
     # ------------------------------------------------------------------ updates
     def show_bias(self, bp, transmissions=None) -> None:
@@ -205,34 +190,24 @@ class ExplorerFigures:
         """Empty a pinned-design slot."""
         self.pins.clear(slot)
 
-    # ------------------------------------------------------------------ presentation
-    def set_presentation(self, on: bool) -> None:
-        """Projector look: larger figures, fonts and lines (on), or the desk look (off)."""
-        self._presenting = bool(on)
-        sizes = self.SIZES_PRESENTING if on else self.SIZES
-        scale = 1.8 if on else 1.0
-        grow = 1.45 if on else 1.0
-
-        def font(px: float) -> str:
-            return f"{round(px * grow)}px"
-
+    # ------------------------------------------------------------------ sizes
+    def _size_and_fonts(self) -> None:
+        """Frame sizes, borders and fonts of every figure. The presentation mode does not
+        change them: it zooms the whole results column in the browser (`app.layout`), as
+        a change of one figure's size makes the browser lay out the whole page again
+        (seconds for the seven figures)."""
         for key, fig in self.figures.items():
-            fig.frame_width, fig.frame_height = sizes[key]
-            fig.min_border_left = round(self.LEFT_BORDER.get(key, 58) * (1.3 if on and key not in (
-                "spectrum", "transmission") else 1.0))
+            fig.frame_width, fig.frame_height = self.SIZES[key]
+            fig.min_border_left = self.LEFT_BORDER.get(key, 58)
             fig.min_border_right = 12
-            fig.title.text_font_size = font(13)
+            fig.title.text_font_size = "13px"
             for axis in (*fig.xaxis, *fig.yaxis):
-                axis.axis_label_text_font_size = font(12)
-                axis.major_label_text_font_size = font(11)
+                axis.axis_label_text_font_size = "12px"
+                axis.major_label_text_font_size = "11px"
             if key in ("spectrum", "transmission"):  # energy labels are on the band diagram
                 fig.yaxis.major_label_text_font_size = "0px"
             for leg in fig.legend:
-                leg.label_text_font_size = font(11)
-            for r in fig.renderers:
-                glyph = getattr(r, "glyph", None)
-                if glyph in self._base_widths:
-                    glyph.line_width = self._base_widths[glyph] * scale
+                leg.label_text_font_size = "11px"
         for lab in (*self.band_plot.labels, *self.spectrum_plots.labels,
                     self.swing_limit_label):
-            lab.text_font_size = font(11)
+            lab.text_font_size = "11px"

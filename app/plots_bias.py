@@ -7,7 +7,6 @@ those sources in place from a `physics.simulate.BiasPoint`.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
 
 import numpy as np
 from bokeh.core.properties import value
@@ -41,13 +40,10 @@ from sub60.app.theme import MAP_PALETTE, format_current
 
 class BandPlot:
     """Band diagram along the channel: subband edges, Fermi levels, the tunnel window, the
-    gate and region labels. Subband lines are made when a label first appears;
-    ``on_new_line(glyph, width)`` is told of each (for the presentation line widths)."""
+    gate and region labels. Subband lines are made when a label first appears."""
 
-    def __init__(self, x_range: Range1d, energy_range: Range1d,
-                 on_new_line: Callable[[object, float], None]) -> None:
+    def __init__(self, x_range: Range1d, energy_range: Range1d) -> None:
         self.energy_range = energy_range
-        self._on_new_line = on_new_line
         #: Subband label -> its line renderer.
         self.renderers: dict[str, object] = {}
         f = figure(name="band_plot", title="Band diagram along the channel",
@@ -124,8 +120,8 @@ class BandPlot:
         item.renderers = [*item.renderers, r]
         if not item.visible:
             item.visible = True
+        r.nonselection_glyph = r.muted_glyph = "auto"  # as `plot_style.slim_renderers`
         self.renderers[label] = r
-        self._on_new_line(r.glyph, width)
         return r
 
     def show(self, bp) -> float:

@@ -179,11 +179,3 @@ class ResultsView:
         self.figures.output.title.text = "Output curves (last good result)"
         self.show_metrics(stale=False)
         self.status.object = "Curves not updated — see the message"
-
-    # ------------------------------------------------------------------ presentation
-    def set_presentation(self, on: bool) -> None:
-        """Larger plots and text for a projector (style.css has the 'presenting' class)."""
-        self.figures.set_presentation(on)
-        for pane in (self.metrics, self.status):
-            pane.css_classes = [c for c in pane.css_classes if c != "presenting"] + (
-                ["presenting"] if on else [])

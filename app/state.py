@@ -275,8 +275,8 @@ class ExplorerState(NonIdealSettings):
             "(physics.TUNNELLING_MODELS).")
 
     # ---------------------------------------------------------------- display
-    presentation = param.Boolean(default=False, label="Presentation mode",
-                                 doc="Hide the controls and enlarge text and lines.")
+    presentation = param.Boolean(default=False, label="Presentation mode (P)",
+                                 doc="Hide the controls and zoom the results to the window (key: P).")
 
     # ---------------------------------------------------------------- enable rules (derived)
     custom_permittivity_enabled = param.Boolean(

@@ -13,6 +13,12 @@ thread) and stops it at the end. In headless Chromium it then
    tunnel FET's transfer curve and both complete transfer curves with their metrics
    have arrived.
 
+3. clicks "Presentation mode" on and off and times, from just before the click, until every plot
+   has its new size and fonts and the next animation frame is drawn;
+4. opens the page afresh (new browser page, new session) and times until the first
+   band diagram, both transfer curves with their metrics, and the output curves are
+   complete (`open_app`), with the server's CPU seconds per open.
+
 It prints the median and 95th percentile of each.
 """
 
@@ -46,6 +52,11 @@ window.sub60bench = {
       };
       step();
     });
+  },
+  async looks(on) {                  // resolves at the frame after the toggle's looks
+    await this.poll(() => (sub60.zoom() > 1) === on &&
+      (sub60.byClass('sub60-sidebar').visible === !on));
+    return this.frame();
   },
   frame() { return new Promise(r => requestAnimationFrame(() => r(performance.now()))); },
   release(cls, v) {                  // what a slider release sends
@@ -87,7 +98,18 @@ def _stats(samples: list[float]) -> str:
             f"min {s[0]:7.1f}   max {s[-1]:7.1f}   (n = {len(s)})")
 
 
-def run(url: str, moves: int, designs: int) -> None:
+def _cpu_s(pid: int | None) -> float:
+    """User + system CPU seconds of a process so far (Linux /proc), NaN if unknown."""
+    if pid is None:
+        return float("nan")
+    import os
+
+    fields = open(f"/proc/{pid}/stat").read().rsplit(")", 1)[1].split()
+    return (int(fields[11]) + int(fields[12])) / os.sysconf("SC_CLK_TCK")
+
+
+def run(url: str, moves: int, designs: int, toggles: int = 6, opens: int = 4,
+        server_pid: int | None = None) -> None:
     from playwright.sync_api import sync_playwright
 
     with sync_playwright() as p:
@@ -109,6 +131,24 @@ def run(url: str, moves: int, designs: int) -> None:
             d_tfet.append(b)
             d_all.append(c)
             page.wait_for_function("() => sub60.allDone(41)", timeout=120_000)
+        toggle = []
+        button = page.get_by_role("button", name="Presentation mode")
+        for k in range(toggles):
+            t0 = page.evaluate("() => performance.now()")
+            button.click()  # as a user does (the button is inside Bokeh's shadow DOM)
+            toggle.append(page.evaluate("(on) => sub60bench.looks(on)", k % 2 == 0) - t0)
+        page.close()
+        import time
+
+        open_s, open_cpu = [], []
+        for _k in range(opens):
+            time.sleep(10)  # the last page's session has ended (8 s without a connection)
+            c0, t0 = _cpu_s(server_pid), time.perf_counter()
+            p2, _, errs = open_app(browser, url)
+            open_s.append(1000 * (time.perf_counter() - t0))
+            open_cpu.append(1000 * (_cpu_s(server_pid) - c0))
+            errors += errs
+            p2.close()
         browser.close()
     print("sub60 explorer latency, measured in headless Chromium (performance.now())")
     print(f"  Vg slider release -> band data in page : {_stats(band)}")
@@ -116,6 +156,10 @@ def run(url: str, moves: int, designs: int) -> None:
     print(f"  design change -> band diagram          : {_stats(d_band)}")
     print(f"  design change -> tunnel FET curve      : {_stats(d_tfet)}")
     print(f"  design change -> both curves + metrics : {_stats(d_all)}")
+    print(f"  presentation toggle -> frame drawn     : {_stats(toggle)}")
+    print(f"  page open -> all curves done           : {_stats(open_s)}")
+    if server_pid is not None:
+        print(f"  page open: server CPU                  : {_stats(open_cpu)}")
     if errors:
         print("page errors:", *errors, sep="\n  ")
 
@@ -125,14 +169,16 @@ def main() -> int:
     ap.add_argument("--url", help="an already served explorer (default: serve one here)")
     ap.add_argument("--moves", type=int, default=20, help="gate-voltage moves [-]")
     ap.add_argument("--designs", type=int, default=10, help="design changes [-]")
+    ap.add_argument("--toggles", type=int, default=6, help="presentation toggles [-]")
+    ap.add_argument("--opens", type=int, default=4, help="fresh page opens [-]")
     a = ap.parse_args()
     if a.url:
-        run(a.url, a.moves, a.designs)
+        run(a.url, a.moves, a.designs, a.toggles, a.opens)
         return 0
     port = free_port()
     proc = start_server(port)
     try:
-        run(f"http://127.0.0.1:{port}/", a.moves, a.designs)
+        run(f"http://127.0.0.1:{port}/", a.moves, a.designs, a.toggles, a.opens, proc.pid)
     finally:
         stop_server(proc)
     return 0

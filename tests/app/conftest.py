@@ -72,6 +72,33 @@ window.sub60 = {
       this.model('transfer_twin_source').data.vg.length === n &&
       f.title.text === 'Transfer curve' && this.metrics() !== null;
   },
+  cards() {                   // the sidebar's cards (css class control-group)
+    return [...this.doc()._all_models.values()].filter(
+      m => Array.isArray(m.css_classes) && m.css_classes.includes('control-group'));
+  },
+  openCards() {               // open every card, as clicking each header does
+    for (const c of this.cards()) { if (c.collapsed) { c.collapsed = false; } }
+  },
+  cardsFilled() {             // a card that started collapsed gets its controls when opened
+    return this.cards().every(c => !c.collapsed && c.children.length > 1);
+  },
+  deepFind(cls) {             // the element of a css class, inside Bokeh's shadow roots
+    const stack = [document.body];
+    while (stack.length) {
+      const n = stack.pop();
+      if (n.classList && n.classList.contains(cls)) { return n; }
+      if (n.shadowRoot) { stack.push(n.shadowRoot); }
+      for (const c of (n.children || [])) { stack.push(c); }
+    }
+    return null;
+  },
+  zoom() {                    // the results column's zoom (presentation mode), 1 if none
+    const z = this.deepFind('sub60-main').style.zoom;
+    return z ? Number(z) : 1;
+  },
+  widthOnScreen(name) {       // a figure's width as drawn on the screen [px]
+    return Bokeh.index.find_one(this.model(name)).el.getBoundingClientRect().width;
+  },
   allDone(n) {
     return this.curvesDone(n) && !this.model('output_plot').title.text.includes('updating');
   },
@@ -179,6 +206,13 @@ def open_app(browser, url: str, timeout_ms: float = PAGE_TIMEOUT_MS):
         raise AssertionError(f"the page did not complete its first curves: {shown}; "
                              f"page errors: {errors}") from exc
     return page, requests, errors
+
+
+def open_cards(page, timeout_ms: float = PAGE_TIMEOUT_MS) -> None:
+    """Open every card of the sidebar and wait for their controls (cards that start
+    collapsed are filled by the server when first opened: `app.controls.folded_card`)."""
+    page.evaluate("() => sub60.openCards()")
+    page.wait_for_function("() => sub60.cardsFilled()", timeout=timeout_ms)
 
 
 def browser_or_skip():

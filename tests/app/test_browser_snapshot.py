@@ -20,7 +20,7 @@ import pytest
 
 from sub60.app.presets import PRESET_DIR
 from sub60.app.snapshot_reader import import_snapshot
-from tests.app.conftest import open_app
+from tests.app.conftest import open_app, open_cards
 
 pytestmark = pytest.mark.browser
 
@@ -45,6 +45,7 @@ CONTROLS_JS = """() => {
 
 
 def _controls(page) -> dict:
+    open_cards(page)  # every control is on the page once its card has been opened
     return page.evaluate(CONTROLS_JS)
 
 
@@ -248,6 +249,7 @@ def test_two_pinned_designs_are_overlaid_and_tabled(browser, app_url):
 def test_demo_design_loads_into_the_controls(browser, app_url):
     page, _, errors = open_app(browser, app_url)
     try:
+        open_cards(page)
         page.locator(".ctl-preset select").select_option(label="MOSFET baseline")
         page.wait_for_function(
             "() => { const g = sub60.byClass('ctl-source_type'); "

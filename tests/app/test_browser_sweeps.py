@@ -15,7 +15,7 @@ import math
 
 import pytest
 
-from tests.app.conftest import JS_HELPERS, VIEWPORT
+from tests.app.conftest import JS_HELPERS, VIEWPORT, open_cards
 
 pytestmark = pytest.mark.browser
 
@@ -112,6 +112,7 @@ def test_small_sweep_fills_map_and_front_and_a_click_loads_the_design(browser, a
         page.wait_for_function(
             "(t) => Math.abs(sub60.sliderOf('ctl-body_thickness_nm').value - t) < 1e-9",
             arg=want_t, timeout=30_000)
+        open_cards(page)  # the doping controls are in a card that starts collapsed
         doping = page.evaluate("() => sub60.sliderOf('ctl-source_doping_log10_cm3').value")
         assert doping == pytest.approx(math.log10(want_na), abs=1e-6)
         page.wait_for_function("() => sub60.byClass('sub60-tabs').active === 0",
