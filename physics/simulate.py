@@ -546,13 +546,16 @@ def _design_warnings(design: Design) -> tuple[str, ...]:
         out.append(f"bandgap_narrowing is on, but sub60 has no band-gap-narrowing model for "
                    f"{design.material}: no narrowing applied.")
     bands = band_parameters(design)
+    nc_src, nv_src = design.source_semiconductor.effective_dos_cm3(design.temperature_K)
     n_src = ("source_doping_cm3", design.source_doping_cm3,
-             bands.nv_cm3 if design.source_type == "p" else bands.nc_cm3)
+             nv_src if design.source_type == "p" else nc_src)
     for name, dop, dos in (n_src, ("drain_doping_cm3", design.drain_doping_cm3, bands.nc_cm3)):
         depth = bands.kT_eV * float(inverse_fermi_half(dop / dos))
         if depth > DEGENERACY_WARN_EV:
+            where = design.source_semiconductor_name if name.startswith("source") \
+                else design.material
             out.append(f"{name} = {dop:.3g} cm^-3 puts the Fermi level {depth:.2f} eV inside the "
-                       f"band of {design.material} with the model's parabolic density of states; "
+                       f"band of {where} with the model's parabolic density of states; "
                        "real bands (non-parabolic, satellite valleys) hold it lower, so currents "
                        "from this contact are overstated.")
     return tuple(out)
