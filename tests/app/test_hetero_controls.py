@@ -50,3 +50,15 @@ def test_band_plot_marks_and_labels_the_heterointerface():
     assert f"{off.conduction_step_eV:+.2f}" in text and f"{off.valence_step_eV:+.2f}" in text
     plot.show(Simulator().solve_bias(Design(), 0.4, 0.3))
     assert not plot.interface_line.visible and not plot.interface_label.visible
+
+
+def test_material_card_lists_the_source_record_and_the_offsets():
+    from sub60.app.material_card import material_card_html
+
+    s = ExplorerState()
+    assert "Heterointerface" not in material_card_html(s)
+    s.set_design(HETERO)
+    html = material_card_html(s)
+    off = heterointerface_offsets(HETERO)
+    assert "Heterointerface at x = 18 nm" in html and f"{off.valence_step_eV:+.3f} eV" in html
+    assert "Source: <b>GaAsSb (x = 0.4)</b>" in html and "Vurgaftman" in html
