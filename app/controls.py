@@ -49,12 +49,15 @@ EDITABLE_STEPS: tuple[tuple[str, float], ...] = (
     ("drain_length_nm", 1.0), ("gate_source_offset_nm", 0.5),
     ("buried_oxide_thickness_nm", 0.5), ("doping_gradient_nm_per_dec", 0.1),
     ("oxide_thickness_nm", 0.05), ("oxide_permittivity", 0.5),
-    ("gate_workfunction_eV", 0.01), ("temperature_K", 1.0))
+    ("gate_workfunction_eV", 0.01), ("temperature_K", 1.0),
+    ("source_composition_x", 0.01), ("heterointerface_nm", 0.5))
 EDITABLE_STEPS += NONIDEAL_STEPS  # the non-idealities card (app.nonideal_view)
 DOPINGS = ("source_doping_log10_cm3", "channel_doping_log10_cm3", "drain_doping_log10_cm3")
 #: Widget name -> derived state parameter that enables it.
 ENABLE_RULES = {"oxide_permittivity": "custom_permittivity_enabled",
-                "buried_oxide_thickness_nm": "buried_oxide_enabled"}
+                "buried_oxide_thickness_nm": "buried_oxide_enabled",
+                "source_composition_x": "source_composition_enabled",
+                "heterointerface_nm": "heterointerface_enabled"}
 
 
 # Panel waits 50 ms after a widget event to batch further ones; a slider release or an
@@ -301,6 +304,10 @@ class Controls:
         self.widgets["composition_x"] = widget
         self.state.param.watch(self._apply_composition_rules,
                                ["composition_enabled", "composition_text"])
+        self.widgets["source_composition_x"].name = self.state.source_composition_text
+        self.state.param.watch(
+            lambda e: setattr(self.widgets["source_composition_x"], "name", e.new),
+            ["source_composition_text"])
 
     def _apply_composition_rules(self, *_events) -> None:
         widget = self.widgets["composition_x"]
@@ -342,7 +349,7 @@ class Controls:
             w[name] = _NowFloatSlider.from_param(s[name], throttled=True, format=formatter,
                                                  width=WIDGET_WIDTH, margin=(4, 10),
                                                  css_classes=[f"ctl-{name}"])
-        for name in ("material", "oxide"):
+        for name in ("material", "source_material", "oxide"):
             w[name] = pn.widgets.Select.from_param(s[name], width=WIDGET_WIDTH,
                                                    margin=(4, 10), css_classes=[f"ctl-{name}"])
         w["tunnelling_model"] = pn.widgets.RadioBoxGroup.from_param(
@@ -389,6 +396,7 @@ class Controls:
             card("Gate stack", w["oxide"], w["oxide_thickness_nm"], self.eot,
                  w["oxide_permittivity"], w["gate_workfunction_eV"], collapsed=True),
             card("Material and temperature", w["material"], w["composition_x"],
+                 w["source_material"], w["source_composition_x"], w["heterointerface_nm"],
                  w["temperature_K"], collapsed=True),
             card("Tunnelling model", w["tunnelling_model"], model_note,
                  collapsed=True),

@@ -24,7 +24,14 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from sub60.app.theme import PALETTE, output_ramp
-from sub60.physics import BiasPoint, Design, OutputCurve, TransferCurve, thermionic_limit_mV_per_dec
+from sub60.physics import (
+    BiasPoint,
+    Design,
+    OutputCurve,
+    TransferCurve,
+    heterointerface_offsets,
+    thermionic_limit_mV_per_dec,
+)
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -111,6 +118,11 @@ def band_figure(bp: BiasPoint, caption: str) -> Figure:
     ax.axvspan(d.gate_start_nm, d.gate_end_nm, color=COLOURS["gate"], zorder=0, label="gate")
     for xj in (d.source_junction_nm, d.drain_junction_nm):
         ax.axvline(xj, color=COLOURS["junction"], linestyle=":", linewidth=0.8)
+    off = heterointerface_offsets(d)
+    if off is not None:  # heterojunction source: the interface and its offsets
+        ax.axvline(off.position_nm, color="#444444", linestyle="--", linewidth=1.0,
+                   label=f"{off.source} \u2192 {off.body}: \u0394Ec {off.conduction_step_eV:+.2f}, "
+                         f"\u0394Ev {off.valence_step_eV:+.2f} eV ({off.kind.split(' (')[0]})")
     if bp.window_eV is not None:
         lo, hi = bp.window_eV
         ax.axhspan(lo, hi, color=COLOURS["window"], alpha=0.35, zorder=0.5,

@@ -122,6 +122,8 @@ def header_html(state: ExplorerState) -> str:
         eot = d.eot_nm
         layout = "double gate" if d.gate_layout == "double" else "single gate"
         src = "p+" if d.source_type == "p" else "n+"
+        if d.is_heterojunction:
+            src += f" {html.escape(d.source_semiconductor.name)}"
         summary = (f"{d.semiconductor.name} body {d.body_thickness_nm:g} nm · L<sub>g</sub> "
                    f"{d.gate_length_nm:g} nm · {layout} · {d.oxide} {d.oxide_thickness_nm:g} nm "
                    f"(EOT {eot:.2f} nm) · {src} source {d.source_doping_cm3:.1e} cm⁻³ · "

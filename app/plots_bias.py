@@ -36,6 +36,7 @@ from sub60.app.plot_style import (
     window_outline,
 )
 from sub60.app.theme import MAP_PALETTE, format_current
+from sub60.physics import heterointerface_offsets
 
 
 class BandPlot:
@@ -89,6 +90,18 @@ class BandPlot:
                              for k, t in (("efs", "E_F source"), ("efd", "E_F drain"))}
         for lab in self.fermi_labels.values():
             f.add_layout(lab)
+        # heterojunction source: the interface and its band offsets (hidden otherwise)
+        self.interface_line = Span(location=0, dimension="height", line_color="#444444",
+                                   line_dash="dotted", line_width=1.5, visible=False,
+                                   name="heterointerface_line")
+        f.add_layout(self.interface_line)
+        self.interface_label = Label(x=0, y=0, text="", text_font_size="11px",
+                                     text_color="#333333", text_align="left", x_offset=4,
+                                     y_offset=-18, text_baseline="top",
+                                     background_fill_color="white",
+                                     background_fill_alpha=0.85, visible=False,
+                                     name="heterointerface_label")
+        f.add_layout(self.interface_label)
         # one legend entry per band family; subband names are in the hover
         self.band_items = {
             "c": LegendItem(label=value("conduction subbands"), renderers=[], visible=False),
@@ -100,7 +113,8 @@ class BandPlot:
     @property
     def labels(self) -> list[Label]:
         """Text labels drawn on the plot (their font follows the presentation mode)."""
-        return [*self.region_labels.values(), *self.fermi_labels.values(), self.window_closed]
+        return [*self.region_labels.values(), *self.fermi_labels.values(), self.window_closed,
+                self.interface_label]
 
     def line(self, label: str, kind: str, rank: int):
         """The renderer of one subband edge ("c" or "v" family, rank 0 = the band edge),
@@ -172,7 +186,25 @@ class BandPlot:
         for lab in self.region_labels.values():
             lab.y = hi + 2.5 * pad
         self.window_closed.update(x=self.region_labels["gate"].x, y=hi + 2.5 * pad)
+        self.show_interface(d, hi + 2.5 * pad)
         return hi + 2.5 * pad
+
+    def show_interface(self, design, top_eV: float) -> None:
+        """The heterointerface as a dotted line, labelled with its band offsets (body minus
+        source, VMR 2001 table) and the alignment; hidden for a homojunction."""
+        off = heterointerface_offsets(design)
+        self.interface_line.visible = self.interface_label.visible = off is not None
+        if off is None:
+            return
+        self.interface_line.location = off.position_nm
+        kind = off.kind.split(" (")[0]
+        overlap = (f"overlap {1e3 * off.confined_overlap_eV:.0f} meV with confinement"
+                   if off.confined_overlap_eV > 0 else
+                   f"tunnel gap {-off.confined_overlap_eV:.2f} eV with confinement")
+        self.interface_label.update(
+            x=off.position_nm, y=top_eV,
+            text=(f"{off.source} → {off.body}: ΔEc {off.conduction_step_eV:+.2f} eV, "
+                  f"ΔEv {off.valence_step_eV:+.2f} eV\n{kind}, {overlap}"))
 
 
     def show_windows(self, bp, ec_eV: np.ndarray, ev_eV: np.ndarray) -> None:

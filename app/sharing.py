@@ -155,7 +155,8 @@ def _outside_control(name: str, value: Any, state: ExplorerState) -> str:
 
 #: Query key of each setting in the page's address (short, readable, with units).
 QUERY_KEYS: dict[str, str] = {
-    "material": "material", "composition_x": "x", "temperature_K": "T_K",
+    "material": "material", "composition_x": "x", "source_material": "src_material",
+    "source_composition_x": "src_x", "heterointerface_nm": "hj_nm", "temperature_K": "T_K",
     "body_thickness_nm": "body_nm", "gate_length_nm": "lg_nm",
     "source_length_nm": "ls_nm", "drain_length_nm": "ld_nm",
     "gate_layout": "gates", "gate_source_offset_nm": "overlap_nm",

@@ -2,10 +2,12 @@
 strict validation (schema ``"sub60.snapshot"``, version 2; the file layout is described
 in `app.snapshot`).
 
-Versions: 1 stored the design fields of sub60 0.2.0 (`DESIGN_FIELDS_V1`); 2 stores every
-field of `physics.design.Design`, including those added since (non-ideal physics,
-materials). A version-1 file still opens: the fields it predates take their defaults
-(off, or as before), and `added_design_fields` names them so the reader can say so.
+Versions: 1 stored the design fields of sub60 0.2.0 (`DESIGN_FIELDS_V1`); 2 added the
+non-ideal physics and the alloy composition (`DESIGN_FIELDS_V2`); 3 stores every field of
+`physics.design.Design`, including the heterojunction source (`HETEROJUNCTION_FIELDS`).
+An older file still opens: the fields it predates take their defaults (off, a
+homojunction, or as before), and `added_design_fields` names them so the reader can say
+so.
 
 `SnapshotSettings.from_dict` reads a parsed settings.json strictly: unknown fields,
 missing fields, wrong types, non-finite numbers and out-of-range values raise
@@ -39,7 +41,7 @@ from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_
 
 # ---------------------------------------------------------------------- constants
 SCHEMA_NAME = "sub60.snapshot"
-SCHEMA_VERSION = 2
+SCHEMA_VERSION = 3
 #: The design fields a version-1 file holds (exactly these, every one required).
 DESIGN_FIELDS_V1: tuple[str, ...] = (
     "material", "source_type", "source_doping_cm3", "channel_doping_cm3", "drain_doping_cm3",
@@ -47,6 +49,12 @@ DESIGN_FIELDS_V1: tuple[str, ...] = (
     "drain_length_nm", "oxide_thickness_nm", "oxide", "oxide_permittivity",
     "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
     "gate_source_offset_nm", "temperature_K")
+#: The design fields version 3 added: the heterojunction source.
+HETEROJUNCTION_FIELDS: tuple[str, ...] = ("source_material", "source_composition_x",
+                                          "heterointerface_nm")
+#: The design fields a version-2 file holds (exactly these, every one required).
+DESIGN_FIELDS_V2: tuple[str, ...] = tuple(f for f in FIELD_RANGES
+                                          if f not in HETEROJUNCTION_FIELDS)
 #: Version written when the installed package metadata cannot be read.
 FALLBACK_VERSION = "0.2.0+unknown"
 
@@ -265,7 +273,11 @@ _VERSION_TEXT = re.compile(r"[0-9A-Za-z][0-9A-Za-z.+_-]{0,63}")
 
 def design_fields(schema_version: int) -> tuple[str, ...]:
     """The design fields a file of ``schema_version`` holds (all of them required)."""
-    return DESIGN_FIELDS_V1 if schema_version == 1 else tuple(FIELD_RANGES)
+    if schema_version == 1:
+        return DESIGN_FIELDS_V1
+    if schema_version == 2:
+        return DESIGN_FIELDS_V2
+    return tuple(FIELD_RANGES)
 
 
 def added_design_fields(schema_version: int) -> tuple[str, ...]:

@@ -108,7 +108,8 @@ def vg_step_text(start_V: float, stop_V: float, points: int) -> str:
 
 #: Settings whose change alters the device (and so every curve).
 DESIGN_PARAMETERS: tuple[str, ...] = (
-    "material", "composition_x", "temperature_K",
+    "material", "composition_x", "source_material", "source_composition_x",
+    "heterointerface_nm", "temperature_K",
     "body_thickness_nm", "gate_length_nm", "source_length_nm", "drain_length_nm",
     "gate_layout", "gate_source_offset_nm", "buried_oxide_thickness_nm",
     "source_type", "source_doping_log10_cm3", "channel_dopant", "channel_doping_log10_cm3",
@@ -148,6 +149,11 @@ MATERIAL_CHOICES: dict[str, str] = {
 }
 #: Label of the composition control without an alloy body.
 NO_ALLOY_LABEL = "Alloy composition x (only for alloy bodies)"
+#: Source choices: the body's material (a homojunction), or any body choice.
+SAME_AS_BODY_LABEL = "Same as the body (homojunction)"
+SOURCE_MATERIAL_CHOICES: dict[str, str] = {SAME_AS_BODY_LABEL: "same", **MATERIAL_CHOICES}
+#: Label of the source composition control without an alloy source.
+NO_SOURCE_ALLOY_LABEL = "Source alloy composition x (only for alloy sources)"
 
 
 def composition_label(material: str) -> str:
@@ -173,6 +179,20 @@ class ExplorerState(NonIdealSettings):
         default=_DEFAULT.composition_x, bounds=_bounds("composition_x"), step=0.01,
         label="Alloy composition x (–)",
         doc="x of an alloy body (see composition_label); 0 for a fixed material [-].")
+    # ---------------------------------------------------------------- heterojunction source
+    source_material = param.Selector(
+        default=_DEFAULT.source_material, objects=SOURCE_MATERIAL_CHOICES,
+        label="Source semiconductor",
+        doc="Semiconductor of the source region; 'same' = the body's (a homojunction).")
+    source_composition_x = param.Number(
+        default=_DEFAULT.source_composition_x, bounds=_bounds("source_composition_x"),
+        step=0.01, label="Source alloy composition x (–)",
+        doc="x of an alloy source; 0 for a fixed material [-].")
+    heterointerface_nm = param.Number(
+        default=_DEFAULT.heterointerface_nm, bounds=_bounds("heterointerface_nm"), step=0.5,
+        label="Heterointerface from the gate edge, + towards the drain (nm)",
+        doc="Position of the source/body interface relative to the gate's source-side edge "
+            "[nm]; used for a heterojunction source only.")
     temperature_K = param.Number(
         default=_DEFAULT.temperature_K, bounds=_bounds("temperature_K"), step=1.0,
         label="Temperature (K)", doc="Lattice temperature [K].")
@@ -303,6 +323,36 @@ class ExplorerState(NonIdealSettings):
         if not alloy and self.composition_x != 0.0:
             self.composition_x = 0.0  # a fixed material takes no composition
 
+    source_composition_enabled = param.Boolean(
+        default=False, constant=True, precedence=-1,
+        doc="The source is an alloy, so its composition applies; derived, read-only.")
+    source_composition_text = param.String(
+        default=NO_SOURCE_ALLOY_LABEL, constant=True, precedence=-1,
+        doc="What x is for the present source (label of its composition control); derived.")
+    heterointerface_enabled = param.Boolean(
+        default=False, constant=True, precedence=-1,
+        doc="The source is of another material than the body; derived, read-only.")
+
+    @param.depends("source_material", watch=True, on_init=True)
+    def _update_source_rules(self) -> None:
+        alloy = self.source_material in alloys()
+        text = NO_SOURCE_ALLOY_LABEL if not alloy else \
+            "Source: " + composition_label(self.source_material)
+        with param.parameterized.edit_constant(self):
+            self.param.update(source_composition_enabled=alloy, source_composition_text=text)
+        if not alloy and self.source_composition_x != 0.0:
+            self.source_composition_x = 0.0  # a fixed material takes no composition
+
+    @param.depends("source_material", "material", "composition_x", "source_composition_x",
+                   watch=True, on_init=True)
+    def _update_heterointerface_rule(self) -> None:
+        hetero = self.source_material != "same" and (
+            self.source_material, self.source_composition_x
+            if self.source_material in alloys() else 0.0) != (
+            self.material, self.composition_x if self.material in alloys() else 0.0)
+        with param.parameterized.edit_constant(self):
+            self.param.update(heterointerface_enabled=hetero)
+
     @param.depends("oxide", "gate_layout", watch=True, on_init=True)
     def _update_enable_rules(self) -> None:
         with param.parameterized.edit_constant(self):
@@ -333,6 +383,10 @@ class ExplorerState(NonIdealSettings):
             gate_source_offset_nm=self.gate_source_offset_nm,
             temperature_K=self.temperature_K,
             composition_x=self.composition_x if self.material in alloys() else 0.0,
+            source_material=self.source_material,
+            source_composition_x=(self.source_composition_x
+                                  if self.source_material in alloys() else 0.0),
+            heterointerface_nm=self.heterointerface_nm,
             **self.nonideal_fields(),  # non-idealities: app.nonideal
         )
 
@@ -349,7 +403,8 @@ class ExplorerState(NonIdealSettings):
         for name in ("doping_gradient_nm_per_dec", "body_thickness_nm", "gate_length_nm",
                      "source_length_nm", "drain_length_nm", "oxide_thickness_nm", "oxide",
                      "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
-                     "gate_source_offset_nm", "temperature_K", "composition_x"):
+                     "gate_source_offset_nm", "temperature_K", "composition_x",
+                     "source_material", "source_composition_x", "heterointerface_nm"):
             out[name] = getattr(design, name)
         out.update({name: getattr(design, name) for name in NONIDEAL_FIELDS})
         if design.oxide_permittivity is not None:

@@ -42,6 +42,8 @@ _API: dict[str, str] = {
     "dielectrics": "materials",
     "material_parameters": "materials",
     "figures_of_merit": "metrics",
+    "heterointerface_offsets": "heterojunction",
+    "HeterointerfaceOffsets": "heterojunction",
     "hurkx_gamma": "trap_assisted",
     "interface_trap_density": "interface_traps",
     "output_columns": "simulate",

@@ -78,3 +78,38 @@ def wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
                     acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], False, gl_x, gl_w)
             out[kk, ie] = 2.0 * scale * acc
     return out
+
+
+@_nb.njit(cache=True, nogil=True)
+def wkb_transverse_kernel_varying(x, ec, ev, a, b, kvals, energies, mass_seg, two_band,
+                                  gl_x, gl_w):  # pragma: no cover
+    """(nk, nE) WKB exponents with one tunnelling mass per segment (a heterojunction);
+    see `wkb_exponent_transverse`. The transverse k is conserved: on segment i,
+    kappa^2 = kappa_0^2(m_i) + k^2 (two-band); the one-band edge shift uses the contacts'
+    masses (a, b)."""
+    nk, ne = kvals.shape
+    nx = x.size
+    out = np.empty((nk, ne))
+    scale = np.sqrt(mass_seg / HBAR2_2M0_EV_NM2)
+    for kk in range(nk):
+        for ie in range(ne):
+            e = energies[ie]
+            k2 = kvals[kk, ie] ** 2
+            up = a * k2
+            down = b * k2
+            if e >= ev[0] - down or e <= ec[nx - 1] + up:
+                out[kk, ie] = np.inf
+                continue
+            acc = 0.0
+            for i in range(nx - 1):
+                if two_band:
+                    acc += scale[i] * _segment_integral_transverse(
+                        ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1], k2 / scale[i] ** 2,
+                        x[i + 1] - x[i], gl_x, gl_w)
+                else:
+                    c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
+                    v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
+                    acc += scale[i] * _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], False,
+                                                        gl_x, gl_w)
+            out[kk, ie] = 2.0 * acc
+    return out

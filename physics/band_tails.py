@@ -64,11 +64,13 @@ References
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 from scipy.special import erf
 
 from sub60.physics.constants import G0_S, HBAR2_2M0_EV_NM2
-from sub60.physics.transport import BandProfile, energy_grid, fermi
+from sub60.physics.transport import BandProfile, energy_grid, fermi, tunnelling_mass
 from sub60.physics.tunneling import wkb_exponent_transverse
 
 #: Shifts at which I_ideal(eps) is evaluated, around the window's closure dE, in units
@@ -148,16 +150,15 @@ def _estimate(
     kappa_model = "one-band" if model == "one-band" else "two-band"
     total = 0.0
     for cb, vb, w in pairs:
-        c = BandProfile(cb.label, cb.edge_eV - down_eV, cb.mass)
-        v = BandProfile(vb.label, vb.edge_eV + up_eV, vb.mass)
+        c = dataclasses.replace(cb, edge_eV=cb.edge_eV - down_eV)
+        v = dataclasses.replace(vb, edge_eV=vb.edge_eV + up_eV)
         span = energy_grid([c], [v], efs_eV, efd_eV, kT_eV, n=2)
         if span is None:
             continue
         # cosine-spaced energies: J(E) has square-root edges where k_max(E) -> 0
         theta = np.linspace(0.0, np.pi, N_TAIL_E)
         e = 0.5 * (span[0] + span[1]) - 0.5 * (span[1] - span[0]) * np.cos(theta)
-        m_r = c.mass * v.mass / (c.mass + v.mass)
-        m_t = c.mass if kappa_model == "one-band" else 2 * m_r
+        m_t = tunnelling_mass(c, v, kappa_model)
         a, b = HBAR2_2M0_EV_NM2 / c.mass, HBAR2_2M0_EV_NM2 / v.mass
         k_max = np.sqrt(np.clip(np.minimum((v.edge_eV[0] - e) / b, (e - c.edge_eV[-1]) / a),
                                 0.0, None))

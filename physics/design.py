@@ -51,6 +51,8 @@ class FieldSpec:
     def describe(self) -> str:
         if self.kind is str and self.choices is None:
             known = _materials() if self.help.startswith("semiconductor") else _dielectrics()
+            if self.help.startswith("semiconductor of the source"):
+                known = ("same", *known)
             return "one of " + ", ".join(repr(c) for c in known)
         if self.choices is not None:
             return "one of " + ", ".join(repr(c) for c in self.choices)
@@ -103,6 +105,14 @@ FIELD_RANGES: dict[str, FieldSpec] = {
                                help="x of an alloy material (InGaAs: In(x)Ga(1-x)As, AlGaSb: "
                                     "Al(x)Ga(1-x)Sb, GaAsSb: GaAs(x)Sb(1-x), InAsSb: "
                                     "InAs(x)Sb(1-x), SiGe: Si(1-x)Ge(x)); 0 otherwise [-]"),
+    "source_material": FieldSpec(str, help="semiconductor of the source region, or 'same' "
+                                           "(the body material: a homojunction)"),
+    "source_composition_x": FieldSpec(float, 0.0, 1.0,
+                                      help="x of an alloy source_material (same convention as "
+                                           "composition_x); 0 otherwise [-]"),
+    "heterointerface_nm": FieldSpec(float, -10.0, 10.0,
+                                    help="position of the source/body heterointerface from the "
+                                         "gate's source-side edge, + towards the drain [nm]"),
     # non-idealities: interface traps, series resistance
     "interface_trap_density_cm2eV": FieldSpec(
         float, 0.0, 1e14,
@@ -192,6 +202,17 @@ class Design:
         composition x of an alloy ``material`` ("InGaAs": In(x)Ga(1-x)As, "AlGaSb",
         "GaAsSb", "InAsSb", "SiGe": Si(1-x)Ge(x); see `sub60.physics.materials.ALLOYS`),
         in [0, 1] [-]; must stay 0 (its default) for any other material.
+    source_material : str
+        semiconductor of the source region (x below the heterointerface), a name known
+        to `physics.materials`, or "same" (default): the body material, a homojunction.
+        The channel and drain are always of ``material``.
+    source_composition_x : float
+        composition x of an alloy ``source_material`` [-]; 0 for any other.
+    heterointerface_nm : float
+        position of the heterointerface relative to the gate's source-side edge
+        (`gate_start_nm`), positive towards the drain, in [-10, 10] [nm]; it must lie at
+        least 1 nm inside the device and 1 nm before the drain junction. Ignored for a
+        homojunction.
     interface_trap_density_cm2eV : float
         interface-trap density D_it at the gate-oxide interface(s): the value across the
         gap ('uniform') or at midgap ('u-shaped') [cm^-2 eV^-1]
@@ -249,6 +270,9 @@ class Design:
     temperature_K: float = 300.0
     # materials: alloys and heterojunctions
     composition_x: float = 0.0
+    source_material: str = "same"
+    source_composition_x: float = 0.0
+    heterointerface_nm: float = 0.0
     # non-idealities: interface traps, series resistance
     interface_trap_density_cm2eV: float = 0.0
     interface_trap_profile: str = "uniform"
@@ -297,6 +321,83 @@ class Design:
                 f"gate_source_offset_nm: an overlap of {self.gate_source_offset_nm:g} nm reaches past "
                 f"the source contact (source_length_nm = {self.source_length_nm:g} nm); "
                 "source_length_nm - gate_source_offset_nm must be at least 1 nm")
+        self._check_source_material()  # after the gate rules: it needs a valid gate start
+
+    def _check_source_material(self) -> None:
+        """Combination rules of the heterojunction fields (ValueError naming the field)."""
+        from sub60.physics.materials import ALLOYS, semiconductor_for
+
+        if self.source_material == "same":
+            if self.source_composition_x != 0.0:
+                raise ValueError(
+                    f"source_composition_x: {self.source_composition_x:g} has no meaning with "
+                    "source_material = 'same' (the body material and its composition_x); "
+                    "choose an alloy source_material or leave source_composition_x at 0")
+            return
+        if self.source_material not in ALLOYS and self.source_composition_x != 0.0:
+            raise ValueError(
+                f"source_material: {self.source_material!r} is not an alloy, so "
+                f"source_composition_x = {self.source_composition_x:g} has no meaning; choose "
+                f"an alloy ({', '.join(ALLOYS)}) or leave source_composition_x at 0")
+        rec = semiconductor_for(self.source_material, self.source_composition_x
+                                if self.source_material in ALLOYS else None)
+        if not self.is_heterojunction:
+            return
+        for name, r in (("source_material", rec), ("material", self.semiconductor)):
+            if r.valence_band_offset_eV is None:
+                raise ValueError(f"{name}: {r.name} has no tabulated valence-band offset, so "
+                                 "it cannot form a heterojunction; choose another material")
+        x_h = self.heterointerface_position_nm
+        lo, hi = 1.0, self.drain_junction_nm - 1.0
+        if not lo <= x_h <= hi:
+            raise ValueError(
+                f"heterointerface_nm: {self.heterointerface_nm:g} nm puts the heterointerface "
+                f"at x = {x_h:g} nm, outside the device part allowed for it [{lo:g}, {hi:g}] nm "
+                f"(1 nm inside the source contact, 1 nm before the drain junction); allowed "
+                f"[{lo - self.gate_start_nm:g}, {hi - self.gate_start_nm:g}] nm for this "
+                "geometry, within [-10, 10] nm")
+
+    @property
+    def is_heterojunction(self) -> bool:
+        """True when the source material (at its composition) differs from the body's."""
+        if self.source_material == "same":
+            return False
+        return (self.source_material, self.source_composition_x) != \
+            (self.material, self.composition_x)
+
+    @property
+    def source_semiconductor(self) -> Semiconductor:
+        """The source region's material record (the body's for a homojunction)."""
+        if not self.is_heterojunction:
+            return self.semiconductor
+        from sub60.physics.materials import ALLOYS, semiconductor_for
+
+        return semiconductor_for(self.source_material, self.source_composition_x
+                                 if self.source_material in ALLOYS else None)
+
+    @property
+    def heterointerface_position_nm(self) -> float:
+        """x of the heterointerface: `gate_start_nm` + `heterointerface_nm` [nm]."""
+        return self.gate_start_nm + self.heterointerface_nm
+
+    def homojunction(self) -> Design:
+        """The same design with the source of the body material (no heterojunction)."""
+        return self.replace(source_material="same", source_composition_x=0.0,
+                            heterointerface_nm=0.0)
+
+    def source_body_design(self) -> Design:
+        """The homojunction design of the source material (its flat-body subbands give
+        the confinement of the source region)."""
+        return self.replace(material=self.source_semiconductor_name,
+                            composition_x=self.source_composition_x
+                            if self.is_heterojunction else self.composition_x,
+                            source_material="same", source_composition_x=0.0,
+                            heterointerface_nm=0.0)
+
+    @property
+    def source_semiconductor_name(self) -> str:
+        """Name of the source material ("same" resolved to the body's ``material``)."""
+        return self.material if not self.is_heterojunction else self.source_material
 
     @property
     def is_ideal(self) -> bool:
@@ -433,6 +534,15 @@ def _check(name: str, value: Any) -> Any:
             match = [k for k in known if k.lower() == value.lower()]
             if not match:
                 raise ValueError(f"{name}: unknown material {value!r}; known: "
+                                 + ", ".join(known))
+            return match[0]
+        if name == "source_material":
+            known = _materials()
+            if value.strip().lower() == "same":
+                return "same"
+            match = [k for k in known if k.lower() == value.lower()]
+            if not match:
+                raise ValueError(f"{name}: unknown material {value!r}; known: 'same', "
                                  + ", ".join(known))
             return match[0]
         if name == "oxide":

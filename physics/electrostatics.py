@@ -65,8 +65,10 @@ class Electrostatics:
 
     @property
     def ec_map_eV(self) -> np.ndarray:
-        """(nx, ny) bulk conduction-band edge, semiconductor affinity throughout [eV]."""
-        return -self.frame.bands.chi_eV - self.psi_V
+        """(nx, ny) bulk conduction-band edge, the semiconductor affinity of each x
+        throughout the column (the source material's in a heterojunction source) [eV]."""
+        chi = self.frame.bands.chi_eV
+        return -(chi if np.ndim(chi) == 0 else np.asarray(chi)[:, None]) - self.psi_V
 
 
 def solve_electrostatics(

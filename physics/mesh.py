@@ -3,7 +3,8 @@
 x runs along transport (source, channel, drain), y across the layer stack. Materials
 are uniform along x for each y layer (the dielectric covers the whole length; gates
 and contacts are boundary conditions), so a layer stack in y plus an x axis describes
-the structure. Nodes sit on every interface, junction and gate edge; spacing is fine
+the structure; a heterojunction source adds a per-cell permittivity
+(`Mesh.cell_permittivity_xy`). Nodes sit on every interface, junction and gate edge; spacing is fine
 near the junctions and grows smoothly (at most by ``growth`` per cell) into the
 contacts. Finite-volume control volumes are the half-cells around each node.
 """
@@ -70,12 +71,16 @@ class Mesh:
     y_nm : (ny,) node positions across the stack [nm].
     cell_permittivity : (ny-1,) relative permittivity of each y cell [-].
     cell_semiconductor : (ny-1,) True where the y cell is semiconductor.
+    cell_permittivity_xy : (nx-1, ny-1) relative permittivity of every cell [-], or None
+        when it does not vary along x (then `cell_permittivity` holds it). Set for a
+        heterojunction of two semiconductors of different permittivity.
     """
 
     x_nm: np.ndarray
     y_nm: np.ndarray
     cell_permittivity: np.ndarray
     cell_semiconductor: np.ndarray
+    cell_permittivity_xy: np.ndarray | None = None
 
     @property
     def nx(self) -> int:

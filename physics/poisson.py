@@ -90,6 +90,8 @@ class BandParameters:
     chi_eV : electron affinity [eV]; eg_eV : gap [eV]; nc_cm3, nv_cm3 : effective
     densities of states [cm^-3]; kT_eV : thermal energy [eV]; dec_eV, dev_eV :
     confinement shifts of the lowest conduction / highest valence subband [eV].
+    Each material parameter is a number, or an (nx,) array along x (a heterojunction:
+    the material of each node); arrays apply along the first axis of the potential.
     """
 
     chi_eV: float
@@ -99,14 +101,37 @@ class BandParameters:
     kT_eV: float
     dec_eV: float = 0.0
     dev_eV: float = 0.0
+    #: a heterointerface node whose control volume is split between two materials:
+    #: (node index along x, share of the volume on the source side, the source side's
+    #: scalar BandParameters); its densities are the volume-weighted mean of both
+    interface: tuple[int, float, BandParameters] | None = None
+
+    @property
+    def varies(self) -> bool:
+        """True when any parameter is an array along x (a heterojunction)."""
+        return any(np.ndim(v) for v in (self.chi_eV, self.eg_eV, self.nc_cm3, self.nv_cm3,
+                                        self.dec_eV, self.dev_eV))
+
+    def at(self, index: np.ndarray | int) -> BandParameters:
+        """The parameters at some nodes along x (self when they do not vary)."""
+        if not self.varies:
+            return self
+
+        def pick(v):
+            return v if np.ndim(v) == 0 else np.asarray(v)[index]
+
+        return BandParameters(pick(self.chi_eV), pick(self.eg_eV), pick(self.nc_cm3),
+                              pick(self.nv_cm3), self.kT_eV, pick(self.dec_eV),
+                              pick(self.dev_eV))  # (contacts: no interface node)
 
     def ec_eV(self, psi_V: np.ndarray) -> np.ndarray:
         """Confinement-shifted conduction edge (2) [eV]."""
-        return -self.chi_eV - psi_V + self.dec_eV
+        return -_along(self.chi_eV, psi_V) - psi_V + _along(self.dec_eV, psi_V)
 
     def ev_eV(self, psi_V: np.ndarray) -> np.ndarray:
         """Confinement-shifted valence edge (2) [eV]."""
-        return -self.chi_eV - self.eg_eV - psi_V - self.dev_eV
+        return (-_along(self.chi_eV, psi_V) - _along(self.eg_eV, psi_V) - psi_V
+                - _along(self.dev_eV, psi_V))
 
     def densities(
         self, psi_V: np.ndarray, efn_eV: np.ndarray, efp_eV: np.ndarray
@@ -116,11 +141,29 @@ class BandParameters:
         eta_p = (self.ev_eV(psi_V) - efp_eV) / self.kT_eV
         fn, fn1 = fermi_half_and_minus_half(eta_n)
         fp, fp1 = fermi_half_and_minus_half(eta_p)
-        n = self.nc_cm3 * fn
-        p = self.nv_cm3 * fp
-        dn = self.nc_cm3 * fn1 / self.kT_eV
-        dp = -self.nv_cm3 * fp1 / self.kT_eV
+        nc, nv = _along(self.nc_cm3, psi_V), _along(self.nv_cm3, psi_V)
+        n = nc * fn
+        p = nv * fp
+        dn = nc * fn1 / self.kT_eV
+        dp = -nv * fp1 / self.kT_eV
+        if self.interface is not None and np.shape(psi_V)[:1] == np.shape(self.chi_eV):
+            i, w, other = self.interface
+            efn_i = np.asarray(efn_eV)[i] if np.ndim(efn_eV) else efn_eV
+            efp_i = np.asarray(efp_eV)[i] if np.ndim(efp_eV) else efp_eV
+            n_s, p_s, dn_s, dp_s = other.densities(np.asarray(psi_V)[i], efn_i, efp_i)
+            n, p, dn, dp = (np.array(a, float, copy=True) for a in (n, p, dn, dp))
+            n[i] = w * n_s + (1 - w) * n[i]
+            p[i] = w * p_s + (1 - w) * p[i]
+            dn[i] = w * dn_s + (1 - w) * dn[i]
+            dp[i] = w * dp_s + (1 - w) * dp[i]
         return n, p, dn, dp
+
+
+def _along(value, psi_V: np.ndarray):
+    """A number as it is; an (nx,) array shaped to broadcast along the first axis of psi."""
+    if np.ndim(value) == 0:
+        return value
+    return np.reshape(value, np.shape(value) + (1,) * (np.ndim(psi_V) - 1))
 
 
 def neutral_potential(
@@ -208,10 +251,21 @@ class PoissonOperator:
         hx, hy = np.diff(mesh.x_nm), np.diff(mesh.y_nm)
         eps = mesh.cell_permittivity
         dx = mesh.dx_nm
-        # face "area" (length per unit depth) of an x-face at node row j, eps-weighted
-        ay = 0.5 * (np.concatenate([[0.0], hy * eps]) + np.concatenate([hy * eps, [0.0]]))
-        cx = ay[None, :] / hx[:, None]  # (nx-1, ny) coupling (i,j)-(i+1,j)
-        cy = dx[:, None] * (eps / hy)[None, :]  # (nx, ny-1) coupling (i,j)-(i,j+1)
+        if mesh.cell_permittivity_xy is None:
+            # face "area" (length per unit depth) of an x-face at node row j, eps-weighted
+            ay = 0.5 * (np.concatenate([[0.0], hy * eps]) + np.concatenate([hy * eps, [0.0]]))
+            cx = ay[None, :] / hx[:, None]  # (nx-1, ny) coupling (i,j)-(i+1,j)
+            cy = dx[:, None] * (eps / hy)[None, :]  # (nx, ny-1) coupling (i,j)-(i,j+1)
+        else:
+            # per-cell permittivity: each face of a control volume crosses two cells
+            # (half of each), eps-weighted by the cell it lies in
+            e2 = mesh.cell_permittivity_xy
+            fy = hy[None, :] * e2  # (nx-1, ny-1)
+            pad = np.zeros((nx - 1, 1))
+            cx = 0.5 * (np.hstack([pad, fy]) + np.hstack([fy, pad])) / hx[:, None]
+            fx = hx[:, None] * e2
+            padx = np.zeros((1, ny - 1))
+            cy = 0.5 * (np.vstack([padx, fx]) + np.vstack([fx, padx])) / hy[None, :]
         self.shape = (nx, ny)
         self.area_semi = dx[:, None] * mesh.dy_semiconductor_nm[None, :]  # [nm^2]
         n = nx * ny

@@ -71,6 +71,7 @@ def slice_profile(
     dx = np.diff(x)
     change = np.maximum(np.abs(np.diff(ec)), np.abs(np.diff(ev)))
     n = np.maximum(1, np.maximum(np.ceil(change / max_step_eV), np.ceil(dx / max_slice_nm)))
+    n = np.where(dx > 0, n, 1)  # a zero-length segment (a sharp step) is one empty slice
     n = n.astype(np.int64)
     seg = np.repeat(np.arange(dx.size), n)
     frac = (np.arange(n.sum()) - np.repeat(np.cumsum(n) - n, n) + 0.5) / np.repeat(n, n)
@@ -80,14 +81,14 @@ def slice_profile(
     return h, ec_mid, ev_mid
 
 
-def _transmission_loop(h, ecm, evm, ec_src, ev_src, ec_drn, ev_drn, mass_t, kvals,
-                       energies):  # pragma: no cover - compiled
+def _transmission_loop(h, ecm, evm, ec_src, ev_src, ec_drn, ev_drn, mass_slice, mass_src,
+                       mass_drn, kvals, energies):  # pragma: no cover - compiled
     nk, ne = kvals.shape
     ns = h.size
     out = np.zeros((nk, ne))
-    p_slice = np.sqrt(HBAR2_2M0_EV_NM2 * np.maximum(ecm - evm, 1e-6) / mass_t)
-    p_src = np.sqrt(HBAR2_2M0_EV_NM2 * max(ec_src - ev_src, 1e-6) / mass_t)
-    p_drn = np.sqrt(HBAR2_2M0_EV_NM2 * max(ec_drn - ev_drn, 1e-6) / mass_t)
+    p_slice = np.sqrt(HBAR2_2M0_EV_NM2 * np.maximum(ecm - evm, 1e-6) / mass_slice)
+    p_src = np.sqrt(HBAR2_2M0_EV_NM2 * max(ec_src - ev_src, 1e-6) / mass_src)
+    p_drn = np.sqrt(HBAR2_2M0_EV_NM2 * max(ec_drn - ev_drn, 1e-6) / mass_drn)
     for kk in range(nk):
         for ie in range(ne):
             e = energies[ie]
@@ -188,21 +189,33 @@ def two_band_transmission(
     Parameters
     ----------
     x_nm : (nx,) [nm]; ec_eV, ev_eV : (nx,) band edges at k = 0 [eV]; mass_t : m_t = 2 m_r
-    [m0]; k_per_nm : (nk, nE) transverse wave-vector of each (row, energy) [1/nm];
+    [m0], a number or (nx-1,) per cell (a heterojunction: P^2 = hbar^2 E_g/(2 m_t) then
+    varies along x like E_g, inside the symmetrised operator);
+    k_per_nm : (nk, nE) transverse wave-vector of each (row, energy) [1/nm];
     energy_eV : (nE,) [eV]; max_step_eV, max_slice_nm : slicing (see `slice_profile`).
 
     Returns
     -------
     (nk, nE) transmission T in [0, 1]; 0 where either contact has no propagating state.
     """
-    if not (np.isfinite(mass_t) and mass_t > 0):
+    masses = np.asarray(mass_t, float)
+    if not (np.all(np.isfinite(masses)) and np.all(masses > 0)):
         raise ValueError(f"mass_t: {mass_t!r} must be finite and > 0 [m0]")
     ec = np.asarray(ec_eV, float)
     ev = np.asarray(ev_eV, float)
     h, ecm, evm = slice_profile(x_nm, ec, ev, max_step_eV, max_slice_nm)
+    if masses.ndim == 0:
+        m_slice = np.full(h.size, float(masses))
+        m_src = m_drn = float(masses)
+    else:  # the cell holding each slice's midpoint
+        x = np.asarray(x_nm, float)
+        mid = x[0] + np.cumsum(h) - 0.5 * h
+        cell = np.clip(np.searchsorted(x, mid) - 1, 0, x.size - 2)
+        m_slice = np.ascontiguousarray(masses[cell])
+        m_src, m_drn = float(masses[0]), float(masses[-1])
     kv = np.ascontiguousarray(np.atleast_2d(np.asarray(k_per_nm, float)))
     e = np.ascontiguousarray(np.asarray(energy_eV, float))
     if kv.shape[1] != e.size:
         raise ValueError(f"k_per_nm: shape {kv.shape} does not match {e.size} energies")
     return _compiled_kernel()(h, ecm, evm, float(ec[0]), float(ev[0]), float(ec[-1]),
-                                float(ev[-1]), float(mass_t), kv, e)
+                                float(ev[-1]), m_slice, m_src, m_drn, kv, e)

@@ -37,6 +37,7 @@ from sub60.physics.band_tails import band_tail_current
 from sub60.physics.bandgap_narrowing import has_narrowing_model, narrowed_profiles
 from sub60.physics.design import Design, check_bias
 from sub60.physics.electrostatics import Electrostatics, solve_electrostatics
+from sub60.physics.heterojunction import source_cells, source_nodes
 from sub60.physics.materials import check_tunnelling_material, group_iv_germanium_fraction
 from sub60.physics.metrics import (
     Metrics,
@@ -47,7 +48,7 @@ from sub60.physics.metrics import (
 from sub60.physics.poisson import SolverError
 from sub60.physics.statistics import inverse_fermi_half
 from sub60.physics.structure import band_parameters
-from sub60.physics.subbands import device_subbands, valley_warning
+from sub60.physics.subbands import region_subbands, valley_warning
 from sub60.physics.tables import table
 from sub60.physics.transport import (
     BandProfile,
@@ -332,26 +333,35 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
     """
     d = es.design
     t0 = time.perf_counter()
-    sb = device_subbands(d)
-    cond, val = sb.profiles(es.y_nm, es.ec_map_eV, es.frame.bands.eg_eV)
+    sb = region_subbands(d)
+    x = es.x_nm
+    if d.is_heterojunction:
+        cond, val = sb.profiles(es.y_nm, es.ec_map_eV, es.frame.bands.eg_eV,
+                                source_nodes(d, x))
+    else:
+        cond, val = sb.profiles(es.y_nm, es.ec_map_eV, es.frame.bands.eg_eV)
     t1 = time.perf_counter()
     kT = es.frame.bands.kT_eV
     efs, efd = 0.0, -es.vd_V
-    x = es.x_nm
     if d.bandgap_narrowing == "on":
         cond, val = narrowed_profiles(d, es.frame.donors_cm3, es.frame.acceptors_cm3, cond, val)
-    cprof = [BandProfile(s.label, cond[i], s.inplane_mass) for i, s in enumerate(sb.conduction)]
-    vprof = [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)]
+    x_t, cprof, vprof = _transport_profiles(es, sb, cond, val)
     weights = sb.pair_weights()
     indirect = group_iv_germanium_fraction(d.semiconductor) is not None
-    if indirect:  # Si, Ge, SiGe: indirect
+    if indirect:  # Si, Ge, SiGe body: indirect
         from sub60.physics.indirect_tunnelling import indirect_band_to_band  # loaded when used
 
-        spectrum = indirect_band_to_band(d.semiconductor, d.temperature_K, d.body_thickness_nm,
-                                         x, cond.min(axis=0), val.max(axis=0), efs, efd, kT,
-                                         bulk_gap_eV=float(es.frame.bands.eg_eV))
+        # a heterojunction: the rate parameters of a group-IV source (where the holes
+        # start), the body's otherwise; the alignment enters through the path lengths
+        rec = d.source_semiconductor if group_iv_germanium_fraction(
+            d.source_semiconductor) is not None else d.semiconductor
+        cond_t = np.array([p.edge_eV for p in cprof])
+        val_t = np.array([p.edge_eV for p in vprof])
+        spectrum = indirect_band_to_band(rec, d.temperature_K, d.body_thickness_nm,
+                                         x_t, cond_t.min(axis=0), val_t.max(axis=0), efs, efd,
+                                         kT, bulk_gap_eV=float(np.min(es.frame.bands.eg_eV)))
     else:
-        spectrum = band_to_band(x, cprof, vprof, efs, efd, kT, model, pair_weights=weights)
+        spectrum = band_to_band(x_t, cprof, vprof, efs, efd, kT, model, pair_weights=weights)
     i_n = thermionic_current(cprof, "conduction", efs, efd, kT)
     i_p = thermionic_current(vprof, "valence", efs, efd, kT)
     if es.vd_V == 0:
@@ -366,7 +376,7 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         ch = (x >= d.gate_start_nm) & (x <= d.gate_end_nm)
         closure = max(0.0, float(cond.min(axis=0)[ch].min() - val.max(axis=0)[src].max()))
         with_tails = band_tail_current(
-            x, cprof, vprof, efs, efd, kT, spectrum.current_uA_per_um, weights,
+            x_t, cprof, vprof, efs, efd, kT, spectrum.current_uA_per_um, weights,
             1e-3 * d.tail_energy_source_meV,
             1e-3 * d.tail_energy_channel_meV, closure, model)
         tail_excess = with_tails - spectrum.current_uA_per_um
@@ -387,6 +397,52 @@ def bias_point_from_electrostatics(es: Electrostatics, model: str = "two-band") 
         tail_excess_uA_per_um=tail_excess, trap_assisted_uA_per_um=trap_assisted,
         timings_s=timings,
         warnings=design_warnings(d) + _bending_warning(es, sb))
+
+
+def _transport_profiles(es: Electrostatics, sb, cond: np.ndarray, val: np.ndarray
+                        ) -> tuple[np.ndarray, list[BandProfile], list[BandProfile]]:
+    """The path and subband profiles that transport integrates.
+
+    Homojunction: the mesh nodes, one in-plane mass per subband. Heterojunction: the
+    interface node appears twice, first with the source material's edges (its affinity,
+    gap and confinement at the node's potential) and then with the body's, so that the
+    WKB and exact transmissions see a sharp step (a zero-length segment) instead of a
+    one-cell ramp; each cell carries its own material's masses (`transport.BandProfile`),
+    the conduction subbands the body's mass at the drain end and the valence subbands the
+    source material's at the source end.
+    """
+    d = es.design
+    x = es.x_nm
+    if not d.is_heterojunction:
+        return (x, [BandProfile(s.label, cond[i], s.inplane_mass)
+                    for i, s in enumerate(sb.conduction)],
+                [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)])
+    bands = es.frame.bands
+    ih = int(np.argmin(np.abs(x - d.heterointerface_position_nm)))
+    chi, eg = np.asarray(bands.chi_eV), np.asarray(bands.eg_eV)
+    cs, vs, cb, vb = sb.interface_values(es.y_nm, es.ec_map_eV[ih], float(chi[ih] - chi[ih - 1]),
+                                         float(eg[ih]), float(eg[ih - 1]))
+    # the source side's edges at the interface node, keeping any shift already applied
+    # to the node's (body) edges (band-gap narrowing)
+    x_t = np.insert(x, ih, x[ih])
+    cond_t = np.insert(cond, ih, cond[:, ih] + (cs - cb), axis=1)
+    val_t = np.insert(val, ih, val[:, ih] + (vs - vb), axis=1)
+    cprof, vprof = _hetero_band_profiles(d, sb, x_t, cond_t, val_t)
+    return x_t, cprof, vprof
+
+
+def _hetero_band_profiles(design: Design, sb, x_nm: np.ndarray, cond: np.ndarray,
+                          val: np.ndarray) -> tuple[list[BandProfile], list[BandProfile]]:
+    cells = source_cells(design, x_nm)
+
+    def seg(src, body):
+        return np.where(cells, src.inplane_mass, body.inplane_mass)
+
+    cprof = [BandProfile(b.label, cond[i], b.inplane_mass, seg(s, b))
+             for i, (b, s) in enumerate(zip(sb.conduction, sb.source_conduction, strict=True))]
+    vprof = [BandProfile(b.label, val[i], s.inplane_mass, seg(s, b))
+             for i, (b, s) in enumerate(zip(sb.valence, sb.source_valence, strict=True))]
+    return cprof, vprof
 
 
 @dataclass(frozen=True)
@@ -419,7 +475,7 @@ def compare_transmissions(bp: BiasPoint, pair: str | None = None, n: int = 200,
     TransmissionComparison, or None when no pair carries current or the pair's source
     valence edge lies below its drain conduction edge (no band-to-band energies).
     """
-    sb = device_subbands(bp.design)
+    sb = region_subbands(bp.design)
     if pair is None:
         carrying = {k: v for k, v in bp.pair_currents_uA_per_um.items() if v != 0.0}
         if not carrying:
@@ -430,14 +486,15 @@ def compare_transmissions(bp: BiasPoint, pair: str | None = None, n: int = 200,
         raise ValueError(f"pair: {pair!r} unknown; allowed {', '.join(names)}")
     vlab, clab = pair.split("-")
     iv, ic = bp.valence_labels.index(vlab), bp.conduction_labels.index(clab)
-    cb = BandProfile(clab, bp.conduction_eV[ic], sb.conduction[ic].inplane_mass)
-    vb = BandProfile(vlab, bp.valence_eV[iv], sb.valence[iv].inplane_mass)
+    x_t, cprof, vprof = _transport_profiles(bp.electrostatics, sb, bp.conduction_eV,
+                                            bp.valence_eV)
+    cb, vb = cprof[ic], vprof[iv]
     lo, hi = cb.edge_eV[-1], vb.edge_eV[0]
     if hi <= lo:
         return None
     e = np.linspace(lo, hi, n + 2)[1:-1]
-    _, t_wkb = pair_transmission(bp.x_nm, cb, vb, e, wkb_model, k_integral=False)
-    _, t_exact = pair_transmission(bp.x_nm, cb, vb, e, "two-band-exact", k_integral=False)
+    _, t_wkb = pair_transmission(x_t, cb, vb, e, wkb_model, k_integral=False)
+    _, t_exact = pair_transmission(x_t, cb, vb, e, "two-band-exact", k_integral=False)
     return TransmissionComparison(pair, e, t_wkb, t_exact, wkb_model)
 
 
@@ -489,13 +546,16 @@ def _design_warnings(design: Design) -> tuple[str, ...]:
         out.append(f"bandgap_narrowing is on, but sub60 has no band-gap-narrowing model for "
                    f"{design.material}: no narrowing applied.")
     bands = band_parameters(design)
+    nc_src, nv_src = design.source_semiconductor.effective_dos_cm3(design.temperature_K)
     n_src = ("source_doping_cm3", design.source_doping_cm3,
-             bands.nv_cm3 if design.source_type == "p" else bands.nc_cm3)
+             nv_src if design.source_type == "p" else nc_src)
     for name, dop, dos in (n_src, ("drain_doping_cm3", design.drain_doping_cm3, bands.nc_cm3)):
         depth = bands.kT_eV * float(inverse_fermi_half(dop / dos))
         if depth > DEGENERACY_WARN_EV:
+            where = design.source_semiconductor_name if name.startswith("source") \
+                else design.material
             out.append(f"{name} = {dop:.3g} cm^-3 puts the Fermi level {depth:.2f} eV inside the "
-                       f"band of {design.material} with the model's parabolic density of states; "
+                       f"band of {where} with the model's parabolic density of states; "
                        "real bands (non-parabolic, satellite valleys) hold it lower, so currents "
                        "from this contact are overstated.")
     return tuple(out)

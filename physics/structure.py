@@ -57,8 +57,11 @@ def build_mesh(design: Design, resolution: float = 1.0) -> Mesh:
     refine = [(xj1, 0.2 / r, 5.0), (xj2, 0.25 / r, 4.0)]
     if abs(design.gate_start_nm - xj1) > 1e-9:
         refine.append((design.gate_start_nm, 0.3 / r, 1.0))
-    x = graded_axis(design.total_length_nm, [xj1, xj2, design.gate_start_nm], refine,
-                    h_max_nm=2.0 / r, growth=0.15)
+    required = [xj1, xj2, design.gate_start_nm]
+    if design.is_heterojunction:  # the heterointerface is a node, refined like the junction
+        required.append(design.heterointerface_position_nm)
+        refine.append((design.heterointerface_position_nm, 0.2 / r, 2.0))
+    x = graded_axis(design.total_length_nm, required, refine, h_max_nm=2.0 / r, growth=0.15)
     sc_rec = design.semiconductor
     eps_ox = design.gate_permittivity
     tox, ts = design.oxide_thickness_nm, design.body_thickness_nm
@@ -69,7 +72,15 @@ def build_mesh(design: Design, resolution: float = 1.0) -> Mesh:
     layers = [bottom, (ts, sc_rec.permittivity, True), (tox, eps_ox, False)]
     h_bottom = h_ox if design.gate_layout == "double" else min(0.5, h_body * 1.5)
     y, eps, semi, _ = layered_y_axis(layers, [h_bottom, h_body, h_ox], resolution=r)
-    return Mesh(x_nm=x, y_nm=y, cell_permittivity=eps, cell_semiconductor=semi)
+    eps_xy = None
+    src_rec = design.source_semiconductor
+    if design.is_heterojunction and src_rec.permittivity != sc_rec.permittivity:
+        from sub60.physics.heterojunction import source_cells
+
+        eps_xy = np.repeat(eps[None, :], x.size - 1, axis=0)
+        eps_xy[np.ix_(source_cells(design, x), semi)] = src_rec.permittivity
+    return Mesh(x_nm=x, y_nm=y, cell_permittivity=eps, cell_semiconductor=semi,
+                cell_permittivity_xy=eps_xy)
 
 
 def doping_profile(design: Design, x_nm: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -102,6 +113,46 @@ def band_parameters(design: Design, dec_eV: float = 0.0, dev_eV: float = 0.0) ->
     return BandParameters(chi_eV=rec.electron_affinity_eV, eg_eV=rec.bandgap_eV(design.temperature_K),
                           nc_cm3=nc, nv_cm3=nv, kT_eV=thermal_energy_eV(design.temperature_K),
                           dec_eV=dec_eV, dev_eV=dev_eV)
+
+
+def band_parameters_along(design: Design, x_nm: np.ndarray, shifts_body: tuple[float, float] =
+                          (0.0, 0.0), shifts_source: tuple[float, float] = (0.0, 0.0)
+                          ) -> BandParameters:
+    """Charge-model parameters node by node along x for a heterojunction [eV, cm^-3].
+
+    Source nodes (`heterojunction.source_nodes`) take the source material's gap and
+    densities of states, the affinity of `heterojunction.source_affinity_eV` (band
+    offsets of Vurgaftman, Meyer & Ram-Mohan 2001) and the source region's confinement
+    shifts (dE_c, dE_v); the others the body's. The interface node's control volume is
+    split: its densities are the volume-weighted mean of both materials'
+    (`BandParameters.interface`). A homojunction gets the scalar `band_parameters`.
+    """
+    body = band_parameters(design, *shifts_body)
+    if not design.is_heterojunction:
+        return body
+    from sub60.physics.heterojunction import source_affinity_eV, source_nodes
+
+    rec = design.source_semiconductor
+    nc, nv = rec.effective_dos_cm3(design.temperature_K)
+    src = source_nodes(design, x_nm)
+    source_side = BandParameters(
+        chi_eV=source_affinity_eV(design), eg_eV=float(rec.bandgap_eV(design.temperature_K)),
+        nc_cm3=float(nc), nv_cm3=float(nv), kT_eV=body.kT_eV, dec_eV=shifts_source[0],
+        dev_eV=shifts_source[1])
+    # the interface node's control volume: its source-side half holds source material
+    x = np.asarray(x_nm, float)
+    ih = int(np.argmin(np.abs(x - design.heterointerface_position_nm)))
+    share = 0.5 * (x[ih] - x[ih - 1]) / (0.5 * (x[ih + 1] - x[ih - 1]))
+
+    def along(v_src: float, v_body: float) -> np.ndarray:
+        return np.where(src, float(v_src), float(v_body))
+
+    return BandParameters(
+        chi_eV=along(source_side.chi_eV, body.chi_eV), eg_eV=along(source_side.eg_eV, body.eg_eV),
+        nc_cm3=along(nc, body.nc_cm3), nv_cm3=along(nv, body.nv_cm3), kT_eV=body.kT_eV,
+        dec_eV=along(shifts_source[0], shifts_body[0]),
+        dev_eV=along(shifts_source[1], shifts_body[1]),
+        interface=(ih, float(share), source_side))
 
 
 @dataclass(frozen=True)
@@ -137,6 +188,7 @@ class DeviceFrame:
         """Bytes of the frame's arrays (mesh, doping, masks, operator) [B]."""
         m, op = self.mesh, self.operator
         return array_bytes(m.x_nm, m.y_nm, m.cell_permittivity, m.cell_semiconductor,
+                           m.cell_permittivity_xy,
                            self.donors_cm3, self.acceptors_cm3, self.gate_nodes,
                            self.back_nodes, self.contact_nodes, op.area_semi, op.fixed,
                            op.banded, op.matrix.data, op.matrix.indices, op.matrix.indptr,
@@ -183,9 +235,14 @@ def _frame(design: Design, resolution: float, quantum_correction: bool) -> Devic
         from sub60.physics.subbands import device_subbands
 
         sb = device_subbands(design)
-        bands = band_parameters(design, sb.conduction_shift_eV, sb.valence_shift_eV)
+        shifts = (sb.conduction_shift_eV, sb.valence_shift_eV)
+        bands = band_parameters(design, *shifts)
+        if design.is_heterojunction:  # confinement of the source region: its own material
+            sb_src = device_subbands(design.source_body_design())
+            bands = band_parameters_along(design, mesh.x_nm, shifts,
+                                          (sb_src.conduction_shift_eV, sb_src.valence_shift_eV))
     else:
-        bands = band_parameters(design)
+        bands = band_parameters_along(design, mesh.x_nm)
     nx, ny = mesh.nx, mesh.ny
     tol = 1e-9
     gated_x = (mesh.x_nm >= design.gate_start_nm - tol) & (mesh.x_nm <= design.gate_end_nm + tol)
@@ -205,7 +262,7 @@ def _frame(design: Design, resolution: float, quantum_correction: bool) -> Devic
     op = PoissonOperator(mesh, gate | back | contact)
     return DeviceFrame(design, mesh, donors, acceptors, bands, gate, back, contact, op, body_j,
                        resolution=resolution, quantum_correction=quantum_correction,
-                       interface_traps=interface_traps(design, mesh, bands))
+                       interface_traps=interface_traps(design, mesh, bands.at(-1)))
 
 
 def gate_oxide_interface_nodes(design: Design, mesh: Mesh) -> np.ndarray:
@@ -269,7 +326,7 @@ def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProb
         efn_end, efp_end = np.array([efd, efd]), np.array([efs, efs])
     else:
         efn_end, efp_end = np.array([efs, efd]), np.array([efs, efs])
-    psi_end = _contact_potentials(frame, round(vd_V, 12), net[ends], efn_end, efp_end)
+    psi_end = _contact_potentials(frame, round(vd_V, 12), ends, net[ends], efn_end, efp_end)
     values[0, :] = np.where(frame.contact_nodes[0], psi_end[0], values[0, :])
     values[-1, :] = np.where(frame.contact_nodes[-1], psi_end[1], values[-1, :])
     return PoissonProblem(mesh=mesh, donors_cm3=frame.donors_cm3, acceptors_cm3=frame.acceptors_cm3,
@@ -278,20 +335,21 @@ def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProb
                           interface_traps=frame.interface_traps)
 
 
-def _contact_potentials(frame: DeviceFrame, vd_key: float, net, efn, efp) -> np.ndarray:
+def _contact_potentials(frame: DeviceFrame, vd_key: float, ends, net, efn, efp) -> np.ndarray:
     cache = frame.contact_cache
     if vd_key not in cache:
         if len(cache) > 256:
             cache.clear()
         d = frame.design
+        bands = frame.bands.at(ends)
         polished = None
         if cache and (d.source_resistance_ohm_um > 0 or d.drain_resistance_ohm_um > 0):
             # the series-resistance loop visits a new internal V_d at every solve: Newton
             # from the nearest cached drain voltage instead of a fresh bisection
             nearest = min(cache, key=lambda v: abs(v - vd_key))
-            polished = _polish_neutral(frame.bands, net, efn, efp, cache[nearest])
+            polished = _polish_neutral(bands, net, efn, efp, cache[nearest])
         cache[vd_key] = polished if polished is not None else \
-            neutral_potential(frame.bands, net, efn, efp)
+            neutral_potential(bands, net, efn, efp)
     return cache[vd_key]
 
 

@@ -43,7 +43,7 @@ HH and LH subbands gets back the bulk two-band current.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cached_property, lru_cache
 
 import numpy as np
 
@@ -260,3 +260,117 @@ def valley_warning(design: Design) -> str | None:
             f"Gamma edge, Gamma C1 at {c1:.3f} eV): the tunnelling model uses the Gamma "
             "subbands only, so band-to-band currents (an indirect, phonon-assisted path "
             "here) and the electron charge are not reliable.")
+
+
+@dataclass(frozen=True, eq=False)
+class HeteroSubbands:
+    """Subbands of a body whose source region is of another material (heterojunction).
+
+    Each region has the flat-well subbands of its own material (masses, confinement
+    energies, |phi(y)|^2) in the same dielectric stack; a subband keeps its label across
+    the interface, and its edge profile, eq. (1), takes the source material's confinement
+    energy and weights at the source nodes and the body's elsewhere. The conduction and
+    valence tuples (labels, in-plane masses at the drain end) are the body's; the
+    valence subbands of the source, reordered to the body's labels, are `source_valence`.
+
+    Interband coupling, eq. (2): the envelope overlap of the source valence state with
+    the body conduction state (tunnelling runs from the source's valence band into the
+    channel's conduction band) times the hole kind's momentum-matrix share.
+    """
+
+    body: DeviceSubbands
+    source: DeviceSubbands
+
+    @property
+    def conduction(self) -> tuple[Subband, ...]:
+        return self.body.conduction
+
+    @property
+    def valence(self) -> tuple[Subband, ...]:
+        return self.body.valence
+
+    @property
+    def source_conduction(self) -> tuple[Subband, ...]:
+        """The source region's conduction subbands, in the body's label order."""
+        by_label = {s.label: s for s in self.source.conduction}
+        return tuple(by_label[s.label] for s in self.body.conduction)
+
+    @property
+    def source_valence(self) -> tuple[Subband, ...]:
+        """The source region's valence subbands, in the body's label order."""
+        by_label = {s.label: s for s in self.source.valence}
+        return tuple(by_label[s.label] for s in self.body.valence)
+
+    @property
+    def conduction_shift_eV(self) -> float:
+        return self.body.conduction_shift_eV
+
+    @property
+    def valence_shift_eV(self) -> float:
+        return self.body.valence_shift_eV
+
+    def interface_values(self, y_nodes_nm: np.ndarray, ec_column_eV: np.ndarray,
+                         affinity_step_eV: float, eg_body_eV: float, eg_source_eV: float):
+        """Subband edges on both sides of the heterointerface node, eq. (1) [eV].
+
+        Parameters
+        ----------
+        y_nodes_nm : (ny,) [nm]; ec_column_eV : (ny,) bulk conduction edge of the body
+        at the interface node [eV]; affinity_step_eV : chi_body - chi_source, the rise
+        of the bulk conduction edge from the body side to the source side [eV];
+        eg_body_eV, eg_source_eV : the bulk gaps [eV].
+
+        Returns
+        -------
+        (cond_source, val_source, cond_body, val_body) : each (n,) [eV]
+        """
+        col = np.asarray(ec_column_eV, float)[None, :]
+        cs, vs = self._source_in_body_order.profiles(y_nodes_nm, col + affinity_step_eV,
+                                                     eg_source_eV)
+        cb, vb = self.body.profiles(y_nodes_nm, col, eg_body_eV)
+        return cs[:, 0], vs[:, 0], cb[:, 0], vb[:, 0]
+
+    @cached_property
+    def _source_in_body_order(self) -> DeviceSubbands:
+        return DeviceSubbands(self.source_conduction, self.source_valence,
+                              self.source.electron_well)
+
+    def pair_weights(self) -> np.ndarray:
+        """(n_v, n_c) coupling of source valence m with body conduction n, eq. (2) [-]."""
+        out = np.empty((len(self.valence), len(self.conduction)))
+        for i, v in enumerate(self.source_valence):
+            for j, c in enumerate(self.conduction):
+                overlap = np.trapezoid(v.wavefunction * c.wavefunction, v.y_nm)
+                out[i, j] = v.momentum_weight * c.momentum_weight * overlap**2
+        return out
+
+    def profiles(self, y_nodes_nm: np.ndarray, ec_map_eV: np.ndarray, eg_eV,
+                 source_nodes: np.ndarray | None = None):
+        """Edge profiles along x, eq. (1), region by region.
+
+        Parameters
+        ----------
+        y_nodes_nm : (ny,) [nm]; ec_map_eV : (nx, ny) bulk conduction edge [eV];
+        eg_eV : bulk gap, a number or (nx,) [eV]; source_nodes : (nx,) True at the nodes
+        of source material (none when omitted).
+
+        Returns
+        -------
+        conduction : (n_c, nx) [eV]; valence : (n_v, nx) [eV]
+        """
+        cond, val = self.body.profiles(y_nodes_nm, ec_map_eV, eg_eV)
+        if source_nodes is None or not np.any(source_nodes):
+            return cond, val
+        cond_s, val_s = self._source_in_body_order.profiles(y_nodes_nm, ec_map_eV, eg_eV)
+        return (np.where(source_nodes[None, :], cond_s, cond),
+                np.where(source_nodes[None, :], val_s, val))
+
+
+@lru_cache(maxsize=64)
+def region_subbands(design: Design) -> DeviceSubbands | HeteroSubbands:
+    """The subbands of a design: `device_subbands` for a homojunction, `HeteroSubbands`
+    (each region's own material) for a heterojunction source."""
+    if not design.is_heterojunction:
+        return device_subbands(design)
+    return HeteroSubbands(device_subbands(design.homojunction()),
+                          device_subbands(design.source_body_design()))

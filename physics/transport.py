@@ -60,11 +60,36 @@ def fermi(energy_eV: np.ndarray, fermi_level_eV: float, kT_eV: float) -> np.ndar
 
 @dataclass(frozen=True)
 class BandProfile:
-    """One subband edge along x. edge_eV : (nx,) [eV]; mass : in-plane mass [m0]."""
+    """One subband edge along x.
+
+    edge_eV : (nx,) [eV]; mass : in-plane mass at the contact the carriers come from or
+    go to (the drain end for a conduction subband, the source end for a valence one)
+    [m0]; segment_mass : (nx-1,) in-plane mass of each cell, or None when ``mass``
+    holds everywhere (a heterojunction: each region's own material) [m0].
+    """
 
     label: str
     edge_eV: np.ndarray
     mass: float
+    segment_mass: np.ndarray | None = None
+
+    def masses(self, n_segments: int) -> np.ndarray:
+        """(n_segments,) in-plane mass of each cell [m0]."""
+        if self.segment_mass is None:
+            return np.full(n_segments, float(self.mass))
+        return np.asarray(self.segment_mass, float)
+
+
+def tunnelling_mass(cb: BandProfile, vb: BandProfile, model: str = "two-band"):
+    """Tunnelling mass of a pair [m0]: m_t = 2 m_r (two-band; `physics.tunneling` eq. (1))
+    or the conduction mass (one-band); a number, or (nx-1,) per cell when either profile
+    has segment masses (a heterojunction: the local material's masses)."""
+    if cb.segment_mass is None and vb.segment_mass is None:
+        m_r = cb.mass * vb.mass / (cb.mass + vb.mass)
+        return cb.mass if model == "one-band" else 2 * m_r
+    n = (cb.segment_mass if cb.segment_mass is not None else vb.segment_mass).size
+    mc, mv = cb.masses(n), vb.masses(n)
+    return mc if model == "one-band" else 2 * mc * mv / (mc + mv)
 
 
 @dataclass(frozen=True)
@@ -147,8 +172,7 @@ def _pair_transmission_integral(
 ) -> tuple[np.ndarray, np.ndarray]:
     """For one (valence, conduction) subband pair: (1/pi) int_0^inf T(E, k) dk [1/m]
     (zero without ``k_integral``) and T(E, k = 0), at each energy."""
-    m_r = cb.mass * vb.mass / (cb.mass + vb.mass)
-    m_t = cb.mass if model == "one-band" else 2 * m_r
+    m_t = tunnelling_mass(cb, vb, model)
     # transverse kinetic energy closes the source-valence/drain-conduction overlap:
     # energy E stays connected for a k^2 < min((Ev_src - E)/b, (E - Ec_drn)/a),
     # so each energy gets its own Gauss-Legendre nodes on [0, k_max(E)]

@@ -176,13 +176,14 @@ def trap_assisted_current(es: Electrostatics) -> float:
 
     Uses ``es.design``'s `tat_lifetime_ns` and `tat_trap_level_eV` (0 lifetime: 0; a
     level beyond 2 kT of a band edge of the shifted gap is held there); the densities
-    and potential of the electrostatics on its semiconductor nodes.
+    and potential of the electrostatics on its semiconductor nodes. With a
+    heterojunction source the body material's parameters are used everywhere.
     """
     d = es.design
     if d.tat_lifetime_ns <= 0:
         return 0.0
     frame = es.frame
-    bands = frame.bands
+    bands = frame.bands.at(-1)  # the body material's (a heterojunction source: approximation)
     weight = frame.mesh.dy_semiconductor_nm
     rows = weight > 0
     rec = d.semiconductor

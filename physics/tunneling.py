@@ -138,7 +138,9 @@ def wkb_exponent_transverse(
     ----------
     x_nm : (nx,) [nm]; ec_eV, ev_eV : (nx,) band edges at k = 0 [eV];
     k_per_nm : (nk, nE) transverse wave-vector of each (node, energy) [1/nm];
-    energy_eV : (nE,) [eV]; mass_rel : tunnelling mass [m0]; model : kappa model.
+    energy_eV : (nE,) [eV]; mass_rel : tunnelling mass [m0], a number or (nx-1,) one per
+    segment (a heterojunction: each segment's material; k is conserved, so
+    kappa^2 = kappa_0^2(m_t(x)) + k^2 segment by segment); model : kappa model.
 
     Returns
     -------
@@ -150,6 +152,10 @@ def wkb_exponent_transverse(
     e = np.asarray(energy_eV, float)
     ec = np.asarray(ec_eV, float)
     ev = np.asarray(ev_eV, float)
+    if np.ndim(mass_rel) > 0:
+        return _exponent_varying_mass(np.asarray(x_nm, float), ec, ev, float(up_eV_nm2),
+                                      float(down_eV_nm2), kv, e, np.asarray(mass_rel, float),
+                                      model)
     kernel = _compiled_kernel()
     if kernel is not None:
         return kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
@@ -173,6 +179,54 @@ def wkb_exponent_transverse(
                     for i in range(x.size - 1))
             else:
                 out[kk, ie] = wkb_exponent(x_nm, ec_k, ev_k, e[ie:ie + 1], mass_rel, model)[0]
+    return out
+
+
+def _exponent_varying_mass(x, ec, ev, up, down, kv, e, mass_seg, model):
+    """`wkb_exponent_transverse` with one tunnelling mass per segment [-]."""
+    if mass_seg.shape != (x.size - 1,):
+        raise ValueError(f"mass_rel: {mass_seg.shape} masses for {x.size - 1} segments")
+    try:
+        from sub60.physics._wkb_compiled import wkb_transverse_kernel_varying
+    except ImportError:  # pragma: no cover - numba is a declared dependency
+        return wkb_exponent_varying_reference(x, ec, ev, up, down, kv, e, mass_seg, model)
+    return wkb_transverse_kernel_varying(
+        np.ascontiguousarray(x), np.ascontiguousarray(ec), np.ascontiguousarray(ev), up, down,
+        np.ascontiguousarray(kv), np.ascontiguousarray(e), np.ascontiguousarray(mass_seg),
+        model == "two-band", _GL_X, _GL_W)
+
+
+def wkb_exponent_varying_reference(
+    x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray, up_eV_nm2: float,
+    down_eV_nm2: float, k_per_nm: np.ndarray, energy_eV: np.ndarray, mass_seg: np.ndarray,
+    model: str = "two-band",
+) -> np.ndarray:
+    """Plain-Python reference of the per-segment-mass exponent (what the compiled kernel
+    is tested against); arguments as `wkb_exponent_transverse` [-]."""
+    x = np.asarray(x_nm, float)
+    kv = np.atleast_2d(np.asarray(k_per_nm, float))
+    e = np.asarray(energy_eV, float)
+    ec, ev = np.asarray(ec_eV, float), np.asarray(ev_eV, float)
+    scale = np.sqrt(np.asarray(mass_seg, float) / HBAR2_2M0_EV_NM2)
+    out = np.empty(kv.shape)
+    for kk in range(kv.shape[0]):
+        for ie in range(e.size):
+            k2 = kv[kk, ie] ** 2
+            if e[ie] >= ev[0] - down_eV_nm2 * k2 or e[ie] <= ec[-1] + up_eV_nm2 * k2:
+                out[kk, ie] = np.inf
+                continue
+            acc = 0.0
+            for i in range(x.size - 1):
+                if model == "two-band":
+                    acc += scale[i] * segment_integral_transverse(
+                        ec[i] - e[ie], ec[i + 1] - e[ie], e[ie] - ev[i], e[ie] - ev[i + 1],
+                        k2 / scale[i] ** 2, x[i + 1] - x[i], _GL_X, _GL_W)
+                else:
+                    seg = wkb_exponent(x[i:i + 2], ec[i:i + 2] + up_eV_nm2 * k2,
+                                       ev[i:i + 2] - down_eV_nm2 * k2, e[ie:ie + 1],
+                                       float(mass_seg[i]), model)[0]
+                    acc += 0.5 * seg
+            out[kk, ie] = 2.0 * acc
     return out
 
 

@@ -323,8 +323,9 @@ def test_cli_export_render_check(tmp_path, capsys):
 
 
 # ---------------------------------------------------------------------- presets
-PRESETS = ("high-on-current", "ingaas-tunnel-fet", "low-power-switch", "mosfet-baseline",
-           "silicon-tunnel-fet", "single-gate-soi", "typical-process")
+PRESETS = ("broken-gap-switch", "high-on-current", "ingaas-tunnel-fet", "low-power-switch",
+           "mosfet-baseline", "sige-source-tunnel-fet", "silicon-tunnel-fet", "single-gate-soi",
+           "typical-process")
 
 
 def test_presets_load_validate_and_solve():
@@ -339,7 +340,7 @@ def test_presets_load_validate_and_solve():
     assert load_preset("single-gate-soi").design.gate_layout == "single"
     assert load_preset("low-power-switch").design == Design()
     assert load_preset("low-power-switch").metric_settings.vdd_V == 0.3
-    with pytest.raises(SnapshotError, match="unknown; known presets: high-on-current"):
+    with pytest.raises(SnapshotError, match="unknown; known presets: broken-gap-switch"):
         load_preset("nope")
 
 

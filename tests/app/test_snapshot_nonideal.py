@@ -10,6 +10,7 @@ import pytest
 
 from sub60.app.snapshot_fields import SnapshotError
 from sub60.app.snapshot_schema import (
+    SCHEMA_VERSION,
     PinnedDesign,
     SnapshotSettings,
     TransferSweep,
@@ -49,7 +50,7 @@ def test_the_non_ideality_fields_round_trip_and_older_fields_stay_required():
                                          interface_trap_profile="u-shaped",
                                          source_resistance_ohm_um=120.0))
     back = SnapshotSettings.from_dict(json.loads(s.to_json()))
-    assert back.design == s.design and back.schema_version == 2
+    assert back.design == s.design and back.schema_version == SCHEMA_VERSION
     data = json.loads(s.to_json())
     del data["design"]["temperature_K"]
     with pytest.raises(SnapshotError, match="design.temperature_K: missing"):

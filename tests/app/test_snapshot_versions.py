@@ -1,9 +1,10 @@
 """Snapshot schema versions: files written by an earlier sub60 still open.
 
 Version 1 (sub60 0.2.0) stored exactly the 18 design fields of that release; version 2
-stores every field of the design record, including those added since (non-ideal
-physics, materials). The version-1 files used here are the presets shipped with 0.2.0
-(`assets/presets`, unchanged since; our own scenarios). Design rule of the format
+added the non-ideal physics and the alloy composition; version 3 stores every field of
+the design record, including the heterojunction source. The version-1 files used here
+are the presets shipped with 0.2.0 (`assets/presets`, unchanged since; our own
+scenarios). Design rule of the format
 (common practice for versioned file formats, no source): an older file opens with the
 fields it predates at their defaults, and the reader says which they are.
 """
@@ -20,6 +21,8 @@ from sub60.app.snapshot_fields import SnapshotError
 from sub60.app.snapshot_reader import import_snapshot
 from sub60.app.snapshot_schema import (
     DESIGN_FIELDS_V1,
+    DESIGN_FIELDS_V2,
+    HETEROJUNCTION_FIELDS,
     SCHEMA_VERSION,
     SnapshotSettings,
     added_design_fields,
@@ -56,7 +59,7 @@ def test_version_1_file_opens_with_later_fields_at_their_defaults():
 def test_export_writes_the_current_version_with_every_design_field():
     settings, _ = import_snapshot(json.dumps(_v1_document()).encode())
     out = settings.to_dict()
-    assert out["schema_version"] == SCHEMA_VERSION == 2
+    assert out["schema_version"] == SCHEMA_VERSION == 3
     assert sorted(out["design"]) == sorted(FIELD_RANGES)
     again = SnapshotSettings.from_dict(json.loads(json.dumps(out)))
     assert again.design == settings.design
@@ -85,3 +88,36 @@ def test_version_1_file_may_not_hold_fields_of_a_later_version():
     doc["design"][added[0]] = getattr(Design(), field.name)
     with pytest.raises(SnapshotError, match=added[0]):
         SnapshotSettings.from_dict(doc)
+
+
+def _v2_document() -> dict:
+    doc = json.loads(files("sub60.assets").joinpath("presets", "ingaas-tunnel-fet.json")
+                     .read_text("utf-8"))
+    assert doc["schema_version"] == 2
+    assert sorted(doc["design"]) == sorted(DESIGN_FIELDS_V2)
+    return doc
+
+
+def test_version_2_file_opens_as_a_homojunction():
+    """A version-2 preset (written before heterojunction sources) opens with the source
+    of the body material, and the reader names the fields it predates."""
+    settings, report = import_snapshot(json.dumps(_v2_document()).encode())
+    assert settings.schema_version == 2
+    assert not settings.design.is_heterojunction
+    assert settings.design.source_material == "same"
+    assert report.added_fields == HETEROJUNCTION_FIELDS == added_design_fields(2)
+
+
+def test_version_2_file_may_not_hold_the_heterojunction_fields():
+    doc = _v2_document()
+    doc["design"]["source_material"] = "GaSb"
+    with pytest.raises(SnapshotError, match="source_material"):
+        SnapshotSettings.from_dict(doc)
+
+
+def test_heterojunction_design_round_trips_through_the_current_version():
+    settings = SnapshotSettings.from_dict(_v2_document())
+    hetero = settings.replace(design=settings.design.replace(
+        source_material="GaAsSb", source_composition_x=0.4, heterointerface_nm=-1.5))
+    again = SnapshotSettings.from_dict(json.loads(hetero.to_json()))
+    assert again.design == hetero.design and again.design.is_heterojunction

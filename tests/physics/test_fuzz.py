@@ -56,6 +56,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from sub60.physics.design import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V, Design, check_bias
+from sub60.physics.heterojunction import source_nodes
 from sub60.physics.materials import ALLOYS, DIELECTRICS, SEMICONDUCTORS
 from sub60.physics.poisson import SolverError
 from sub60.physics.simulate import BiasPoint, Simulator
@@ -65,7 +66,7 @@ MATERIALS = tuple(SEMICONDUCTORS) + tuple(ALLOYS)  # fixed records, then alloy f
 OXIDES = tuple(DIELECTRICS) + ("custom",)
 NUMERIC_FIELDS = tuple(k for k, s in FIELD_RANGES.items() if s.kind is float)
 TEXT_FIELDS = tuple(k for k, s in FIELD_RANGES.items() if s.kind is str)
-TEXT_CHOICES = {"material": MATERIALS, "oxide": OXIDES,
+TEXT_CHOICES = {"material": MATERIALS, "oxide": OXIDES, "source_material": ("same", *MATERIALS),
                 **{k: s.choices for k, s in FIELD_RANGES.items() if s.choices is not None}}
 LOG_FIELDS = ("source_doping_cm3", "drain_doping_cm3")
 ZERO_CURRENT_UA_PER_UM = 1e-12  # below this |I_d| its sign is not checked [uA/um]
@@ -175,7 +176,25 @@ def draw_design_fields(src: Source) -> dict[str, Any]:
         f["composition_x"] = src.uniform(*_range("composition_x"))
     elif src.chance(0.2):
         f["composition_x"] = 0.0
+    # heterojunction source: any material (an alloy at any x), the interface anywhere its
+    # rules allow (1 nm inside the device, 1 nm before the drain junction)
+    if src.chance(0.3):
+        f.update(draw_heterojunction_fields(src, f))
     return f
+
+
+def draw_heterojunction_fields(src: Source, f: dict[str, Any]) -> dict[str, Any]:
+    """Source material, its composition and the heterointerface position for design
+    fields ``f`` (inside every range and combination rule)."""
+    out: dict[str, Any] = {"source_material": src.choice(MATERIALS), "source_composition_x": 0.0}
+    if out["source_material"] in ALLOYS:
+        out["source_composition_x"] = src.uniform(*_range("source_composition_x"))
+    gate_start = f["source_length_nm"] - f.get("gate_source_offset_nm", 0.0)
+    drain_junction = f["source_length_nm"] + f["gate_length_nm"]
+    low, high = _range("heterointerface_nm")
+    out["heterointerface_nm"] = src.uniform(max(low, 1.0 - gate_start),
+                                            min(high, drain_junction - 1.0 - gate_start))
+    return out
 
 
 def draw_rule_violation(src: Source) -> tuple[dict[str, Any], str]:
@@ -232,6 +251,24 @@ def transverse_variation_eV(bp: BiasPoint) -> np.ndarray:
     return ec.max(axis=1) - ec.min(axis=1)
 
 
+def confinement_along(bp: BiasPoint) -> tuple[list[tuple[str, np.ndarray]],
+                                              list[tuple[str, np.ndarray]]]:
+    """(label, (nx,) confinement energy E_n0 at each node) of every conduction and
+    valence subband: the body's, and at the source nodes of a heterojunction the source
+    material's (`physics.subbands.HeteroSubbands`) [eV]."""
+    d = bp.design
+    body = device_subbands(d.homojunction())
+    src_nodes = source_nodes(d, bp.x_nm)
+    source = device_subbands(d.source_body_design()) if d.is_heterojunction else body
+    by_label = {s.label: s.energy_eV for s in source.conduction + source.valence}
+
+    def along(s):
+        return np.where(src_nodes, by_label[s.label], s.energy_eV)
+
+    return ([(s.label, along(s)) for s in body.conduction],
+            [(s.label, along(s)) for s in body.valence])
+
+
 def subband_range_violations(bp: BiasPoint) -> list[tuple[str, str]]:
     """Subband edges outside [E_n0 + min_y E, E_n0 + max_y E] over the support of their
     weights (module docstring), as ("subband range", text) pairs."""
@@ -239,12 +276,12 @@ def subband_range_violations(bp: BiasPoint) -> list[tuple[str, str]]:
     lo, hi = es.frame.mesh.body_bounds_nm()
     rows = (es.y_nm >= lo - BARRIER_NM) & (es.y_nm <= hi + BARRIER_NM)
     ec = es.ec_map_eV[:, rows]
-    ev = ec - es.frame.bands.eg_eV
-    sb = device_subbands(bp.design)
+    ev = ec - np.reshape(es.frame.bands.eg_eV, (-1, 1))
+    cond, val = confinement_along(bp)
     out = []
     for label, edge, e0, bulk in (
-            [(s.label, bp.conduction_eV[i], s.energy_eV, ec) for i, s in enumerate(sb.conduction)]
-            + [(s.label, bp.valence_eV[i], -s.energy_eV, ev) for i, s in enumerate(sb.valence)]):
+            [(lab, bp.conduction_eV[i], e, ec) for i, (lab, e) in enumerate(cond)]
+            + [(lab, bp.valence_eV[i], -e, ev) for i, (lab, e) in enumerate(val)]):
         low, high = e0 + bulk.min(axis=1), e0 + bulk.max(axis=1)
         slack = GAP_TOLERANCE_EV * (1.0 + np.abs(edge))
         off = np.maximum(low - edge, edge - high)
@@ -283,7 +320,8 @@ def invariant_violations(bp: BiasPoint) -> list[tuple[str, str]]:
         "efp_eV": es.efp_eV, "conduction_eV": bp.conduction_eV, "valence_eV": bp.valence_eV,
         "subband_ec_eV": bp.subband_ec_eV, "subband_ev_eV": bp.subband_ev_eV,
         "bulk_ec_eV": es.bulk_ec_eV, "bulk_ev_eV": es.bulk_ev_eV,
-        "bands": np.array([bands.eg_eV, bands.dec_eV, bands.dev_eV, bands.kT_eV]),
+        "bands": np.concatenate([np.ravel(v) for v in (bands.eg_eV, bands.dec_eV,
+                                                       bands.dev_eV, bands.kT_eV)]),
         "spectrum.energy_eV": bp.spectrum.energy_eV,
         "spectrum.current_density": bp.spectrum.current_density,
         "spectrum.transmission": bp.spectrum.transmission,
@@ -316,21 +354,22 @@ def invariant_violations(bp: BiasPoint) -> list[tuple[str, str]]:
     if bp.efd_eV != bp.efs_eV - vd or (bp.efs_eV >= bp.efd_eV) != (vd >= 0):
         out.append(("fermi levels", f"efs {bp.efs_eV!r} eV, efd {bp.efd_eV!r} eV at Vd {vd!r} V"))
     shortfall = gap_shortfall_eV(bp)
-    sb = device_subbands(bp.design)
-    confinement = min(s.energy_eV for s in sb.conduction) + min(s.energy_eV for s in sb.valence)
+    cond, val = confinement_along(bp)
+    confinement = np.min([e for _, e in cond], axis=0) + np.min([e for _, e in val], axis=0)
     spread = transverse_variation_eV(bp)
+    eg = np.broadcast_to(bands.eg_eV, shortfall.shape)
     strict = np.where(spread <= confinement, shortfall, -np.inf)
     if np.max(strict) > GAP_TOLERANCE_EV:
         i = int(np.argmax(strict))
-        out.append(("gap", f"subband gap {bands.eg_eV - shortfall[i]:.6f} eV below the bulk gap "
-                           f"{bands.eg_eV:.6f} eV at x = {bp.x_nm[i]:.2f} nm, where E_c varies by "
+        out.append(("gap", f"subband gap {eg[i] - shortfall[i]:.6f} eV below the bulk gap "
+                           f"{eg[i]:.6f} eV at x = {bp.x_nm[i]:.2f} nm, where E_c varies by "
                            f"only {spread[i] * 1e3:.3f} meV across the body"))
     excess = shortfall - (spread - confinement)
     if np.max(excess) > GAP_TOLERANCE_EV:
         i = int(np.argmax(excess))
-        out.append(("gap bound", f"subband gap {bands.eg_eV - shortfall[i]:.6f} eV below "
+        out.append(("gap bound", f"subband gap {eg[i] - shortfall[i]:.6f} eV below "
                                  f"E_g + confinement - spread = "
-                                 f"{bands.eg_eV + confinement - spread[i]:.6f} eV at x = "
+                                 f"{eg[i] + confinement[i] - spread[i]:.6f} eV at x = "
                                  f"{bp.x_nm[i]:.2f} nm"))
     out.extend(subband_range_violations(bp))
     i_d = bp.current_uA_per_um
@@ -411,6 +450,67 @@ def test_random_alloy_design_converges_with_invariants_or_reports(design, bias, 
     """Alloy bodies over x in [0, 1]: the same contract as any random design."""
     assert design.semiconductor.composition == (design.material, design.composition_x)
     check_case(design, bias, fuzz_log)
+
+
+# ----------------------------------------------------------------------------- heterojunctions
+@st.composite
+def heterojunction_designs(draw) -> Design:
+    """A random design with a source of a random material (an alloy at a random x) and
+    the heterointerface anywhere its rules allow."""
+    src = HypothesisSource(draw)
+    fields = draw_design_fields(src)
+    fields.update(draw_heterojunction_fields(src, fields))
+    return Design(**fields)
+
+
+@settings(max_examples=10)  # a few heterojunction solves in every run
+@given(design=heterojunction_designs(), bias=biases())
+def test_random_heterojunction_design_converges_with_invariants_or_reports(design, bias,
+                                                                           fuzz_log):
+    """Heterojunction sources over every material pair and interface position: the same
+    contract as any random design (the gap and subband-range invariants hold region by
+    region, each node with its own material's confinement energies)."""
+    check_case(design, bias, fuzz_log)
+
+
+@given(case=st.data())
+def test_heterointerface_outside_the_device_names_field_and_range(case):
+    """An interface within range but less than 1 nm inside the source contact or past
+    1 nm before the drain junction: ValueError names heterointerface_nm and the range
+    that geometry allows."""
+    src = HypothesisSource(case.draw)
+    fields = draw_design_fields(src)
+    fields["source_length_nm"] = src.uniform(5.0, 10.5)
+    fields["gate_length_nm"] = src.uniform(5.0, 8.5)
+    fields["gate_source_offset_nm"] = 0.0
+    fields["source_material"] = src.choice(("GaSb", "InAs", "Ge"))
+    if fields["material"] == fields["source_material"]:
+        fields["material"] = "InSb"
+    fields.pop("composition_x", None) if fields["material"] not in ALLOYS else None
+    fields.pop("source_composition_x", None)
+    before = src.chance(0.5)
+    fields["heterointerface_nm"] = (src.uniform(-10.0, 0.999 - fields["source_length_nm"])
+                                    if before else src.uniform(fields["gate_length_nm"] - 0.999,
+                                                               10.0))
+    with pytest.raises(ValueError) as err:
+        Design(**fields)
+    msg = str(err.value)
+    assert msg.startswith("heterointerface_nm:") and "allowed" in msg, msg
+
+
+@given(case=st.data())
+def test_source_composition_on_a_fixed_source_names_both_fields(case):
+    """source_composition_x other than 0 with a fixed (or 'same') source material."""
+    src = HypothesisSource(case.draw)
+    fields = draw_design_fields(src)
+    fields["source_material"] = src.choice(("same", *SEMICONDUCTORS))
+    fields.pop("heterointerface_nm", None)
+    fields["source_composition_x"] = case.draw(st.floats(0.0, 1.0).filter(lambda v: v != 0.0))
+    with pytest.raises(ValueError) as err:
+        Design(**fields)
+    msg = str(err.value)
+    assert msg.split(":")[0] in ("source_material", "source_composition_x"), msg
+    assert "source_composition_x" in msg, msg
 
 
 @given(case=st.data())

@@ -291,7 +291,7 @@ def test_import_has_no_side_effects_and_a_clean_namespace():
     submodules = {"design", "simulate", "electrostatics", "poisson", "structure", "mesh",
                   "materials", "constants", "statistics", "subbands", "confinement",
                   "transport", "tunneling", "metrics", "tables", "quantum", "band_tails",
-                  "bandgap_narrowing", "trap_assisted"}
+                  "bandgap_narrowing", "trap_assisted", "heterojunction"}
     assert set(r["public"]) <= set(r["physics"]) | submodules
     assert "scipy" not in r["public"] and "threadpool_limits" not in r["public"]
 
