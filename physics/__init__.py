@@ -18,6 +18,7 @@ _API: dict[str, str] = {
     "FitResult": "fitting",
     "FittedCurve": "fitting",
     "FittedKnob": "fitting",
+    "MAX_MEASURED_BYTES": "measured",
     "MeasuredData": "measured",
     "MeasuredOutput": "measured",
     "MeasuredTransfer": "measured",

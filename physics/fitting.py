@@ -416,7 +416,7 @@ def fit_transfer(
         most evaluations of the residuals by the optimiser (each: one model curve per
         drain voltage, plus one per non-shift knob for the Jacobian) [-]
     progress : callable, optional
-        progress(curve_evaluations, rms_decades) after each evaluation of the residuals
+        progress(curve_evaluations, rms_decades) after each new model evaluation
     cancel : threading.Event, optional
         set it to stop the fit (raises InterruptedError at the next model point)
 
@@ -461,10 +461,13 @@ def fit_transfer(
     model = _Model(design, curves, knobs, simulator, float(model_step_V), cancel, progress)
     steps = FD_STEP * (hi - np.where(np.isfinite(lo), lo, hi - 4.0))
 
+    reported = [0]
+
     def residuals(u: np.ndarray) -> np.ndarray:
         ev = model.evaluate(u)
         r = np.concatenate([lg[w] for (lg, _), w in zip(ev, used, strict=True)]) - target
-        if progress is not None:
+        if progress is not None and model.evaluations > reported[0]:  # once per new curve
+            reported[0] = model.evaluations
             progress(model.evaluations, float(np.sqrt(np.mean(r * r))))
         return r
 

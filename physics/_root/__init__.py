@@ -38,7 +38,7 @@ _PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "FIELD_RANGES", "Metric
                 "solve_electrostatics", "thermionic_limit_mV_per_dec", "transfer_curve",
                 # measured curves and fits
                 "CURRENT_UNITS", "FIT_KNOBS", "FitResult", "FittedCurve", "FittedKnob",
-                "MeasuredData", "MeasuredOutput", "MeasuredTransfer", "fit_transfer",
+                "MAX_MEASURED_BYTES", "MeasuredData", "MeasuredOutput", "MeasuredTransfer", "fit_transfer",
                 "knob_uncertainty", "read_measured")
 
 __all__ = ["__version__", *_PHYSICS_API]

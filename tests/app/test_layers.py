@@ -53,6 +53,7 @@ LAYERS: dict[str, int] = {
     "material_card": VIEWS,
     # entry points
     "cli": ENTRY, "cli_common": ENTRY, "snapshot_cli": ENTRY, "sweep_cli": ENTRY, "server": ENTRY,
+    "fit_cli": ENTRY,  # measured curves and fits
     "__main__": ENTRY, "console": ENTRY,
 }
 #: Top-level packages a model or physics module must not import.
