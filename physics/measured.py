@@ -2,7 +2,7 @@
 
 A measured file is text: comma-, semicolon-, tab- or whitespace-separated columns, with
 or without a header line, ``#`` comment lines anywhere, an optional UTF-8 byte-order
-mark, and decimal commas when the separator is not a comma (``0,25;1,3e-6``). Two
+mark, and decimal commas with a semicolon or tab separator (``0,25;1,3e-6``). Two
 layouts are understood:
 
 long
@@ -485,6 +485,9 @@ def _curves(table: np.ndarray, roles: list[tuple[str, float | None]], numbers: l
     wide = [(k, v) for k, (r, v) in enumerate(roles) if r.startswith("id@")]
     if wide:
         terminal = roles[wide[0][0]][0][3:]
+        if vd_given is not None:
+            raise ValueError(f"line {where}: the column names give the bias of each curve; "
+                             "leave drain_voltage_V unset")
         swept = "vd" if terminal == "vg" else "vg"
         if swept not in kinds:
             raise ValueError(f"line {where}: the current columns name the {terminal} of each "

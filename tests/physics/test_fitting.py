@@ -124,6 +124,18 @@ def test_source_and_channel_tails_are_reported_as_not_separable(simulator, clean
     assert abs(res.correlation[0, 1]) > 0.95
 
 
+def test_two_drain_voltages_are_fitted_together(simulator, clean_curve):
+    """Both curves of a long-layout file enter one fit; the shift (exact, no re-solve) is
+    recovered from clean model curves to well within the 20 mV lattice step."""
+    low = simulator.transfer_curve(TRUE, VG, 0.1, refine=False).id_uA_per_um
+    curves = [MeasuredTransfer(0.1, VG, low), MeasuredTransfer(VD, VG, clean_curve)]
+    res = fit_transfer(curves, TRUE.replace(gate_workfunction_eV=4.9), ["workfunction_shift"],
+                       simulator=simulator)
+    assert [c.vd_V for c in res.curves] == [0.1, VD]
+    assert res.values()["workfunction_shift"] == pytest.approx(0.05, abs=2e-3)
+    assert res.columns()["vd_V"].size == 2 * VG.size
+
+
 def test_cancel_stops_the_fit():
     stop = threading.Event()
     stop.set()

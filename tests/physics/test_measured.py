@@ -63,6 +63,7 @@ VARIANTS = [
     ("wide layout, sub60-style names", "vg_V id_vd_0.05_uA_per_um id_vd_300mV_uA_per_um\n"
      + "".join(f"{v:g} {i:.6g} {i:.6g}\n" for v, i in zip(VG, I_UA, strict=True)), {},
      [0.05, 0.3]),
+    ("bias and unit in brackets", "Vg (V),Id (Vd=0.3 V) [A/um]\n" + _rows(",", 1e-6), {}, [0.3]),
     ("descending sweep", "Vg,Id [A/um]\n" + "".join(
         f"{v:g},{i * 1e-6:.6g}\n" for v, i in reversed(list(zip(VG, I_UA, strict=True)))),
      {"drain_voltage_V": 0.3}, [0.3]),
@@ -178,6 +179,8 @@ HOSTILE = [
      {"drain_voltage_V": 0.3}, ["more than", "data rows"]),
     ("drain voltage out of range", "Vg,Id@Vd=5 [A/um]\n0,1\n0.1,2\n0.2,3\n", {},
      ["V_d = 5 V", "outside"]),
+    ("drain voltage given twice", "Vg,Id@Vd=0.3 [A/um]\n0,1\n0.1,2\n0.2,3\n",
+     {"drain_voltage_V": 0.3}, ["line 1", "leave drain_voltage_V unset"]),
     ("bad width", GOOD_HEAD + "0,1e-9\n0.1,1e-8\n0.2,1e-7\n",
      {"width_um": -1.0, "drain_voltage_V": 0.3}, ["width_um"]),
 ]
