@@ -119,16 +119,23 @@ class MeasuredCard:
         self.fit_button.on_click(lambda _e: self.start_fit())
         self.stop_button.on_click(lambda _e: self.stop())
         self.use_button.on_click(lambda _e: self.use_fitted())
-        self.view = pn.Card(
+        self._content = [
             pn.pane.HTML("<div>A measured transfer curve beside the model: open a table "
                          "(CSV, TSV or whitespace; units from its header or chosen here), "
                          "free a few knobs and fit them (least squares on log<sub>10</sub> "
                          "I<sub>d</sub>).</div>", stylesheets=list(css)),
             pn.Row(self.file, self.demo, self.unit, self.width_um, self.vd),
             pn.Row(self.knobs, self.fit_button, self.stop_button, self.progress),
-            self.status, self.plot, self.table, self.fitted, self.use_button,
-            title="Measured curve: open and fit", collapsed=True,
-            sizing_mode="stretch_width", css_classes=["sub60-measured-card"])
+            self.status, self.plot, self.table, self.fitted, self.use_button]
+        # filled when first opened (as the sidebar's folded cards, `app.controls`): the
+        # page opens without sending the Bokeh models of a card nobody has opened yet
+        self.view = pn.Card(title="Measured curve: open and fit", collapsed=True,
+                            sizing_mode="stretch_width", css_classes=["sub60-measured-card"])
+        self.view.param.watch(self._opened, "collapsed")
+
+    def _opened(self, event: Any) -> None:
+        if not event.new and not self.view.objects:
+            self.view.objects = list(self._content)
 
     # ------------------------------------------------------------------ reading
     def _file_changed(self, event: Any) -> None:

@@ -29,6 +29,12 @@ def test_demo_opens_and_shows_its_points_and_metrics(card):
     assert not card.fit_button.disabled
 
 
+def test_the_card_is_filled_when_first_opened(card):
+    assert card.view.collapsed and not card.view.objects  # nothing sent before it is opened
+    card.view.collapsed = False
+    assert card.plot in card.view.objects and card.fit_button in card.view.objects[2].objects
+
+
 def test_a_bad_file_leaves_a_message_and_the_card_unchanged(card):
     card.open(demo_bytes(), "demo.csv")
     before = card.data
