@@ -1,6 +1,6 @@
 """Benchmark of a fit (a script, not a test): prints medians measured in one run.
 
-    python tests/bench_fit.py [--repeats 3]
+    python tests/bench_fit.py [--repeats 3] [--step 0.02]
 
 A 3-knob fit (work-function shift, interface-trap density, band-tail energy) of the
 default design to the 41-point synthetic demo curve (assets/measured/demo-tfet-transfer.csv,
@@ -37,6 +37,8 @@ def _demo_module():
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=3)
+    ap.add_argument("--step", type=float, default=0.02,
+                    help="gate-voltage step of the model lattice [V] (fit_transfer's model_step_V)")
     a = ap.parse_args()
     demo = _demo_module()
     data = read_measured(DEMO.read_bytes())
@@ -49,12 +51,13 @@ def main() -> None:
         Simulator().transfer_curve(d, demo.VG_V, demo.VD_V, refine=False)
         curve_s.append(time.perf_counter() - t)
         t = time.perf_counter()
-        results.append(fit_transfer(data, start, FREE, simulator=Simulator()))
+        results.append(fit_transfer(data, start, FREE, simulator=Simulator(),
+                                    model_step_V=a.step))
         fit_s.append(time.perf_counter() - t)
     med_fit, med_curve = float(np.median(fit_s)), float(np.median(curve_s))
     res = results[-1]
-    print(f"3-knob fit ({', '.join(FREE)}) to the 41-point demo curve, "
-          f"medians of {a.repeats}")
+    print(f"3-knob fit ({', '.join(FREE)}) to the 41-point demo curve, model lattice "
+          f"{1e3 * a.step:g} mV, medians of {a.repeats}")
     print(f"  fit                       {med_fit:8.2f} s   ratio to the {TARGET_S:g} s target "
           f"{med_fit / TARGET_S:.2f}")
     print(f"  one 41-point curve        {med_curve:8.2f} s   fit / curve {med_fit / med_curve:.1f}")
