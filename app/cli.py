@@ -5,6 +5,7 @@
     sub60 transfer [--design FILE.json] [--set ...] --vg START:STOP:N --vd V [--twin]
     sub60 output   [--design FILE.json] [--set ...] --vg V --vd START:STOP:N
     sub60 snapshot export|check|render ...      sub60 sweep SPEC --out DIR ...
+    sub60 fit DATA [--design FILE.json] --free knob,knob ...   (see `app.fit_cli`)
 
 ``bands``, ``transfer`` and ``output`` take ``--model`` (a tunnelling model of
 `sub60.physics.TUNNELLING_MODELS`; default two-band WKB).
@@ -222,6 +223,8 @@ def build_parser() -> argparse.ArgumentParser:
     add_snapshot_parser(sub)
     from sub60.app.sweep_cli import add_sweep_parser
     add_sweep_parser(sub)
+    from sub60.app.fit_cli import add_fit_parser
+    add_fit_parser(sub)
     return p
 
 
@@ -239,6 +242,8 @@ def main(argv: list[str] | None = None) -> int:
             out, status = run_snapshot(a)
         elif a.command == "sweep":
             out, status = a.sweep_handler(a)
+        elif a.command == "fit":
+            out, status = a.fit_handler(a)
         else:
             out = handlers[a.command](a)
     except UsageError as exc:

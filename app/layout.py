@@ -38,6 +38,7 @@ from panel.io.state import set_curdoc
 from sub60.app.controls import SIDEBAR_WIDTH, Controls
 from sub60.app.jobs import SessionJobs, shared_simulator
 from sub60.app.material_card import MaterialCard
+from sub60.app.measured_view import MeasuredCard
 from sub60.app.messages import CAUTION, TITLE, MessageBoard, header_html, html_escape, value_message
 from sub60.app.pin_jobs import PinJobs
 from sub60.app.pin_view import PinView
@@ -220,6 +221,7 @@ class Explorer(pn.viewable.Viewer):
                                             args={"content_width": PRESENT_CONTENT_WIDTH})
         # material card: every parameter of the body material with its source
         self.material_card = MaterialCard(self.state, css)
+        self.measured_card = MeasuredCard(self.state, css, self._post)  # app.measured_view
         r = self.results
         top = pn.Row(self.header,
                      pn.Column(self.presentation_toggle, r.progress, r.status,
@@ -227,7 +229,7 @@ class Explorer(pn.viewable.Viewer):
                      sizing_mode="stretch_width", margin=0)
         self.main = pn.Column(top, r.metrics, r.breakdown,  # breakdown: app.nonideal_view
                               self.material_warning, r.notes, self.alert, r.plots,
-                              self.material_card.view,
+                              self.material_card.view, self.measured_card.view,
                               self.pin_view.compare.view, sizing_mode="stretch_width",
                               css_classes=["sub60-main"], margin=0)
         # design sweeps in a tab of their own (app.sweep_view); a picked design comes back here
@@ -290,6 +292,7 @@ class Explorer(pn.viewable.Viewer):
         self.pin_jobs.close()
         self.sweep_view.close()
         self.material_card.close()
+        self.measured_card.close()
         for owner, watcher in self._watchers:
             try:
                 owner.param.unwatch(watcher)

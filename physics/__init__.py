@@ -13,6 +13,18 @@ import importlib as _importlib
 #: Public name -> submodule that defines it.
 _API: dict[str, str] = {
     "BiasPoint": "simulate",
+    "CURRENT_UNITS": "measured",
+    "FIT_KNOBS": "fitting",
+    "FitResult": "fitting",
+    "FittedCurve": "fitting",
+    "FittedKnob": "fitting",
+    "MAX_MEASURED_BYTES": "measured",
+    "MeasuredData": "measured",
+    "MeasuredOutput": "measured",
+    "MeasuredTransfer": "measured",
+    "fit_transfer": "fitting",
+    "knob_uncertainty": "fitting",
+    "read_measured": "measured",
     "Design": "design",
     "alloys": "materials",
     "band_alignment": "materials",

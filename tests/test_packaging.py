@@ -97,6 +97,7 @@ def test_wheel_holds_one_package_and_the_assets(installed):
     assert {t for t in tops if not t.endswith(".dist-info")} == {"sub60"}, tops
     assert "sub60/assets/style.css" in names
     assert f"sub60/assets/presets/{PRESET}.json" in names
+    assert "sub60/assets/measured/demo-tfet-transfer.csv" in names  # the fit's demo curve
 
 
 def test_site_packages_has_no_top_level_app_or_physics(installed):

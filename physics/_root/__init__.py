@@ -36,7 +36,11 @@ _PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "FIELD_RANGES", "Metric
                 "material_parameters",
                 "interface_trap_density", "output_columns", "output_curve", "output_table",
                 "semiconductors", "solve_bias",
-                "solve_electrostatics", "thermionic_limit_mV_per_dec", "transfer_curve")
+                "solve_electrostatics", "thermionic_limit_mV_per_dec", "transfer_curve",
+                # measured curves and fits
+                "CURRENT_UNITS", "FIT_KNOBS", "FitResult", "FittedCurve", "FittedKnob",
+                "MAX_MEASURED_BYTES", "MeasuredData", "MeasuredOutput", "MeasuredTransfer", "fit_transfer",
+                "knob_uncertainty", "read_measured")
 
 __all__ = ["__version__", *_PHYSICS_API]
 

@@ -50,9 +50,10 @@ LAYERS: dict[str, int] = {
     "plots_curves": VIEWS, "plot_style": VIEWS, "metrics_strip": VIEWS, "figures": VIEWS,
     "figures_page": VIEWS, "snapshot_bundle": VIEWS, "session_files": VIEWS,
     "sweep_view": VIEWS, "sweep_plots": VIEWS,
-    "material_card": VIEWS,
+    "material_card": VIEWS, "measured_view": VIEWS,
     # entry points
     "cli": ENTRY, "cli_common": ENTRY, "snapshot_cli": ENTRY, "sweep_cli": ENTRY, "server": ENTRY,
+    "fit_cli": ENTRY,  # measured curves and fits
     "__main__": ENTRY, "console": ENTRY,
 }
 #: Top-level packages a model or physics module must not import.
