@@ -257,6 +257,7 @@ class SessionJobs:
         self.shown_transfer: tuple | None = None
         self.shown_output: tuple | None = None
         self.tfet_key: tuple | None = None       # transfer key of curves['tfet']
+        self._shown_step: tuple[int, dict] = (0, {})  # (sweep, {stream: points shown})
         LIVE_SESSIONS.add(self)
 
     # ------------------------------------------------------------------ workers
@@ -432,8 +433,7 @@ class SessionJobs:
         total = max(n_t + n_o, 1)
         done = 0
         t0 = time.perf_counter()
-        self.post(self._deliver, g, self.listener.sweep_started, need_transfer, need_output,
-                  total)
+        self.post(self._deliver_started, g, need_transfer, need_output, total)
         sim = self.simulator
         try:
             if need_transfer:
@@ -510,8 +510,7 @@ class SessionJobs:
             # points already solved are in the simulator's cache: no new solve here
             ids = np.array([self.simulator.solve_bias(device, float(v), vd).current_uA_per_um
                             for v in vgs[:i]])
-            self.post(self._deliver, g, self.listener.transfer_partial, key, vgs[:i].copy(),
-                      ids, done + i, total)
+            self.post(self._deliver_partial, g, key, vgs[:i].copy(), ids, done + i, total)
 
         return progress
 
@@ -520,9 +519,37 @@ class SessionJobs:
         if self._current(g):
             fn(*args)
 
+    def _in_order(self, g: int, stream: str, done: int) -> bool:
+        """Whether a result of sweep ``g`` on one ``stream`` (a transfer curve's key,
+        'outputs', or 'started' for the sweep's start) that completes ``done`` points is
+        not older than one already shown. Updates are posted in order, but the page's
+        event loop may run two of them out of order when they come in quick succession
+        (points from the shared cache): an older partial result must not replace a newer
+        one, and the start of a sweep must not come after any of its results."""
+        if self._shown_step[0] != g:
+            self._shown_step = (g, {})
+        shown = self._shown_step[1]
+        if stream == "started":
+            if shown:
+                return False
+        elif done < shown.get(stream, -1):
+            return False
+        shown[stream] = done
+        return True
+
+    def _deliver_started(self, g: int, transfer: bool, output: bool, total: int) -> None:
+        # after a result of the same sweep, "updating" would stay on the titles for good
+        if self._current(g) and self._in_order(g, "started", 0):
+            self.listener.sweep_started(transfer, output, total)
+
+    def _deliver_partial(self, g: int, key: str, vg: np.ndarray, ids: np.ndarray, done: int,
+                         total: int) -> None:
+        if self._current(g) and self._in_order(g, key, done):
+            self.listener.transfer_partial(key, vg, ids, done, total)
+
     def _deliver_transfer(self, g: int, key: str, tc: Any, job: SweepRequest, done: int,
                           total: int) -> None:
-        if not self._current(g):
+        if not self._current(g) or not self._in_order(g, key, done):
             return
         self.curves[key] = tc
         if key == "tfet":
@@ -533,7 +560,7 @@ class SessionJobs:
 
     def _deliver_outputs(self, g: int, curves: list, job: SweepRequest, done: int,
                          total: int) -> None:
-        if not self._current(g):
+        if not self._current(g) or not self._in_order(g, "outputs", done):
             return
         complete = len(curves) == job.output_vg_V.size
         if complete:

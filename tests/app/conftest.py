@@ -99,8 +99,15 @@ window.sub60 = {
   widthOnScreen(name) {       // a figure's width as drawn on the screen [px]
     return Bokeh.index.find_one(this.model(name)).el.getBoundingClientRect().width;
   },
+  outputsDone() {             // output title complete and every listed curve's data in
+    // (the data arrive in a binary message of their own, which may follow the title's)
+    const items = this.model('output_legend').items;
+    return !this.model('output_plot').title.text.includes('updating') &&
+      items.every((item, k) =>
+        !item.visible || this.model('output_source_' + k).data.vd.length > 0);
+  },
   allDone(n) {
-    return this.curvesDone(n) && !this.model('output_plot').title.text.includes('updating');
+    return this.curvesDone(n) && this.outputsDone();
   },
 };
 """

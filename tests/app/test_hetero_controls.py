@@ -40,7 +40,7 @@ def test_the_new_settings_are_design_settings_with_url_keys():
 def test_band_plot_marks_and_labels_the_heterointerface():
     from bokeh.models import Range1d
 
-    plot = BandPlot(Range1d(0, 1), Range1d(0, 1), lambda glyph, width: None)
+    plot = BandPlot(Range1d(0, 1), Range1d(0, 1))
     bp = Simulator().solve_bias(HETERO, 0.4, 0.3)
     plot.show(bp)
     off = heterointerface_offsets(HETERO)
