@@ -26,6 +26,7 @@ import importlib.resources
 import logging
 import weakref
 from collections.abc import Callable
+from contextlib import nullcontext
 from pathlib import Path
 from typing import Any
 
@@ -78,45 +79,6 @@ def stylesheet() -> str:
     except OSError:
         return ""
 
-
-
-#: Natural width of the results column [CSS px]: the widest row of plots (frames, borders
-#: and pane margins of `app.plots.ExplorerFigures.SIZES`) and the column's own margins.
-PRESENT_CONTENT_WIDTH = 1190
-
-#: Browser side of the presentation mode (a Bokeh callback of the toggle): the results
-#: column is zoomed (CSS ``zoom``) so that its plots fill the window's width (at most
-#: 1.8x), and again whenever the window is resized. Zooming is one style change; resizing
-#: the seven figures one by one made the browser lay the page out seven times (seconds).
-PRESENT_JS = """
-const find = (root, cls) => {
-  const stack = [root];
-  while (stack.length) {
-    const n = stack.pop();
-    if (n.classList && n.classList.contains(cls)) { return n; }
-    if (n.shadowRoot) { stack.push(n.shadowRoot); }
-    for (const c of (n.children || [])) { stack.push(c); }
-  }
-  return null;
-};
-window.sub60Present = window.sub60Present || {
-  on: false,
-  fit() {
-    const main = find(document.body, 'sub60-main');
-    if (!main) { return; }
-    const room = document.documentElement.clientWidth - 16;
-    main.style.zoom = this.on ? String(Math.max(1, Math.min(1.8, room / this.width))) : '';
-  },
-};
-const p = window.sub60Present;
-p.on = Boolean(cb_obj.active);
-p.width = content_width;
-if (!p.listening) {
-  p.listening = true;
-  window.addEventListener('resize', () => requestAnimationFrame(() => p.fit()));
-}
-p.fit();
-"""
 
 
 #: The P key (outside a text box or list) toggles the presentation mode, as the button does.
@@ -217,8 +179,6 @@ class Explorer(pn.viewable.Viewer):
         self.presentation_toggle = pn.widgets.Toggle.from_param(
             self.state.param.presentation, color="default", width=170, margin=(6, 8),
             css_classes=["presentation-toggle"])
-        self.presentation_toggle.jscallback(value=PRESENT_JS,
-                                            args={"content_width": PRESENT_CONTENT_WIDTH})
         # material card: every parameter of the body material with its source
         self.material_card = MaterialCard(self.state, css)
         self.measured_card = MeasuredCard(self.state, css, self._post)  # app.measured_view
@@ -326,8 +286,16 @@ class Explorer(pn.viewable.Viewer):
 
     # ------------------------------------------------------------------ watchers
     def _on_presentation(self, event) -> None:
-        """The controls hide (or show); the browser zooms the results (`PRESENT_JS`)."""
-        self.sidebar.visible = not bool(event.new)
+        """The controls hide (or show) and the header, metrics and status text grow (css
+        class 'presenting'). The figures keep their sizes and fonts: changing them one by
+        one made the browser lay the whole page out for each (18 s a toggle)."""
+        on = bool(event.new)
+        doc = self._doc
+        with hold(doc) if doc is not None else nullcontext():
+            self.sidebar.visible = not on
+            for pane in (self.header, self.results.metrics, self.results.status):
+                pane.css_classes = [c for c in pane.css_classes if c != "presenting"] + (
+                    ["presenting"] if on else [])
 
     def _on_tab(self, event) -> None:
         if event.new == 1 and not self._sweep_slot.objects:

@@ -193,9 +193,8 @@ class ExplorerFigures:
     # ------------------------------------------------------------------ sizes
     def _size_and_fonts(self) -> None:
         """Frame sizes, borders and fonts of every figure. The presentation mode does not
-        change them: it zooms the whole results column in the browser (`app.layout`), as
-        a change of one figure's size makes the browser lay out the whole page again
-        (seconds for the seven figures)."""
+        change them (`app.layout`): a change of one figure's size makes the browser lay
+        out the whole page again (seconds for the seven figures)."""
         for key, fig in self.figures.items():
             fig.frame_width, fig.frame_height = self.SIZES[key]
             fig.min_border_left = self.LEFT_BORDER.get(key, 58)

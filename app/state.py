@@ -296,7 +296,7 @@ class ExplorerState(NonIdealSettings):
 
     # ---------------------------------------------------------------- display
     presentation = param.Boolean(default=False, label="Presentation mode (P)",
-                                 doc="Hide the controls and zoom the results to the window (key: P).")
+                                 doc="Hide the controls and enlarge the header and metrics (key: P).")
 
     # ---------------------------------------------------------------- enable rules (derived)
     custom_permittivity_enabled = param.Boolean(

@@ -54,8 +54,8 @@ window.sub60bench = {
     });
   },
   async looks(on) {                  // resolves at the frame after the toggle's looks
-    await this.poll(() => (sub60.zoom() > 1) === on &&
-      (sub60.byClass('sub60-sidebar').visible === !on));
+    await this.poll(() => sub60.byClass('sub60-sidebar').visible === !on &&
+      sub60.byClass('sub60-header').css_classes.includes('presenting') === on);
     return this.frame();
   },
   frame() { return new Promise(r => requestAnimationFrame(() => r(performance.now()))); },

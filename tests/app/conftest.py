@@ -92,10 +92,6 @@ window.sub60 = {
     }
     return null;
   },
-  zoom() {                    // the results column's zoom (presentation mode), 1 if none
-    const z = this.deepFind('sub60-main').style.zoom;
-    return z ? Number(z) : 1;
-  },
   widthOnScreen(name) {       // a figure's width as drawn on the screen [px]
     return Bokeh.index.find_one(this.model(name)).el.getBoundingClientRect().width;
   },

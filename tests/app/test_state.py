@@ -226,21 +226,20 @@ def test_indirect_gap_material_shows_a_warning(explorer):
 
 
 def test_presentation_mode_hides_controls_and_leaves_the_figures_alone(explorer):
-    """The server hides the controls; the browser zooms the results (`PRESENT_JS`), so
-    no figure property changes (each change of a figure's size re-laid the page out)."""
-    from sub60.app.layout import PRESENT_JS
-
+    """The controls hide and the header, metrics and status text grow (css class); no
+    figure property changes (each change of a figure's size re-laid the page out)."""
     e = _fresh()
     f = e.figures
     before = {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
               for k, fig in f.figures.items()}
     e.state.presentation = True
     assert not e.sidebar.visible
+    assert all("presenting" in p.css_classes
+               for p in (e.header, e.results.metrics, e.results.status))
     assert {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
             for k, fig in f.figures.items()} == before
-    assert "zoom" in PRESENT_JS and "resize" in PRESENT_JS
     e.state.presentation = False
-    assert e.sidebar.visible
+    assert e.sidebar.visible and "presenting" not in e.header.css_classes
 
 
 def test_caution_and_metrics_are_in_the_page(explorer):
