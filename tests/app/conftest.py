@@ -82,19 +82,6 @@ window.sub60 = {
   cardsFilled() {             // a card that started collapsed gets its controls when opened
     return this.cards().every(c => !c.collapsed && c.children.length > 1);
   },
-  deepFind(cls) {             // the element of a css class, inside Bokeh's shadow roots
-    const stack = [document.body];
-    while (stack.length) {
-      const n = stack.pop();
-      if (n.classList && n.classList.contains(cls)) { return n; }
-      if (n.shadowRoot) { stack.push(n.shadowRoot); }
-      for (const c of (n.children || [])) { stack.push(c); }
-    }
-    return null;
-  },
-  widthOnScreen(name) {       // a figure's width as drawn on the screen [px]
-    return Bokeh.index.find_one(this.model(name)).el.getBoundingClientRect().width;
-  },
   outputsDone() {             // output title complete and every listed curve's data in
     // (the data arrive in a binary message of their own, which may follow the title's)
     const items = this.model('output_legend').items;
