@@ -146,6 +146,12 @@ FIELD_RANGES: dict[str, FieldSpec] = {
         str, choices=("off", "on"),
         help="'on': doping-induced gap narrowing of the doped regions (published model "
              "per material); 'off': none"),
+    # charge model of the electrostatics
+    "charge_model": FieldSpec(
+        str, choices=("semiclassical", "subbands"),
+        help="carrier charge of the body: 'semiclassical' (bulk density of states, band "
+             "edges shifted by the lowest subbands) or 'subbands' (2D density of states "
+             "of the confinement subbands with the in-plane masses transport uses)"),
 }
 
 #: The switches of the non-idealities and their "off" values (the ideal device);
@@ -239,6 +245,11 @@ class Design:
         "on": doping-induced band-gap narrowing of the doped regions (Jain, McGregor &
         Roulston 1990 for III-Vs, Slotboom & de Graaff 1976 for Si;
         `physics.bandgap_narrowing`); "off".
+    charge_model : str
+        carrier charge of the body in the electrostatics: "semiclassical" (default; bulk
+        3D density of states with the band edges shifted by the lowest confinement
+        subbands) or "subbands" (2D density of states of every confinement subband, with
+        the in-plane masses transport uses; `physics.subband_charge`).
 
     Notes
     -----
@@ -285,6 +296,8 @@ class Design:
     tat_lifetime_ns: float = 0.0
     tat_trap_level_eV: float = 0.0
     bandgap_narrowing: str = "off"
+    # charge model of the electrostatics
+    charge_model: str = "semiclassical"
 
     def __post_init__(self) -> None:
         for f in dataclasses.fields(self):

@@ -179,12 +179,19 @@ def neutral_potential(
     net = np.asarray(net_doping_cm3, dtype=float)
     efn = np.broadcast_to(np.asarray(efn_eV, float), net.shape)
     efp = np.broadcast_to(np.asarray(efp_eV, float), net.shape)
+    if hasattr(bands, "bracket_eV"):  # another charge model (`subband_charge.ColumnCharge`)
+        lo, hi = bands.bracket_eV(net, efn, efp)
+        return _bisect_neutral(bands, net, efn, efp, lo, hi)
     # bracket: holes dominate with E_v 2 eV (plus the degeneracy depth of the acceptors)
     # above every Fermi level, electrons with E_c 2 eV (plus that of the donors) below
     deep_n = bands.kT_eV * np.maximum(inverse_fermi_half(np.maximum(net, 1.0) / bands.nc_cm3), 0.0)
     deep_p = bands.kT_eV * np.maximum(inverse_fermi_half(np.maximum(-net, 1.0) / bands.nv_cm3), 0.0)
     lo = -bands.chi_eV - bands.eg_eV - bands.dev_eV - np.maximum(efn, efp) - 2.0 - deep_p
     hi = -bands.chi_eV + bands.dec_eV - np.minimum(efn, efp) + 2.0 + deep_n
+    return _bisect_neutral(bands, net, efn, efp, lo, hi)
+
+
+def _bisect_neutral(bands, net, efn, efp, lo, hi) -> np.ndarray:
     for _ in range(80):
         mid = 0.5 * (lo + hi)
         n, p, _, _ = bands.densities(mid, efn, efp)
@@ -226,6 +233,10 @@ class PoissonProblem:
     split_efn: tuple[float, float, float, float] | None = None
     extra_charge_cm3: np.ndarray | None = None
     interface_traps: Any = None
+    #: optional charge model replacing ``bands.densities`` in the body: an object with
+    #: ``evaluate(psi, efn, efp) -> (n, p, dn, dp, band)``, band the charge Jacobian in
+    #: the upper banded form of the Newton matrix (`sub60.physics.subband_charge`)
+    subband_charge: Any = None
 
 
 @dataclass
@@ -297,11 +308,29 @@ class PoissonOperator:
         ab[0] = xc
         self.banded = ab
 
-    def newton_matrix(self, charge_diag: np.ndarray) -> np.ndarray:
-        """Banded Jacobian: Laplacian + diag(charge derivative) on free nodes."""
+    def newton_matrix(self, charge_diag: np.ndarray, charge_band: np.ndarray | None = None
+                      ) -> np.ndarray:
+        """Banded Jacobian: Laplacian + diag(charge derivative) on free nodes, plus an
+        optional banded charge derivative (rows and columns of fixed nodes dropped)."""
         ab = self.banded.copy()
         ab[-1] += np.where(self.fixed, 0.0, charge_diag)
+        if charge_band is not None:
+            ab += np.where(self._band_free, charge_band, 0.0)
         return ab
+
+    @property
+    def _band_free(self) -> np.ndarray:
+        """(ny+1, n) True where the banded entry A[k-d, k] joins two free nodes."""
+        mask = getattr(self, "_band_free_mask", None)
+        if mask is None:
+            ny1, n = self.banded.shape
+            free = ~self.fixed
+            mask = np.zeros((ny1, n), bool)
+            for r in range(ny1):
+                d = ny1 - 1 - r
+                mask[r, d:] = free[d:] & free[: n - d]
+            self._band_free_mask = mask
+        return mask
 
 
 def _efn_profile(problem: PoissonProblem, psi: np.ndarray, body_j: int) -> np.ndarray:
@@ -369,9 +398,17 @@ def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: Poisso
         tflat = np.flatnonzero(tmask.ravel())
         sheet_scale = QE_V_NM2_CM3 * _SHEET_NM_PER_CM * traps.width_nm[tmask]
 
+    sbc = problem.subband_charge
+
     def residual(psi_flat: np.ndarray, efn: np.ndarray):
         psi2 = psi_flat.reshape(nx, ny)
-        if problem.carriers:
+        band = None
+        if problem.carriers and sbc is not None:
+            n, p, dn, dp, band = sbc.evaluate(psi2, np.broadcast_to(efn, (nx,)),
+                                              np.broadcast_to(problem.efp_eV, (nx,)))
+            rho = p - n + doping
+            dq = np.zeros_like(psi2)
+        elif problem.carriers:
             n, p, dn, dp = problem.bands.densities(psi2, efn[:, None], efp2)
             rho = p - n + doping
             dq = (dn - dp) * area * QE_V_NM2_CM3
@@ -385,7 +422,9 @@ def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: Poisso
             f[tflat] -= sheet_scale * sigma
             dq[tmask] -= sheet_scale * dsigma
         f[~free] = 0.0
-        return f, dq.ravel(), n, p
+        if band is not None:  # the Jacobian's charge part: banded, its diagonal in dq too
+            return f, (dq.ravel() + band[-1], band), n, p
+        return f, (dq.ravel(), None), n, p
 
     history: list[float] = []
     efn = _efn_profile(problem, psi.reshape(nx, ny), body_j)
@@ -394,10 +433,15 @@ def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: Poisso
     fresh = False
     split_updates = 0
     for it in range(1, max_iter + 1):
-        diag = np.where(op.fixed, 1.0, op.banded[-1] + dq)
+        dq_diag, dq_band = dq
+        diag = np.where(op.fixed, 1.0, op.banded[-1] + dq_diag)
         if factor is None:
+            if dq_band is None:
+                matrix = op.newton_matrix(dq_diag)
+            else:  # the band holds the diagonal of the charge part already
+                matrix = op.newton_matrix(dq_diag - dq_band[-1], dq_band)
             try:
-                factor = sla.cholesky_banded(op.newton_matrix(dq), lower=False, check_finite=False)
+                factor = sla.cholesky_banded(matrix, lower=False, check_finite=False)
             except np.linalg.LinAlgError as exc:
                 raise SolverError(f"Newton matrix not positive definite ({exc})", history) from None
             fresh = True
@@ -438,7 +482,7 @@ def _newton(problem: PoissonProblem, initial_psi_V: np.ndarray, operator: Poisso
                 f, dq, n, p = residual(psi, efn)
                 factor = None
                 continue
-        res = float(np.max(np.abs(f / np.where(op.fixed, 1.0, op.banded[-1] + dq))))
+        res = float(np.max(np.abs(f / np.where(op.fixed, 1.0, op.banded[-1] + dq[0]))))
         if (t * step < tol_V or (step < 1e-4 and res < 0.1 * tol_V)) or not problem.carriers:
             trapped = None
             if traps is not None and problem.carriers:

@@ -36,6 +36,7 @@ from sub60.physics.poisson import BandParameters, PoissonOperator, PoissonProble
 
 if TYPE_CHECKING:
     from sub60.physics.interface_traps import InterfaceTraps
+    from sub60.physics.subband_charge import ColumnCharge, SubbandCharge
 
 
 def gate_dielectric(design: Design) -> Dielectric:
@@ -173,6 +174,16 @@ class DeviceFrame:
     resolution: float = 1.0  # grid refinement factor it was built with [-]
     quantum_correction: bool = True  # charge band edges shifted by the lowest subbands
     interface_traps: InterfaceTraps | None = None  # gate-oxide interface traps, None when off
+    #: 2D-subband charge (`physics.subband_charge`) when the design's charge_model is
+    #: "subbands" (with quantum_correction), else None: the semiclassical ``bands``
+    subband_charge: SubbandCharge | None = None
+
+    @property
+    def charge_bands(self) -> BandParameters | ColumnCharge:
+        """The charge model of charge-neutral columns (contacts, initial guess)."""
+        if self.subband_charge is None:
+            return self.bands
+        return self.subband_charge.column_model()
 
     def built_for(self, design: Design, resolution: float, quantum_correction: bool) -> bool:
         """True if this frame is the structure of these arguments of `build_frame`."""
@@ -192,7 +203,8 @@ class DeviceFrame:
                            self.donors_cm3, self.acceptors_cm3, self.gate_nodes,
                            self.back_nodes, self.contact_nodes, op.area_semi, op.fixed,
                            op.banded, op.matrix.data, op.matrix.indices, op.matrix.indptr,
-                           *_trap_arrays(self.interface_traps))
+                           *_trap_arrays(self.interface_traps)) + (
+                               self.subband_charge.nbytes if self.subband_charge else 0)
 
     def __repr__(self) -> str:
         return (f"DeviceFrame({self.design.material}, {self.mesh.nx} x {self.mesh.ny} nodes, "
@@ -260,9 +272,20 @@ def _frame(design: Design, resolution: float, quantum_correction: bool) -> Devic
     y_lo, y_hi = mesh.body_bounds_nm()
     body_j = int(np.argmin(np.abs(mesh.y_nm - 0.5 * (y_lo + y_hi))))
     op = PoissonOperator(mesh, gate | back | contact)
+    charge = None
+    if quantum_correction and design.charge_model == "subbands":
+        from sub60.physics.subband_charge import build_subband_charge
+
+        x_src = None
+        if design.is_heterojunction:
+            from sub60.physics.heterojunction import source_nodes
+
+            x_src = source_nodes(design, mesh.x_nm)
+        charge = build_subband_charge(design, mesh, x_src)
     return DeviceFrame(design, mesh, donors, acceptors, bands, gate, back, contact, op, body_j,
                        resolution=resolution, quantum_correction=quantum_correction,
-                       interface_traps=interface_traps(design, mesh, bands.at(-1)))
+                       interface_traps=interface_traps(design, mesh, bands.at(-1)),
+                       subband_charge=charge)
 
 
 def gate_oxide_interface_nodes(design: Design, mesh: Mesh) -> np.ndarray:
@@ -332,7 +355,8 @@ def problem_at_bias(frame: DeviceFrame, vg_V: float, vd_V: float) -> PoissonProb
     return PoissonProblem(mesh=mesh, donors_cm3=frame.donors_cm3, acceptors_cm3=frame.acceptors_cm3,
                           bands=frame.bands, dirichlet=frame.dirichlet, dirichlet_psi_V=values,
                           efn_eV=efn, efp_eV=efp, split_efn=split,
-                          interface_traps=frame.interface_traps)
+                          interface_traps=frame.interface_traps,
+                          subband_charge=frame.subband_charge)
 
 
 def _contact_potentials(frame: DeviceFrame, vd_key: float, ends, net, efn, efp) -> np.ndarray:
@@ -341,7 +365,7 @@ def _contact_potentials(frame: DeviceFrame, vd_key: float, ends, net, efn, efp) 
         if len(cache) > 256:
             cache.clear()
         d = frame.design
-        bands = frame.bands.at(ends)
+        bands = frame.charge_bands.at(ends)
         polished = None
         if cache and (d.source_resistance_ohm_um > 0 or d.drain_resistance_ohm_um > 0):
             # the series-resistance loop visits a new internal V_d at every solve: Newton
@@ -370,6 +394,6 @@ def initial_guess(frame: DeviceFrame, problem: PoissonProblem) -> np.ndarray:
     """Charge-neutral potential in the semiconductor, extended across the oxides [V]."""
     mesh = frame.mesh
     net = frame.donors_cm3 - frame.acceptors_cm3
-    psi_x = neutral_potential(frame.bands, net, problem.efn_eV, problem.efp_eV)
+    psi_x = neutral_potential(frame.charge_bands, net, problem.efn_eV, problem.efp_eV)
     psi = np.repeat(psi_x[:, None], mesh.ny, axis=1)
     return np.where(problem.dirichlet, problem.dirichlet_psi_V, psi)

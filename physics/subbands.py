@@ -166,9 +166,10 @@ def _stack(design: Design):
     return bottom, top, y0
 
 
-@lru_cache(maxsize=64)
-def device_subbands(design: Design) -> DeviceSubbands:
-    """Flat-well subbands of the design's body (cached per design)."""
+def _well(design: Design):
+    """The flat well across the body: (y [nm], body mask per cell, electron barrier
+    per cell [eV], hole barrier per cell [eV], barrier mass per cell [m0], alpha of the
+    body [1/eV], y of the body's bottom face in mesh coordinates [nm])."""
     sc_rec = design.semiconductor
     bottom, top, y0 = _stack(design)
     t = design.body_thickness_nm
@@ -192,6 +193,14 @@ def device_subbands(design: Design) -> DeviceSubbands:
                  top.electron_affinity_eV + top.bandgap_eV - sc_rec.electron_affinity_eV - eg)
     m_bar = barrier(bottom.tunnelling_mass, top.tunnelling_mass)
     alpha_body = sc_rec.nonparabolicity_at_per_eV(design.temperature_K)
+    return y, body, ve, vh, m_bar, alpha_body, y0
+
+
+def _states(design: Design, counts: tuple[int, int, int]) -> tuple[list[Subband], list[Subband]]:
+    """The lowest (conduction, HH, LH) = ``counts`` flat-well states: conduction states,
+    and the valence states sorted by confinement energy."""
+    sc_rec = design.semiconductor
+    y, body, ve, vh, m_bar, alpha_body, y0 = _well(design)
     alpha = np.where(body, alpha_body, 0.0)
 
     def states(v, m_well, n, labels, kind, inplane, a=0.0, a_inplane=0.0):
@@ -203,13 +212,55 @@ def device_subbands(design: Design) -> DeviceSubbands:
                         y + y0, sb.wavefunctions[i] ** 2, sb.wavefunctions[i].copy(), weight)
                 for i in range(n)]
 
-    cond = states(ve, sc_rec.electron_mass, N_CONDUCTION, "C", "conduction",
+    cond = states(ve, sc_rec.electron_mass, counts[0], "C", "conduction",
                   sc_rec.electron_mass, alpha, alpha_body)
-    hh = states(vh, sc_rec.heavy_hole_mass_confined, N_HEAVY, "HH", "valence",
+    hh = states(vh, sc_rec.heavy_hole_mass_confined, counts[1], "HH", "valence",
                 sc_rec.heavy_hole_mass_inplane)
-    lh = states(vh, sc_rec.light_hole_mass_confined, N_LIGHT, "LH", "valence",
+    lh = states(vh, sc_rec.light_hole_mass_confined, counts[2], "LH", "valence",
                 sc_rec.light_hole_mass_inplane)
-    val = sorted(hh + lh, key=lambda s: s.energy_eV)
+    return cond, sorted(hh + lh, key=lambda s: s.energy_eV)
+
+
+@lru_cache(maxsize=64)
+def device_subbands(design: Design) -> DeviceSubbands:
+    """Flat-well subbands of the design's body (cached per design)."""
+    cond, val = _states(design, (N_CONDUCTION, N_HEAVY, N_LIGHT))
+    y, body, ve, _, m_bar, _, _ = _well(design)
+    return DeviceSubbands(conduction=tuple(cond), valence=tuple(val),
+                          electron_well=(y, body, ve, m_bar))
+
+
+#: Confinement energy up to which subbands hold charge (`charge_subbands`) [eV], and the
+#: most states of each kind (C, HH, LH) kept. Engineering choice, no source: a subband
+#: 0.6 eV above the Fermi level holds exp(-23) of its degenerate share at 300 K, and the
+#: doped regions of the design ranges put the Fermi level at most ~0.3 eV inside a band.
+CHARGE_CUTOFF_EV = 0.9
+CHARGE_MAX_STATES = 24
+
+
+@lru_cache(maxsize=64)
+def charge_subbands(design: Design) -> DeviceSubbands:
+    """The flat-well subbands that hold the carriers of the body's charge (cached).
+
+    The same well, masses and labels as `device_subbands`, with every state of each
+    kind whose confinement energy is below `CHARGE_CUTOFF_EV` (at least one, at most
+    `CHARGE_MAX_STATES`); the lowest of each kind are those of `device_subbands`.
+    """
+    counts = []
+    for i in range(3):
+        n = 4
+        while True:
+            probe = [1, 1, 1]
+            probe[i] = n
+            cond, val = _states(design, tuple(probe))
+            states = cond if i == 0 else [s for s in val if s.label.startswith(("HH", "LH")[i - 1])]
+            below = sum(s.energy_eV < CHARGE_CUTOFF_EV for s in states)
+            if below < n or n >= CHARGE_MAX_STATES:
+                counts.append(max(1, min(below, CHARGE_MAX_STATES)))
+                break
+            n = min(2 * n, CHARGE_MAX_STATES)
+    cond, val = _states(design, tuple(counts))
+    y, body, ve, _, m_bar, _, _ = _well(design)
     return DeviceSubbands(conduction=tuple(cond), valence=tuple(val),
                           electron_well=(y, body, ve, m_bar))
 

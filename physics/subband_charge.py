@@ -1,0 +1,279 @@
+"""Carrier charge of the thin body from its 2D confinement subbands.
+
+The alternative to the quantum-corrected semiclassical charge of `physics.poisson`
+(bulk 3D density of states with the band edges shifted by the lowest subbands). Each
+column x of the body holds, per subband n with in-plane mass m_n (the masses transport
+uses, `physics.subbands`), the sheet density of a 2D parabolic band of spin-degenerate
+states (e.g. Davies, The Physics of Low-dimensional Semiconductors, 1998, ch. 3 — from
+memory; the 2D density of states m/(pi hbar^2) times the Fermi integral of order 0):
+
+    N_n(x) = (m_n kT / pi hbar^2) ln(1 + exp((F(x) - E_n(x)) / kT))           (1)
+
+(electrons; holes with E_n - F), distributed across the body with the state's envelope,
+
+    n(x, y) = sum_n N_n(x) |phi_n(y)|^2.                                      (2)
+
+The subband edge follows the local potential by first-order perturbation, as for
+transport, E_n(x) = E_n^0 + sum_j u_n,j E_c(x, y_j) (`physics.subbands`, eq. (1)),
+with u_n,j = |phi_n(y_j)|^2 dy_j the quadrature weight of node j, the semiconductor part
+of its control volume, renormalised to sum 1. The same weights put the charge on the
+nodes, so the charge term of the Poisson residual at node (i, j),
+q dx_i sum_n N_n(x_i) u_n,j, has the derivative
+
+    d/d psi_(i,j') = q dx_i sum_n (dN_n/dF) u_n,j u_n,j'                      (3)
+
+a symmetric, positive semi-definite block within each column: it fits inside the band
+of the banded Cholesky Newton matrix (unknowns ordered y fastest), so Newton keeps its
+exact Jacobian and its speed (`physics.poisson`).
+
+Limits, stated: the envelopes are those of the flat well (no self-consistent
+Schrödinger–Poisson: the potential across the body moves the edges, eq. (1) of
+`physics.subbands`, but does not reshape phi_n); in-plane dispersions are parabolic with
+the subband-edge masses (conduction m*(1 + 2 alpha E_n); holes the uncoupled Luttinger
+in-plane masses, which ignore the heavy/light-hole mixing that makes hole subbands
+heavier away from k = 0: the hole charge is underestimated at a given Fermi level, so
+a degenerate p+ source has its Fermi level deeper in the valence band than a coupled
+k.p model would give); subbands up to `subbands.CHARGE_CUTOFF_EV` hold charge; a
+heterojunction's interface node takes the subbands of the side it is assigned to by
+`heterojunction.source_nodes` (the semiclassical charge splits its control volume).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.special import expit
+
+from sub60.physics.constants import ELECTRON_MASS_KG, ELEMENTARY_CHARGE_C, HBAR_J_S, QE_V_NM2_CM3
+
+#: 2D density of states of a band of mass m0, spin included, m0 / (pi hbar^2) [cm^-2 eV^-1]
+DOS_2D_CM2_PER_EV: float = ELECTRON_MASS_KG / (math.pi * HBAR_J_S**2) * ELEMENTARY_CHARGE_C * 1e-4
+# 1 cm^-2 spread over 1 nm is 1e7 cm^-3
+_CM3_PER_CM2_NM = 1e7
+
+
+def sheet_density_cm2(mass_rel: np.ndarray, eta: np.ndarray, kT_eV: float) -> np.ndarray:
+    """Sheet density of 2D parabolic subbands, eq. (1) [cm^-2].
+
+    mass_rel : in-plane mass [m0]; eta : (F - E_n) / kT for electrons, (E_n - F) / kT
+    for holes [-]; kT_eV : thermal energy [eV].
+    """
+    return DOS_2D_CM2_PER_EV * np.asarray(mass_rel) * kT_eV * np.logaddexp(0.0, eta)
+
+
+def column_weights(y_fine_nm: np.ndarray, density: np.ndarray, y_nodes_nm: np.ndarray,
+                   dy_semi_nm: np.ndarray) -> np.ndarray:
+    """Weights u_j of |phi|^2 on the mesh rows that hold semiconductor, summing to 1 [-].
+
+    |phi|^2 interpolated linearly at each node times the semiconductor part of the node's
+    control-volume height; zero on dielectric nodes.
+    """
+    rho = np.interp(y_nodes_nm, y_fine_nm, density, left=0.0, right=0.0)
+    w = rho * dy_semi_nm
+    total = w.sum()
+    if total <= 0.0:
+        raise ValueError("the subband envelope does not overlap the body's mesh rows")
+    return w / total
+
+
+@dataclass(frozen=True, eq=False)
+class SubbandCharge:
+    """2D-subband charge of a design's body on a mesh, eqs. (1)-(3).
+
+    Arrays over the subbands k of both kinds (conduction first, then valence):
+    ``electron`` (K,) True for conduction subbands; ``energy_eV`` (K, nx) confinement
+    energy above E_c (conduction) or below E_v (valence) of each column's material;
+    ``mass`` (K, nx) in-plane mass [m0]; ``weights`` (K, nx, nb) u_k,j on the body rows
+    ``rows`` (slice of the mesh rows that hold semiconductor); ``dy_semi_nm`` (nb,);
+    ``dx_nm`` (nx,); ``chi_eV``, ``eg_eV`` (nx,) affinity and gap [eV]; ``kT_eV``.
+    """
+
+    electron: np.ndarray
+    energy_eV: np.ndarray
+    mass: np.ndarray
+    weights: np.ndarray
+    rows: slice
+    ny: int
+    dy_semi_nm: np.ndarray
+    dx_nm: np.ndarray
+    chi_eV: np.ndarray
+    eg_eV: np.ndarray
+    kT_eV: float
+
+    @property
+    def nbytes(self) -> int:
+        return int(self.energy_eV.nbytes + self.mass.nbytes + self.weights.nbytes)
+
+    def _edges(self, psi_body: np.ndarray) -> np.ndarray:
+        """(K, nx) subband edges [eV]: conduction E_n, valence E_m (first-order, eq. (1))."""
+        ec = -self.chi_eV[:, None] - psi_body  # (nx, nb)
+        avg_ec = np.einsum("kij,ij->ki", self.weights, ec)
+        e = self.electron[:, None]
+        return np.where(e, avg_ec + self.energy_eV, avg_ec - self.eg_eV[None, :] - self.energy_eV)
+
+    def evaluate(self, psi_V: np.ndarray, efn_eV: np.ndarray, efp_eV: np.ndarray):
+        """Node densities and the Jacobian of the charge.
+
+        Parameters
+        ----------
+        psi_V : (nx, ny) potential [V]; efn_eV, efp_eV : (nx,) quasi-Fermi levels [eV].
+
+        Returns
+        -------
+        n, p : (nx, ny) [cm^-3]; dn, dp : (nx, ny) their derivatives by the node's own
+        potential [cm^-3 / V]; band : (ny + 1, nx * ny) the derivative of the charge
+        term of the residual, q dx sum_k (dN_k/dF) u u^T, in LAPACK's upper banded form
+        (row ny the diagonal) [V / V].
+        """
+        nx = psi_V.shape[0]
+        kT = self.kT_eV
+        psi_body = psi_V[:, self.rows]
+        edges = self._edges(psi_body)
+        e = self.electron[:, None]
+        eta = np.where(e, efn_eV[None, :] - edges, edges - efp_eV[None, :]) / kT
+        sheet = sheet_density_cm2(self.mass, eta, kT)  # (K, nx)
+        dsheet = DOS_2D_CM2_PER_EV * self.mass * expit(eta)  # |dN/dE_n| [cm^-2 / eV]
+        inv_dy = _CM3_PER_CM2_NM / self.dy_semi_nm
+        w = self.weights
+        ne = np.einsum("ki,kij->ij", np.where(e, sheet, 0.0), w) * inv_dy
+        nh = np.einsum("ki,kij->ij", np.where(e, 0.0, sheet), w) * inv_dy
+        dne = np.einsum("ki,kij->ij", np.where(e, dsheet, 0.0), w * w) * inv_dy
+        dnh = np.einsum("ki,kij->ij", np.where(e, 0.0, dsheet), w * w) * inv_dy
+        n = np.zeros_like(psi_V)
+        p = np.zeros_like(psi_V)
+        dn = np.zeros_like(psi_V)
+        dp = np.zeros_like(psi_V)
+        n[:, self.rows], p[:, self.rows] = ne, nh
+        dn[:, self.rows], dp[:, self.rows] = dne, -dnh
+        # eq. (3): per column i the block C_ik u_k u_k^T, upper band offsets d = 0..nb-1
+        nb = w.shape[2]
+        coef = QE_V_NM2_CM3 * _CM3_PER_CM2_NM * self.dx_nm[None, :] * dsheet  # (K, nx)
+        # P[k, i, d, b] = u[k, i, b - d] u[k, i, b]  (b >= d)
+        block = np.zeros((nx, nb, nb))
+        for d in range(nb):
+            block[:, d, d:] = np.einsum("ki,kib->ib", coef, w[:, :, : nb - d] * w[:, :, d:])
+        band = np.zeros((self.ny + 1, nx, self.ny))
+        j0 = self.rows.start
+        band[self.ny - nb + 1:, :, j0:j0 + nb] = block.transpose(1, 0, 2)[::-1]
+        return n, p, dn, dp, band.reshape(self.ny + 1, nx * self.ny)
+
+    def column_model(self) -> ColumnCharge:
+        """The charge of a column at uniform potential, for charge-neutral contacts."""
+        thickness = float(self.dy_semi_nm.sum())
+        return ColumnCharge(self.electron, self.energy_eV, self.mass, thickness, self.chi_eV,
+                            self.eg_eV, self.kT_eV)
+
+
+@dataclass(frozen=True, eq=False)
+class ColumnCharge:
+    """Mean densities of a body column at uniform potential psi (the weights sum to 1,
+    so every subband edge moves with the bulk edge): n = sum_n N_n / t [cm^-3].
+
+    The same interface as `poisson.BandParameters` for `poisson.neutral_potential`:
+    ``densities``, ``at``, ``bracket_eV``; arrays along the first axis are x.
+    """
+
+    electron: np.ndarray
+    energy_eV: np.ndarray  # (K, nx)
+    mass: np.ndarray  # (K, nx)
+    thickness_nm: float
+    chi_eV: np.ndarray  # (nx,)
+    eg_eV: np.ndarray  # (nx,)
+    kT_eV: float
+
+    def at(self, index) -> ColumnCharge:
+        """The columns at some nodes along x."""
+        return ColumnCharge(self.electron, self.energy_eV[:, index], self.mass[:, index],
+                            self.thickness_nm, self.chi_eV[index], self.eg_eV[index], self.kT_eV)
+
+    def densities(self, psi_V, efn_eV, efp_eV):
+        """n, p [cm^-3] and dn/dpsi, dp/dpsi [cm^-3 / V] of columns at potential psi (nx,)."""
+        psi = np.asarray(psi_V, float)
+        ec = -self.chi_eV - psi
+        e = self.electron[:, None]
+        edges = np.where(e, ec + self.energy_eV, ec - self.eg_eV - self.energy_eV)
+        efn = np.broadcast_to(np.asarray(efn_eV, float), psi.shape)
+        efp = np.broadcast_to(np.asarray(efp_eV, float), psi.shape)
+        eta = np.where(e, efn - edges, edges - efp) / self.kT_eV
+        scale = _CM3_PER_CM2_NM / self.thickness_nm
+        sheet = sheet_density_cm2(self.mass, eta, self.kT_eV) * scale
+        dsheet = DOS_2D_CM2_PER_EV * self.mass * expit(eta) * scale
+        n = np.where(e, sheet, 0.0).sum(axis=0)
+        p = np.where(e, 0.0, sheet).sum(axis=0)
+        dn = np.where(e, dsheet, 0.0).sum(axis=0)
+        dp = -np.where(e, 0.0, dsheet).sum(axis=0)
+        return n, p, dn, dp
+
+    def bracket_eV(self, net_cm3, efn_eV, efp_eV):
+        """Potentials [V] between which the neutral one lies (lo: holes dominate)."""
+        net = np.asarray(net_cm3, float)
+        # degenerate depth of a 2D band of the lowest subbands' total DOS, linear in N
+        dos = _CM3_PER_CM2_NM / self.thickness_nm * DOS_2D_CM2_PER_EV
+        gn = dos * np.where(self.electron[:, None], self.mass, 0.0).sum(axis=0)
+        gp = dos * np.where(self.electron[:, None], 0.0, self.mass).sum(axis=0)
+        deep_n = np.maximum(net, 0.0) / gn
+        deep_p = np.maximum(-net, 0.0) / gp
+        top = np.max(self.energy_eV, axis=0)
+        lo = -self.chi_eV - self.eg_eV - top - np.maximum(efn_eV, efp_eV) - 2.0 - deep_p
+        hi = -self.chi_eV + top - np.minimum(efn_eV, efp_eV) + 2.0 + deep_n
+        return lo, hi
+
+
+def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> SubbandCharge:
+    """The 2D-subband charge of a design on its mesh.
+
+    Parameters
+    ----------
+    design : Design; mesh : Mesh (`structure.build_mesh`); x_source : (nx,) True at the
+    nodes of source material of a heterojunction (None: a homojunction).
+    """
+    from sub60.physics.constants import thermal_energy_eV
+    from sub60.physics.subbands import charge_subbands
+
+    dy = mesh.dy_semiconductor_nm
+    semi = np.flatnonzero(dy > 0)
+    rows = slice(int(semi[0]), int(semi[-1]) + 1)
+    y_rows = mesh.y_nm[rows]
+    dy_rows = dy[rows]
+    nx = mesh.nx
+
+    def region(d):
+        sb = charge_subbands(d)
+        states = list(sb.conduction) + list(sb.valence)
+        rec = d.semiconductor
+        return (states, rec)
+
+    regions = [region(design)]
+    if x_source is not None and np.any(x_source):
+        regions.append(region(design.source_body_design()))
+    # the same subband count in every region: the smallest of each kind
+    def kinds(states):
+        return ([s for s in states if s.kind == "conduction"], [s for s in states if s.kind != "conduction"])
+    n_c = min(len(kinds(r[0])[0]) for r in regions)
+    n_v = min(len(kinds(r[0])[1]) for r in regions)
+    K = n_c + n_v
+    electron = np.r_[np.ones(n_c, bool), np.zeros(n_v, bool)]
+    energy = np.empty((K, nx))
+    mass = np.empty((K, nx))
+    weights = np.empty((K, nx, rows.stop - rows.start))
+    chi = np.empty(nx)
+    eg = np.empty(nx)
+    masks = [np.ones(nx, bool)] if len(regions) == 1 else [~x_source, x_source]
+    for (states, rec), mask in zip(regions, masks, strict=True):
+        c, v = kinds(states)
+        sel = c[:n_c] + v[:n_v]
+        energy[:, mask] = np.array([s.energy_eV for s in sel])[:, None]
+        mass[:, mask] = np.array([s.inplane_mass for s in sel])[:, None]
+        u = np.array([column_weights(s.y_nm, s.density, y_rows, dy_rows) for s in sel])
+        weights[:, mask, :] = u[:, None, :]
+        eg[mask] = float(rec.bandgap_eV(design.temperature_K))
+    if len(regions) == 1:
+        chi[:] = design.semiconductor.electron_affinity_eV
+    else:
+        from sub60.physics.heterojunction import source_affinity_eV
+
+        chi[:] = np.where(x_source, source_affinity_eV(design), design.semiconductor.electron_affinity_eV)
+    return SubbandCharge(electron, energy, mass, weights, rows, mesh.ny, dy_rows, mesh.dx_nm,
+                         chi, eg, thermal_energy_eV(design.temperature_K))

@@ -1,0 +1,146 @@
+"""The 2D-subband charge of the body (`physics.subband_charge`, Design.charge_model).
+
+Checks against sources outside the project:
+- one subband's sheet density: the 2D density of states m/(pi hbar^2) (spin included)
+  times the Fermi integral of order 0, kT ln(1 + e^eta) (Davies, The Physics of
+  Low-dimensional Semiconductors, 1998, ch. 3 — from memory), against a direct numerical
+  integral of DOS x Fermi function with scipy.integrate.quad and constants from
+  scipy.constants;
+- the 3D limit: the subbands of an infinite well, E_n = hbar^2 pi^2 n^2 / (2 m t^2),
+  summed and divided by t tend to the bulk N_c F_1/2(eta) as t grows (Sze & Ng,
+  Physics of Semiconductor Devices, 2007, ch. 1; F_1/2 = -Li_3/2(-e^eta), DLMF §25.12,
+  evaluated with mpmath), with the first-order error of the Euler–Maclaurin sum
+  (a missing half n = 0 term: error x t tends to a constant), measured as an order;
+- the Newton Jacobian of the charge, eq. (3): against central finite differences;
+- the comparison with the semiclassical charge on the default design.
+"""
+
+from __future__ import annotations
+
+import math
+
+import mpmath
+import numpy as np
+import pytest
+import scipy.constants as sc
+from scipy.integrate import quad
+
+from sub60.physics.design import Design
+from sub60.physics.electrostatics import solve_electrostatics
+from sub60.physics.poisson import QE_V_NM2_CM3
+from sub60.physics.structure import build_frame, problem_at_bias
+from sub60.physics.subband_charge import ColumnCharge, sheet_density_cm2
+
+KT = sc.k * 300.0 / sc.e  # [eV]
+
+
+@pytest.mark.parametrize("eta", [-6.0, -1.0, 0.0, 2.0, 8.0])
+def test_single_subband_sheet_density_is_the_2d_dos_times_the_fermi_function(eta):
+    mass = 0.041
+    dos = mass * sc.m_e / (math.pi * sc.hbar**2) * sc.e * 1e-4  # [cm^-2 eV^-1]
+    # sheet = int_0^inf DOS f(E) dE, subband edge at 0, Fermi level at eta kT
+    integral, _ = quad(lambda e: dos / (1.0 + math.exp((e - eta * KT) / KT)), 0.0, 60 * KT + max(eta, 0) * KT)
+    assert sheet_density_cm2(mass, np.array(eta), KT) == pytest.approx(integral, rel=1e-9)
+
+
+def _infinite_well_column(t_nm: float, mass: float, n_states: int) -> ColumnCharge:
+    hb = sc.hbar**2 / (2 * mass * sc.m_e) / sc.e * 1e18  # hbar^2 / 2m [eV nm^2]
+    e_n = hb * (np.pi * np.arange(1, n_states + 1) / t_nm) ** 2
+    return ColumnCharge(electron=np.ones(n_states, bool), energy_eV=e_n[:, None],
+                        mass=np.full((n_states, 1), mass), thickness_nm=t_nm,
+                        chi_eV=np.zeros(1), eg_eV=np.ones(1), kT_eV=KT)
+
+
+def _bulk_cm3(mass: float, eta: float) -> float:
+    nc = 2.0 * (mass * sc.m_e * sc.k * 300.0 / (2 * math.pi * sc.hbar**2)) ** 1.5 * 1e-6
+    f_half = float(mpmath.re(-mpmath.polylog(1.5, -mpmath.exp(eta))))  # F_1/2, DLMF §25.12
+    return nc * f_half
+
+
+@pytest.mark.parametrize("eta", [-3.0, 0.0, 4.0])
+def test_subband_sum_tends_to_the_bulk_density_as_the_well_thickens(eta):
+    mass = 0.067
+    bulk = _bulk_cm3(mass, eta)
+    errors = []
+    thicknesses = (80.0, 160.0, 320.0, 640.0, 1280.0)
+    for t in thicknesses:
+        col = _infinite_well_column(t, mass, n_states=4000)
+        # psi = 0 and chi = 0: E_c = 0; the electron Fermi level eta kT above it
+        n, _, _, _ = col.densities(np.zeros(1), np.array([eta * KT]), np.array([-5.0]))
+        errors.append(abs(n[0] / bulk - 1.0))
+    assert errors[-1] < 0.01
+    orders = [math.log2(errors[i] / errors[i + 1]) for i in range(len(errors) - 1)]
+    assert all(0.9 < o < 1.1 for o in orders), orders  # first order in 1/t (Euler–Maclaurin)
+
+
+@pytest.fixture(scope="module")
+def frames():
+    d = Design()
+    return build_frame(d.replace(charge_model="subbands")), build_frame(d)
+
+
+def test_charge_jacobian_matches_finite_differences(frames):
+    frame, _ = frames
+    es = solve_electrostatics(frame.design, 0.25, 0.3)
+    prob = problem_at_bias(frame, 0.25, 0.3)
+    sbc = frame.subband_charge
+    psi = es.psi_V.copy()
+    nx, ny = psi.shape
+    area = frame.operator.area_semi
+
+    def term(p):  # the charge term q area (n - p) of the residual, per node [V]
+        n, pp, _, _, _ = sbc.evaluate(p, prob.efn_eV, prob.efp_eV)
+        return (QE_V_NM2_CM3 * area * (n - pp)).ravel()
+
+    _, _, _, _, band = sbc.evaluate(psi, prob.efn_eV, prob.efp_eV)
+    jac = np.zeros((nx * ny, nx * ny))
+    for r in range(ny + 1):  # upper band -> full symmetric matrix
+        d = ny - r
+        k = np.arange(d, nx * ny)
+        jac[k - d, k] = band[r, d:]
+        jac[k, k - d] = band[r, d:]
+    rng = np.random.default_rng(3)
+    for i in (5, nx // 3, nx // 2, nx - 10):
+        v = np.zeros((nx, ny))
+        v[i, :] = rng.normal(size=ny) * 1e-4
+        v[i, ~frame.mesh.node_semiconductor] = 0.0
+        fd = (term(psi + v) - term(psi - v)) / 2.0
+        exact = jac @ v.ravel()
+        assert np.max(np.abs(fd - exact)) <= 1e-6 * np.max(np.abs(exact)) + 1e-14
+
+
+def test_sheet_charge_on_the_mesh_is_the_sum_of_the_subbands(frames):
+    frame, _ = frames
+    sbc = frame.subband_charge
+    prob = problem_at_bias(frame, 0.1, 0.3)
+    es = solve_electrostatics(frame.design, 0.1, 0.3)
+    n, p, _, _, _ = sbc.evaluate(es.psi_V, prob.efn_eV, prob.efp_eV)
+    sheet_nodes = (n[:, sbc.rows] * sbc.dy_semi_nm).sum(axis=1) * 1e-7  # [cm^-2]
+    edges = sbc._edges(es.psi_V[:, sbc.rows])
+    eta = (prob.efn_eV[None, :] - edges) / sbc.kT_eV
+    direct = np.where(sbc.electron[:, None], sheet_density_cm2(sbc.mass, eta, sbc.kT_eV), 0).sum(0)
+    np.testing.assert_allclose(sheet_nodes, direct, rtol=1e-12)
+
+
+def test_comparison_with_the_semiclassical_charge_on_the_default_design(frames):
+    """Both charges are neutral at the contacts (sheet = doping x thickness); the 2D
+    hole density of states with the uncoupled in-plane masses (HH1 0.035 m0) is far
+    below the bulk one (0.467 m0), so the p+ source's Fermi level lies much deeper
+    below the highest hole subband than the semiclassical one: > 0.3 eV against
+    < 0.1 eV (the figures the README quotes)."""
+    sub, semi = frames
+    t = sub.design.body_thickness_nm
+    depth = {}
+    for frame in (sub, semi):
+        es = solve_electrostatics(frame.design, 0.0, 0.3)
+        j = slice(*np.flatnonzero(frame.mesh.node_semiconductor)[[0, -1]] + [0, 1])
+        dy = frame.mesh.dy_semiconductor_nm[j]
+        sheet_src = float((es.p_cm3[0, j] * dy).sum()) * 1e-7
+        sheet_drn = float((es.n_cm3[-1, j] * dy).sum()) * 1e-7
+        assert sheet_src == pytest.approx(frame.design.source_doping_cm3 * t * 1e-7, rel=1e-6)
+        assert sheet_drn == pytest.approx(frame.design.drain_doping_cm3 * t * 1e-7, rel=1e-3)
+        # hole Fermi level (0) below the highest hole subband edge at the source contact
+        ev_top = es.bulk_ev_eV[0] - frame.bands.dev_eV
+        depth[frame.design.charge_model] = ev_top - 0.0
+    assert depth["semiclassical"] < 0.1
+    assert depth["subbands"] > 0.3
