@@ -355,6 +355,9 @@ class Controls:
         w["tunnelling_model"] = pn.widgets.RadioBoxGroup.from_param(
             s.tunnelling_model, inline=False, width=WIDGET_WIDTH, margin=(6, 10, 0, 10),
             css_classes=["ctl-tunnelling_model"])
+        w["charge_model"] = pn.widgets.RadioBoxGroup.from_param(
+            s.charge_model, inline=False, width=WIDGET_WIDTH, margin=(6, 10, 0, 10),
+            css_classes=["ctl-charge_model"])
         for name in ("gate_layout", "source_type", "channel_dopant"):
             w[name] = pn.widgets.RadioButtonGroup.from_param(
                 s[name], width=WIDGET_WIDTH, margin=(4, 10), css_classes=[f"ctl-{name}"])
@@ -382,6 +385,12 @@ class Controls:
             "exact two-band transmission solves the same two-band Hamiltonian by transfer "
             "matrices along the same subband edges (slower). The Transmission plot draws "
             "both at the present bias.</div>", stylesheets=self._css, margin=(0, 12))
+        charge_note = pn.pane.HTML(
+            '<div class="note">The 2D subbands use the uncoupled in-plane hole masses '
+            "(light for heavy holes): a degenerate p+ source then has its Fermi level far "
+            "inside the valence band and the tunnel FET loses its steep swing. The bulk "
+            "states stay the default; see the README.</div>",
+            stylesheets=self._css, margin=(0, 12))
         return [
             card("Demo designs and snapshots", *snapshots.items),
             card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], self.sweep_step,
@@ -400,5 +409,6 @@ class Controls:
                  w["temperature_K"], collapsed=True),
             card("Tunnelling model", w["tunnelling_model"], model_note,
                  collapsed=True),
+            card("Carrier charge", w["charge_model"], charge_note, collapsed=True),
             nonideal_card(self, card, WIDGET_WIDTH),  # app.nonideal_view
         ]

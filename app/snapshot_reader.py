@@ -267,7 +267,8 @@ def import_snapshot(data: bytes, max_bytes: int = MAX_SNAPSHOT_BYTES, *,
         raise SnapshotError(f"{SETTINGS_MEMBER}: {exc}") from None
     report = ImportReport(source, members, settings.sub60_version, sub60_version(),
                           settings.stored is not None,
-                          added_design_fields(settings.schema_version or SCHEMA_VERSION))
+                          added_design_fields(settings.schema_version or SCHEMA_VERSION,
+                                              doc.get("design") if isinstance(doc, dict) else None))
     if verify:
         report.differences = verify_snapshot(settings, simulator)
         report.verified = True

@@ -4,8 +4,10 @@ in `app.snapshot`).
 
 Versions: 1 stored the design fields of sub60 0.2.0 (`DESIGN_FIELDS_V1`); 2 added the
 non-ideal physics and the alloy composition (`DESIGN_FIELDS_V2`); 3 stores every field of
-`physics.design.Design`, including the heterojunction source (`HETEROJUNCTION_FIELDS`).
-An older file still opens: the fields it predates take their defaults (off, a
+`physics.design.Design`, including the heterojunction source (`HETEROJUNCTION_FIELDS`);
+fields added to the design since, each with a default (`OPTIONAL_DESIGN_FIELDS`: the
+charge model), may be absent from a version-3 file and then take their default, so the
+version stays 3. An older file still opens: the fields it predates take their defaults (off, a
 homojunction, or as before), and `added_design_fields` names them so the reader can say
 so.
 
@@ -52,9 +54,12 @@ DESIGN_FIELDS_V1: tuple[str, ...] = (
 #: The design fields version 3 added: the heterojunction source.
 HETEROJUNCTION_FIELDS: tuple[str, ...] = ("source_material", "source_composition_x",
                                           "heterointerface_nm")
+#: Design fields added after version 3 was published, each with a default that keeps
+#: what older files meant: a file of any version may omit them (no version bump).
+OPTIONAL_DESIGN_FIELDS: tuple[str, ...] = ("charge_model",)
 #: The design fields a version-2 file holds (exactly these, every one required).
 DESIGN_FIELDS_V2: tuple[str, ...] = tuple(f for f in FIELD_RANGES
-                                          if f not in HETEROJUNCTION_FIELDS)
+                                          if f not in HETEROJUNCTION_FIELDS + OPTIONAL_DESIGN_FIELDS)
 #: Version written when the installed package metadata cannot be read.
 FALLBACK_VERSION = "0.2.0+unknown"
 
@@ -272,25 +277,31 @@ _VERSION_TEXT = re.compile(r"[0-9A-Za-z][0-9A-Za-z.+_-]{0,63}")
 
 
 def design_fields(schema_version: int) -> tuple[str, ...]:
-    """The design fields a file of ``schema_version`` holds (all of them required)."""
+    """The design fields a file of ``schema_version`` must hold (`OPTIONAL_DESIGN_FIELDS`
+    may come in addition)."""
     if schema_version == 1:
         return DESIGN_FIELDS_V1
     if schema_version == 2:
         return DESIGN_FIELDS_V2
-    return tuple(FIELD_RANGES)
+    return tuple(f for f in FIELD_RANGES if f not in OPTIONAL_DESIGN_FIELDS)
 
 
-def added_design_fields(schema_version: int) -> tuple[str, ...]:
+def added_design_fields(schema_version: int, design: Any = None) -> tuple[str, ...]:
     """Design fields this sub60 has that a file of ``schema_version`` predates (they
-    take their defaults when it is read)."""
+    take their defaults when it is read); with the file's ``design`` object, the
+    optional fields it omits count too, and those it holds do not."""
     held = set(design_fields(schema_version))
+    if isinstance(design, dict):
+        held |= {f for f in OPTIONAL_DESIGN_FIELDS if f in design}
     return tuple(f for f in FIELD_RANGES if f not in held)
 
 
 def _design(data: Any, path: str, schema_version: int = SCHEMA_VERSION) -> Design:
     names = design_fields(schema_version)
-    # every field of its version: a stored design must not lean on defaults
-    FieldReader(data, path, names, names)
+    # every field of its version: a stored design must not lean on defaults (the
+    # optional fields, added later with defaults, may be absent)
+    known = names + tuple(f for f in OPTIONAL_DESIGN_FIELDS if f not in names)
+    FieldReader(data, path, known, names)
     try:
         return Design.from_dict(data)
     except ValueError as exc:

@@ -115,6 +115,7 @@ DESIGN_PARAMETERS: tuple[str, ...] = (
     "source_type", "source_doping_log10_cm3", "channel_dopant", "channel_doping_log10_cm3",
     "drain_doping_log10_cm3", "doping_gradient_nm_per_dec",
     "oxide", "oxide_thickness_nm", "oxide_permittivity", "gate_workfunction_eV",
+    "charge_model",
 ) + NONIDEAL_FIELDS  # non-idealities: app.nonideal
 #: The tunnelling model of the physics (`physics.TUNNELLING_MODELS`) in plain words, as
 #: the page and its messages name it.
@@ -294,6 +295,16 @@ class ExplorerState(NonIdealSettings):
             "one-band imaginary wave-vector, or the exact two-band transmission "
             "(physics.TUNNELLING_MODELS).")
 
+    charge_model = param.Selector(
+        default=_DEFAULT.charge_model,
+        objects={"bulk states, shifted edges": "semiclassical",
+                 "2D subbands": "subbands"},
+        label="Carrier charge",
+        doc="Density of states of the body's charge in the electrostatics: the bulk one "
+            "with the band edges shifted by the lowest subbands, or the 2D density of "
+            "states of every confinement subband with the in-plane masses transport uses "
+            "(Design.charge_model).")
+
     # ---------------------------------------------------------------- display
     presentation = param.Boolean(default=False, label="Presentation mode (P)",
                                  doc="Hide the controls and enlarge the header and metrics (key: P).")
@@ -387,6 +398,7 @@ class ExplorerState(NonIdealSettings):
             source_composition_x=(self.source_composition_x
                                   if self.source_material in alloys() else 0.0),
             heterointerface_nm=self.heterointerface_nm,
+            charge_model=self.charge_model,
             **self.nonideal_fields(),  # non-idealities: app.nonideal
         )
 
@@ -404,7 +416,8 @@ class ExplorerState(NonIdealSettings):
                      "source_length_nm", "drain_length_nm", "oxide_thickness_nm", "oxide",
                      "gate_workfunction_eV", "gate_layout", "buried_oxide_thickness_nm",
                      "gate_source_offset_nm", "temperature_K", "composition_x",
-                     "source_material", "source_composition_x", "heterointerface_nm"):
+                     "source_material", "source_composition_x", "heterointerface_nm",
+                     "charge_model"):
             out[name] = getattr(design, name)
         out.update({name: getattr(design, name) for name in NONIDEAL_FIELDS})
         if design.oxide_permittivity is not None:

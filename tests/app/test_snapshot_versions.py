@@ -23,6 +23,7 @@ from sub60.app.snapshot_schema import (
     DESIGN_FIELDS_V1,
     DESIGN_FIELDS_V2,
     HETEROJUNCTION_FIELDS,
+    OPTIONAL_DESIGN_FIELDS,
     SCHEMA_VERSION,
     SnapshotSettings,
     added_design_fields,
@@ -76,7 +77,26 @@ def test_each_version_requires_exactly_its_own_design_fields():
     del current["design"]["temperature_K"]
     with pytest.raises(SnapshotError, match="temperature_K"):
         SnapshotSettings.from_dict(current)
-    assert design_fields(SCHEMA_VERSION) == tuple(FIELD_RANGES)
+    assert design_fields(SCHEMA_VERSION) + OPTIONAL_DESIGN_FIELDS == tuple(FIELD_RANGES)
+
+
+def test_version_3_file_without_the_charge_model_opens_with_the_semiclassical_charge():
+    """The charge model came after version 3 with a default that keeps what a version-3
+    file meant: a file without it opens (the reader names the field), one with it keeps
+    it, and the version stays 3."""
+    current = SnapshotSettings.from_dict(_v1_document()).to_dict()
+    assert current["schema_version"] == 3 and current["design"]["charge_model"] == "semiclassical"
+    del current["design"]["charge_model"]
+    settings, report = import_snapshot(json.dumps(current).encode())
+    assert settings.design.charge_model == "semiclassical"
+    assert report.added_fields == ("charge_model",)
+    current["design"]["charge_model"] = "subbands"
+    settings, report = import_snapshot(json.dumps(current).encode())
+    assert settings.design.charge_model == "subbands" and report.added_fields == ()
+    assert SnapshotSettings.from_dict(settings.to_dict()).design.charge_model == "subbands"
+    current["design"]["charge_model"] = "quantum"
+    with pytest.raises(SnapshotError, match="charge_model"):
+        SnapshotSettings.from_dict(current)
 
 
 def test_version_1_file_may_not_hold_fields_of_a_later_version():
@@ -105,7 +125,8 @@ def test_version_2_file_opens_as_a_homojunction():
     assert settings.schema_version == 2
     assert not settings.design.is_heterojunction
     assert settings.design.source_material == "same"
-    assert report.added_fields == HETEROJUNCTION_FIELDS == added_design_fields(2)
+    assert report.added_fields == HETEROJUNCTION_FIELDS + OPTIONAL_DESIGN_FIELDS \
+        == added_design_fields(2)
 
 
 def test_version_2_file_may_not_hold_the_heterojunction_fields():
