@@ -1,4 +1,9 @@
-"""The offline page of a snapshot: its four plots, interactive, in one HTML file.
+"""The offline page of a snapshot: its plots, interactive, in one HTML file.
+
+The band diagram, the tunnelling spectrum, the transfer and output curves, and the
+transmission T(E, k = 0) of the main subband pair by WKB and by the exact two-band
+solver side by side, as the explorer's Transmission plot draws them
+(`physics.compare_transmissions`).
 
 `bokeh.embed.file_html` with the Bokeh library inlined, so the page opens without a
 network. Export-figures layer, beside `app.figures` (captions, curve labels and the
@@ -16,7 +21,7 @@ import numpy as np
 from sub60.app.figures import caption_text, labelled_curves, positive_only, reference_anchor
 from sub60.app.theme import PALETTE as COLOURS
 from sub60.app.theme import output_ramp
-from sub60.physics import thermionic_limit_mV_per_dec
+from sub60.physics import compare_transmissions, thermionic_limit_mV_per_dec
 
 if TYPE_CHECKING:
     from sub60.app.snapshot_check import SnapshotResults
@@ -96,7 +101,8 @@ def interactive_page(results: SnapshotResults) -> str:
     if results.output:
         out.legend.location = "top_left"
 
-    for p in (bands, spec, trans, out):
+    tfig = transmission_figure(results, size)
+    for p in (bands, spec, trans, out, tfig):
         p.add_tools(HoverTool(tooltips=[("x", "$x{0.000}"), ("y", "$y{0.000e}")]))
         p.legend.label_text_font_size = "8pt"
         p.legend.click_policy = "hide"
@@ -107,5 +113,44 @@ def interactive_page(results: SnapshotResults) -> str:
                        f"{html.escape(caption[1])}</p>"
                        f"<p><b>Caution:</b> {html.escape(caption[2])}. Created "
                        f"{html.escape(str(s.created_utc))}.</p>"), width=1140)
-    page = column(header, gridplot([[bands, spec], [trans, out]], toolbar_location="right"))
+    page = column(header, gridplot([[bands, spec], [trans, out], [tfig, None]],
+                                   toolbar_location="right"))
     return file_html(page, INLINE, title="sub60 snapshot")
+
+
+#: transmissions below this are left out of the log axis [-]
+_T_FLOOR = 1e-30
+
+
+def transmission_figure(results: SnapshotResults, size: dict):
+    """T(E, k = 0) of the bias point's main subband pair: WKB (the one-band decay when
+    that model is the snapshot's, else two-band) and the exact two-band transmission,
+    whatever the snapshot's model, as in the explorer; a note when no pair carries
+    current."""
+    from bokeh.models import Label
+    from bokeh.plotting import figure
+
+    bp = results.bias_point
+    wkb = "one-band" if results.settings.model.tunnelling_model == "one-band" else "two-band"
+    try:
+        tc = compare_transmissions(bp, wkb_model=wkb)
+    except ValueError:
+        tc = None
+    pair = f" of {tc.pair}" if tc is not None else ""
+    fig = figure(title=f"Transmission{pair} at Vg = {bp.vg_V:g} V, k\u22a5 = 0",
+                 x_axis_label="energy (eV)", y_axis_label="T(E) (\u2013)", y_axis_type="log",
+                 **size)
+    if tc is None:
+        fig.add_layout(Label(x=10, y=150, x_units="screen", y_units="screen",
+                             text="no band-to-band current at this bias"))
+        return fig
+    e = np.asarray(tc.energy_eV, float)
+    for values, colour, dash, label in (
+            (tc.wkb, COLOURS["design"], "solid", f"WKB ({wkb})"),
+            (tc.exact, COLOURS["twin"], "dashed", "exact two-band")):
+        t = positive_only(np.asarray(values, float))
+        keep = np.isfinite(t) & (t >= _T_FLOOR)
+        fig.line(e[keep], t[keep], color=colour, line_dash=dash, line_width=2,
+                 legend_label=label)
+    fig.legend.location = "bottom_center"
+    return fig
