@@ -513,6 +513,9 @@ def _bending_warning(es: Electrostatics, sb) -> tuple[str, ...]:
 
 
 DEGENERACY_WARN_EV = 0.5  # Fermi level this far inside a band: parabolic DOS overstated
+#: with the 2D subband charge: Fermi level this far beyond the first subband edge (about
+#: the InAs gap; engineering choice, no source) [eV]
+SUBBAND_DEGENERACY_WARN_EV = 0.3
 
 
 def design_warnings(design: Design) -> tuple[str, ...]:
@@ -558,7 +561,35 @@ def _design_warnings(design: Design) -> tuple[str, ...]:
                        f"band of {where} with the model's parabolic density of states; "
                        "real bands (non-parabolic, satellite valleys) hold it lower, so currents "
                        "from this contact are overstated.")
+    if design.charge_model == "subbands":
+        out.extend(_subband_charge_warnings(design))
     return tuple(out)
+
+
+def _subband_charge_warnings(design: Design) -> list[str]:
+    """Cautions of the 2D-subband charge (`physics.subband_charge`): one conduction valley
+    only, and contacts whose Fermi level the light uncoupled in-plane masses put deep in
+    a band."""
+    from sub60.physics.subband_charge import contact_fermi_depth_eV
+
+    out = []
+    rec = design.semiconductor
+    if rec.electron_dos_mass > 1.05 * rec.electron_mass:
+        out.append(f"charge_model 'subbands' counts one conduction valley of {design.material} "
+                   "with its confinement masses; the valley degeneracy of its bulk density of "
+                   "states is not in the subband charge, so electrons are undercounted.")
+    src_design = design.source_body_design() if design.is_heterojunction else design
+    for name, d, dop, electrons in (
+            ("source_doping_cm3", src_design, design.source_doping_cm3, design.source_type == "n"),
+            ("drain_doping_cm3", design, design.drain_doping_cm3, True)):
+        depth = contact_fermi_depth_eV(d, dop, electrons)
+        if depth > SUBBAND_DEGENERACY_WARN_EV:
+            out.append(f"{name} = {dop:.3g} cm^-3 puts the Fermi level {depth:.2f} eV beyond the "
+                       "first subband edge with the 2D subband charge (uncoupled in-plane "
+                       "masses, light for heavy holes); real, mixed subbands are heavier and "
+                       "hold it closer to the edge: the semiclassical charge is the default "
+                       "for this reason.")
+    return out
 
 
 class Simulator:

@@ -277,3 +277,26 @@ def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> Su
         chi[:] = np.where(x_source, source_affinity_eV(design), design.semiconductor.electron_affinity_eV)
     return SubbandCharge(electron, energy, mass, weights, rows, mesh.ny, dy_rows, mesh.dx_nm,
                          chi, eg, thermal_energy_eV(design.temperature_K))
+
+
+def contact_fermi_depth_eV(design, doping_cm3: float, electrons: bool) -> float:
+    """How far the Fermi level of a neutral flat column lies inside the band, measured
+    from the lowest conduction (highest valence) subband edge, eq. (1) [eV]: the
+    sheet sum_n N_n equals doping x body thickness. Positive: degenerate."""
+    from sub60.physics.constants import thermal_energy_eV
+    from sub60.physics.subbands import charge_subbands
+
+    sb = charge_subbands(design)
+    states = sb.conduction if electrons else sb.valence
+    e0 = np.array([s.energy_eV for s in states])
+    m = np.array([s.inplane_mass for s in states])
+    kT = thermal_energy_eV(design.temperature_K)
+    target = doping_cm3 * design.body_thickness_nm * 1e-7
+    lo, hi = e0[0] - 3.0, e0[0] + 3.0  # F (into the band, from the bulk edge) [eV]
+    for _ in range(80):
+        mid = 0.5 * (lo + hi)
+        if sheet_density_cm2(m, (mid - e0) / kT, kT).sum() > target:
+            hi = mid
+        else:
+            lo = mid
+    return 0.5 * (lo + hi) - float(e0[0])

@@ -144,3 +144,16 @@ def test_comparison_with_the_semiclassical_charge_on_the_default_design(frames):
         depth[frame.design.charge_model] = ev_top - 0.0
     assert depth["semiclassical"] < 0.1
     assert depth["subbands"] > 0.3
+
+
+def test_subband_charge_cautions_name_the_deep_source_and_the_single_valley():
+    from sub60.physics.simulate import design_warnings
+    from sub60.physics.subband_charge import contact_fermi_depth_eV
+
+    d = Design(charge_model="subbands")
+    depth = contact_fermi_depth_eV(d, d.source_doping_cm3, electrons=False)
+    assert 0.35 < depth < 0.45  # the figure the README quotes (0.41 eV)
+    assert any("0.41 eV beyond the first subband edge" in w for w in design_warnings(d))
+    assert not design_warnings(Design())
+    assert any("one conduction valley" in w
+               for w in design_warnings(Design(material="Si", charge_model="subbands")))
