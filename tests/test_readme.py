@@ -108,3 +108,31 @@ def test_library_example_runs(capsys):
     for code in blocks:
         exec(compile(code, "README example", "exec"), {"__name__": "readme_example"})
     assert "BiasPoint(" in capsys.readouterr().out
+
+
+def test_subband_charge_table_matches_the_code(curves):
+    """The 'Carrier charge from the subbands' table: the default (semiclassical) column
+    is the tunnel FET of the default-design table, the other the same sweep with
+    charge_model="subbands"; the twin row gives Ion / I60 of both twins."""
+    from sub60.physics.design import Design
+    from sub60.physics.simulate import Simulator
+
+    rows = {}
+    for line in section("Carrier charge from the subbands").splitlines():
+        cells = [c.strip() for c in line.strip().strip("|").split("|")]
+        if len(cells) == 3 and (cells[0] in ROWS or cells[0] == "twin Ion / I60"):
+            rows[cells[0]] = (cells[1], cells[2])
+    assert set(rows) == set(ROWS) | {"twin Ion / I60"}
+    vg = np.linspace(-0.3, 0.6, 46)
+    kw = {"ioff_target_uA_per_um": 1e-3, "vdd_V": 0.3}
+    d = Design(charge_model="subbands")
+    sub = (Simulator().transfer_curve(d, vg, 0.3, **kw),
+           Simulator().transfer_curve(d.twin(), vg, 0.3, **kw))
+    for label, field in ROWS.items():
+        for cell, curve in zip(rows[label], (curves[0], sub[0]), strict=True):
+            value, tol = printed_number(cell)
+            assert abs(getattr(curve.metrics, field).value - value) <= tol * (1 + 1e-9), label
+    for cell, twin in zip(rows["twin Ion / I60"], (curves[1], sub[1]), strict=True):
+        ion, i60 = (printed_number(part) for part in cell.split("µA")[0].split("/"))
+        assert abs(twin.metrics.ion_uA_per_um.value - ion[0]) <= ion[1] * (1 + 1e-9)
+        assert abs(twin.metrics.i60_uA_per_um.value - i60[0]) <= i60[1] * (1 + 1e-9)
