@@ -152,5 +152,5 @@ def transmission_figure(results: SnapshotResults, size: dict):
         keep = np.isfinite(t) & (t >= _T_FLOOR)
         fig.line(e[keep], t[keep], color=colour, line_dash=dash, line_width=2,
                  legend_label=label)
-    fig.legend.location = "bottom_center"
+    fig.legend.location = "bottom_right"
     return fig

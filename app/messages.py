@@ -19,7 +19,8 @@ import param
 from sub60.app.state import ExplorerState, label_of, plain_words
 
 CAUTION = ("Design-exploration model with stated approximations (semiclassical charge with "
-           "confinement-shifted band edges, two-band tunnelling by WKB or exact transmission, "
+           "confinement-shifted band edges or, as chosen, from the 2D subbands, two-band "
+           "tunnelling by WKB or exact transmission, "
            "ballistic transport; band tails, traps, series resistance and gap narrowing "
            "only as switched on, by simple published models) — "
            "not calibrated TCAD; decisions rest on local practice and measurement.")

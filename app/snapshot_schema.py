@@ -76,7 +76,8 @@ MAX_NAME_CHARS = 80
 
 SETTINGS_MEMBER = "settings.json"
 MODEL_CAUTION = ("sub60 is a design-exploration model (semiclassical charge with "
-                 "confinement-shifted band edges, WKB or exact two-band tunnelling, ballistic "
+                 "confinement-shifted band edges or, as chosen, from the 2D subbands, WKB or "
+                 "exact two-band tunnelling, ballistic "
                  "Landauer current; band tails, traps, series resistance and gap narrowing only "
                  "as switched on, by simple published models), not calibrated TCAD: its numbers "
                  "do not replace calibrated device simulation or measurements.")
