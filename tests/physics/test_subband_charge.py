@@ -157,3 +157,33 @@ def test_subband_charge_cautions_name_the_deep_source_and_the_single_valley():
     assert not design_warnings(Design())
     assert any("one conduction valley" in w
                for w in design_warnings(Design(material="Si", charge_model="subbands")))
+
+
+def test_mesh_weights_converge_at_second_order():
+    """The weights that give each column's subband edge and spread its charge,
+    u_j = |phi(y_j)|^2 dy_j / sum, integrate a smooth profile across the body at second
+    order in the mesh spacing (trapezoid rule with linear interpolation of |phi|^2;
+    common practice, no source): reference, the same body integral on the fine
+    confinement grid of the state."""
+    from sub60.physics.subband_charge import column_weights
+    from sub60.physics.subbands import charge_subbands
+
+    d = Design()
+    t = d.body_thickness_nm
+    y0 = d.oxide_thickness_nm  # the body's bottom face in mesh coordinates
+    for state in (charge_subbands(d).conduction[0], charge_subbands(d).valence[2]):
+        y, rho = state.y_nm, state.density
+        body = (y >= y0 - 1e-9) & (y <= y0 + t + 1e-9)
+
+        def profile(yy):
+            return np.cos(1.3 * (yy - y0)) + 0.2 * (yy - y0) ** 2
+
+        ref = np.trapezoid(rho[body] * profile(y[body]), y[body]) / np.trapezoid(rho[body], y[body])
+        errors = []
+        for cells in (4, 8, 16, 32):  # 1.75 … 0.22 nm; the reference grid is 0.05 nm
+            nodes = np.linspace(y0, y0 + t, cells + 1)
+            dy = np.full(cells + 1, t / cells)
+            dy[[0, -1]] *= 0.5
+            errors.append(abs(column_weights(y, rho, nodes, dy) @ profile(nodes) - ref))
+        orders = [math.log2(errors[i] / errors[i + 1]) for i in range(len(errors) - 1)]
+        assert all(1.8 < o < 2.3 for o in orders[:2]) and orders[2] > 1.8, (state.label, orders)
