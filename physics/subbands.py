@@ -48,6 +48,7 @@ from functools import cached_property, lru_cache
 import numpy as np
 
 from sub60.physics.confinement import solve_subbands, subband_weights
+from sub60.physics.constants import HBAR2_2M0_EV_NM2
 from sub60.physics.design import Design
 from sub60.physics.materials import BURIED_OXIDE, get_dielectric
 
@@ -197,28 +198,36 @@ def _well(design: Design):
 
 
 def _states(design: Design, counts: tuple[int, int, int]) -> tuple[list[Subband], list[Subband]]:
-    """The lowest (conduction, HH, LH) = ``counts`` flat-well states: conduction states,
-    and the valence states sorted by confinement energy."""
-    sc_rec = design.semiconductor
+    """The lowest (conduction, HH, LH) = ``counts`` flat-well states (a count may be 0):
+    conduction states, and the valence states sorted by confinement energy."""
     y, body, ve, vh, m_bar, alpha_body, y0 = _well(design)
-    alpha = np.where(body, alpha_body, 0.0)
+    kinds = _kinds(design, ve, vh, alpha_body)
+    out = [_kind_states(y, body, m_bar, y0, *kinds[i], n) if n else []
+           for i, n in enumerate(counts)]
+    return out[0], sorted(out[1] + out[2], key=lambda s: s.energy_eV)
 
-    def states(v, m_well, n, labels, kind, inplane, a=0.0, a_inplane=0.0):
-        mass = np.where(body, m_well, m_bar)
-        sb = solve_subbands(y, v, mass, n_states=n, nonparabolicity_per_eV=a)
-        weight = MOMENTUM_WEIGHT["conduction" if kind == "conduction" else labels]
-        return [Subband(f"{labels}{i + 1}", kind, float(sb.energies_eV[i]),
-                        inplane * (1.0 + 2.0 * a_inplane * float(sb.energies_eV[i])),
-                        y + y0, sb.wavefunctions[i] ** 2, sb.wavefunctions[i].copy(), weight)
-                for i in range(n)]
 
-    cond = states(ve, sc_rec.electron_mass, counts[0], "C", "conduction",
-                  sc_rec.electron_mass, alpha, alpha_body)
-    hh = states(vh, sc_rec.heavy_hole_mass_confined, counts[1], "HH", "valence",
-                sc_rec.heavy_hole_mass_inplane)
-    lh = states(vh, sc_rec.light_hole_mass_confined, counts[2], "LH", "valence",
-                sc_rec.light_hole_mass_inplane)
-    return cond, sorted(hh + lh, key=lambda s: s.energy_eV)
+def _kinds(design: Design, ve, vh, alpha_body):
+    """(potential, confinement mass, label, kind, in-plane mass, alpha per cell flag,
+    alpha of the in-plane mass) of C, HH and LH."""
+    rec = design.semiconductor
+    return ((ve, rec.electron_mass, "C", "conduction", rec.electron_mass, True, alpha_body),
+            (vh, rec.heavy_hole_mass_confined, "HH", "valence", rec.heavy_hole_mass_inplane,
+             False, 0.0),
+            (vh, rec.light_hole_mass_confined, "LH", "valence", rec.light_hole_mass_inplane,
+             False, 0.0))
+
+
+def _kind_states(y, body, m_bar, y0, v, m_well, labels, kind, inplane, nonparabolic,
+                 a_inplane, n) -> list[Subband]:
+    alpha = np.where(body, a_inplane, 0.0) if nonparabolic else 0.0
+    mass = np.where(body, m_well, m_bar)
+    sb = solve_subbands(y, v, mass, n_states=n, nonparabolicity_per_eV=alpha)
+    weight = MOMENTUM_WEIGHT["conduction" if kind == "conduction" else labels]
+    return [Subband(f"{labels}{i + 1}", kind, float(sb.energies_eV[i]),
+                    inplane * (1.0 + 2.0 * a_inplane * float(sb.energies_eV[i])),
+                    y + y0, sb.wavefunctions[i] ** 2, sb.wavefunctions[i].copy(), weight)
+            for i in range(n)]
 
 
 @lru_cache(maxsize=64)
@@ -231,9 +240,9 @@ def device_subbands(design: Design) -> DeviceSubbands:
 
 
 #: Confinement energy up to which subbands hold charge (`charge_subbands`) [eV], and the
-#: most states of each kind (C, HH, LH) kept. Engineering choice, no source: a subband
-#: 0.6 eV above the Fermi level holds exp(-23) of its degenerate share at 300 K, and the
-#: doped regions of the design ranges put the Fermi level at most ~0.3 eV inside a band.
+#: most states of each kind (C, HH, LH) kept. Engineering choice, no source: with the
+#: Fermi level up to 0.4-0.5 eV beyond the first subband (a 4e19 source with the
+#: subband charge), a subband at 0.9 eV still lies ~16 kT above it at 300 K.
 CHARGE_CUTOFF_EV = 0.9
 CHARGE_MAX_STATES = 24
 
@@ -246,22 +255,23 @@ def charge_subbands(design: Design) -> DeviceSubbands:
     kind whose confinement energy is below `CHARGE_CUTOFF_EV` (at least one, at most
     `CHARGE_MAX_STATES`); the lowest of each kind are those of `device_subbands`.
     """
-    counts = []
-    for i in range(3):
-        n = 4
+    y, body, ve, vh, m_bar, alpha_body, y0 = _well(design)
+    found = []
+    for spec in _kinds(design, ve, vh, alpha_body):
+        # first guess: the parabolic infinite well, E_n = hbar^2 pi^2 n^2 / (2 m t^2),
+        # which lies above the finite, non-parabolic well's states: too few, never too many
+        guess = design.body_thickness_nm / np.pi * np.sqrt(CHARGE_CUTOFF_EV / HBAR2_2M0_EV_NM2
+                                                           * spec[1])
+        n = int(min(CHARGE_MAX_STATES, np.ceil(guess) + 2))
         while True:
-            probe = [1, 1, 1]
-            probe[i] = n
-            cond, val = _states(design, tuple(probe))
-            states = cond if i == 0 else [s for s in val if s.label.startswith(("HH", "LH")[i - 1])]
-            below = sum(s.energy_eV < CHARGE_CUTOFF_EV for s in states)
-            if below < n or n >= CHARGE_MAX_STATES:
-                counts.append(max(1, min(below, CHARGE_MAX_STATES)))
+            states = _kind_states(y, body, m_bar, y0, *spec, n)
+            below = [s for s in states if s.energy_eV < CHARGE_CUTOFF_EV]
+            if len(below) < n or n >= CHARGE_MAX_STATES:
+                found.append(below or states[:1])
                 break
             n = min(2 * n, CHARGE_MAX_STATES)
-    cond, val = _states(design, tuple(counts))
-    y, body, ve, _, m_bar, _, _ = _well(design)
-    return DeviceSubbands(conduction=tuple(cond), valence=tuple(val),
+    return DeviceSubbands(conduction=tuple(found[0]),
+                          valence=tuple(sorted(found[1] + found[2], key=lambda s: s.energy_eV)),
                           electron_well=(y, body, ve, m_bar))
 
 
