@@ -85,15 +85,18 @@ class SubbandCharge:
     Arrays over the subbands k of both kinds (conduction first, then valence):
     ``electron`` (K,) True for conduction subbands; ``energy_eV`` (K, nx) confinement
     energy above E_c (conduction) or below E_v (valence) of each column's material;
-    ``mass`` (K, nx) in-plane mass [m0]; ``weights`` (K, nx, nb) u_k,j on the body rows
-    ``rows`` (slice of the mesh rows that hold semiconductor); ``dy_semi_nm`` (nb,);
-    ``dx_nm`` (nx,); ``chi_eV``, ``eg_eV`` (nx,) affinity and gap [eV]; ``kT_eV``.
+    ``mass`` (K, nx) in-plane mass [m0]; ``region`` (nx,) the material region of each
+    column (0 the body, 1 a heterojunction's source); ``region_weights`` (R, K, nb) u_k,j
+    of each region on the body rows ``rows`` (slice of the mesh rows that hold
+    semiconductor); ``dy_semi_nm`` (nb,); ``dx_nm`` (nx,); ``chi_eV``, ``eg_eV`` (nx,)
+    affinity and gap [eV]; ``kT_eV``.
     """
 
     electron: np.ndarray
     energy_eV: np.ndarray
     mass: np.ndarray
-    weights: np.ndarray
+    region: np.ndarray
+    region_weights: np.ndarray
     rows: slice
     ny: int
     dy_semi_nm: np.ndarray
@@ -102,14 +105,39 @@ class SubbandCharge:
     eg_eV: np.ndarray
     kT_eV: float
 
+    def __post_init__(self) -> None:
+        nb = self.region_weights.shape[2]
+        masks = [self.region == r for r in range(self.region_weights.shape[0])]
+        # upper-band products P[k, d, b] = u[k, b - d] u[k, b] (b >= d) of eq. (3)
+        pairs = np.zeros(self.region_weights.shape[:2] + (nb, nb))
+        for d in range(nb):
+            pairs[:, :, d, d:] = self.region_weights[:, :, : nb - d] * self.region_weights[:, :, d:]
+        object.__setattr__(self, "_masks", masks)
+        object.__setattr__(self, "_pairs", pairs.reshape(pairs.shape[0], pairs.shape[1], nb * nb))
+
+    @property
+    def weights(self) -> np.ndarray:
+        """(K, nx, nb) u_k,j of every column [-]."""
+        return self.region_weights[self.region].transpose(1, 0, 2)
+
     @property
     def nbytes(self) -> int:
-        return int(self.energy_eV.nbytes + self.mass.nbytes + self.weights.nbytes)
+        return int(self.energy_eV.nbytes + self.mass.nbytes + self.region_weights.nbytes
+                   + self._pairs.nbytes)
+
+    def _by_region(self, left: np.ndarray, right_of_region, width: int) -> np.ndarray:
+        """Row i of the result: left[:, i] @ right_of_region(r(i)), region by region."""
+        out = np.empty((left.shape[1], width))
+        for r, mask in enumerate(self._masks):
+            out[mask] = left[:, mask].T @ right_of_region(r)
+        return out
 
     def _edges(self, psi_body: np.ndarray) -> np.ndarray:
         """(K, nx) subband edges [eV]: conduction E_n, valence E_m (first-order, eq. (1))."""
         ec = -self.chi_eV[:, None] - psi_body  # (nx, nb)
-        avg_ec = np.einsum("kij,ij->ki", self.weights, ec)
+        avg_ec = np.empty(self.energy_eV.shape)
+        for r, mask in enumerate(self._masks):
+            avg_ec[:, mask] = self.region_weights[r] @ ec[mask].T
         e = self.electron[:, None]
         return np.where(e, avg_ec + self.energy_eV, avg_ec - self.eg_eV[None, :] - self.energy_eV)
 
@@ -136,11 +164,12 @@ class SubbandCharge:
         sheet = sheet_density_cm2(self.mass, eta, kT)  # (K, nx)
         dsheet = DOS_2D_CM2_PER_EV * self.mass * expit(eta)  # |dN/dE_n| [cm^-2 / eV]
         inv_dy = _CM3_PER_CM2_NM / self.dy_semi_nm
-        w = self.weights
-        ne = np.einsum("ki,kij->ij", np.where(e, sheet, 0.0), w) * inv_dy
-        nh = np.einsum("ki,kij->ij", np.where(e, 0.0, sheet), w) * inv_dy
-        dne = np.einsum("ki,kij->ij", np.where(e, dsheet, 0.0), w * w) * inv_dy
-        dnh = np.einsum("ki,kij->ij", np.where(e, 0.0, dsheet), w * w) * inv_dy
+        w = self.region_weights
+        nb = w.shape[2]
+        ne = self._by_region(np.where(e, sheet, 0.0), lambda r: w[r], nb) * inv_dy
+        nh = self._by_region(np.where(e, 0.0, sheet), lambda r: w[r], nb) * inv_dy
+        dne = self._by_region(np.where(e, dsheet, 0.0), lambda r: w[r] ** 2, nb) * inv_dy
+        dnh = self._by_region(np.where(e, 0.0, dsheet), lambda r: w[r] ** 2, nb) * inv_dy
         n = np.zeros_like(psi_V)
         p = np.zeros_like(psi_V)
         dn = np.zeros_like(psi_V)
@@ -148,12 +177,8 @@ class SubbandCharge:
         n[:, self.rows], p[:, self.rows] = ne, nh
         dn[:, self.rows], dp[:, self.rows] = dne, -dnh
         # eq. (3): per column i the block C_ik u_k u_k^T, upper band offsets d = 0..nb-1
-        nb = w.shape[2]
         coef = QE_V_NM2_CM3 * _CM3_PER_CM2_NM * self.dx_nm[None, :] * dsheet  # (K, nx)
-        # P[k, i, d, b] = u[k, i, b - d] u[k, i, b]  (b >= d)
-        block = np.zeros((nx, nb, nb))
-        for d in range(nb):
-            block[:, d, d:] = np.einsum("ki,kib->ib", coef, w[:, :, : nb - d] * w[:, :, d:])
+        block = self._by_region(coef, lambda r: self._pairs[r], nb * nb).reshape(nx, nb, nb)
         band = np.zeros((self.ny + 1, nx, self.ny))
         j0 = self.rows.start
         band[self.ny - nb + 1:, :, j0:j0 + nb] = block.transpose(1, 0, 2)[::-1]
@@ -257,17 +282,17 @@ def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> Su
     electron = np.r_[np.ones(n_c, bool), np.zeros(n_v, bool)]
     energy = np.empty((K, nx))
     mass = np.empty((K, nx))
-    weights = np.empty((K, nx, rows.stop - rows.start))
+    weights = np.empty((len(regions), K, rows.stop - rows.start))
     chi = np.empty(nx)
     eg = np.empty(nx)
     masks = [np.ones(nx, bool)] if len(regions) == 1 else [~x_source, x_source]
-    for (states, rec), mask in zip(regions, masks, strict=True):
+    for r, ((states, rec), mask) in enumerate(zip(regions, masks, strict=True)):
         c, v = kinds(states)
         sel = c[:n_c] + v[:n_v]
         energy[:, mask] = np.array([s.energy_eV for s in sel])[:, None]
         mass[:, mask] = np.array([s.inplane_mass for s in sel])[:, None]
         u = np.array([column_weights(s.y_nm, s.density, y_rows, dy_rows) for s in sel])
-        weights[:, mask, :] = u[:, None, :]
+        weights[r] = u
         eg[mask] = float(rec.bandgap_eV(design.temperature_K))
     if len(regions) == 1:
         chi[:] = design.semiconductor.electron_affinity_eV
@@ -275,8 +300,9 @@ def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> Su
         from sub60.physics.heterojunction import source_affinity_eV
 
         chi[:] = np.where(x_source, source_affinity_eV(design), design.semiconductor.electron_affinity_eV)
-    return SubbandCharge(electron, energy, mass, weights, rows, mesh.ny, dy_rows, mesh.dx_nm,
-                         chi, eg, thermal_energy_eV(design.temperature_K))
+    region = np.zeros(nx, int) if len(regions) == 1 else x_source.astype(int)
+    return SubbandCharge(electron, energy, mass, region, weights, rows, mesh.ny, dy_rows,
+                         mesh.dx_nm, chi, eg, thermal_energy_eV(design.temperature_K))
 
 
 def contact_fermi_depth_eV(design, doping_cm3: float, electrons: bool) -> float:
