@@ -14,7 +14,8 @@
   computed, cached, failed, rate, ETA) arrives through the page's ``post``; Cancel keeps
   the rows computed so far. The rows stream into the map and the Pareto front while the
   sweep runs: they are gathered on the sweep's thread and drawn through ``post`` at most
-  once per `STREAM_EVERY_S` (a draw rebuilds both figures of this session).
+  once per `STREAM_EVERY_S`, less often as a long sweep goes on (`STREAM_SHARE`; a draw
+  rebuilds both figures of this session).
 * **Results.** A map of any figure of merit over any two knobs, the Pareto front of Ion
   against the average (or minimum) swing coloured by a chosen knob — a click on a design
   puts it into the explorer — and the normalised sensitivities of the present design to
@@ -76,6 +77,12 @@ RUN_ON = ("This machine", "Dask scheduler")
 #: Shortest time between two draws of the rows of a running sweep [s] (each draw rebuilds
 #: the map and the Pareto front; engineering choice, no source).
 STREAM_EVERY_S = 0.5
+#: ... and at least this share of the time the sweep has run: draws grow rarer as a long
+#: sweep goes on (at most about 35 in the first minute, 75 in an hour). BokehJS keeps a replaced
+#: figure's models in its document's model map until the page closes (observed with Bokeh
+#: 3.9: only the latest figure is reachable from the roots), so the number of draws is
+#: what a long sweep costs the browser. Engineering choice, no source.
+STREAM_SHARE = 0.1
 
 
 def _number(text: str, where: str) -> float:
@@ -188,6 +195,7 @@ class SweepView:
         self._stream_rows: list[dict[str, Any]] = []
         self._stream_posted = False     # a draw is posted and not yet run
         self._stream_at = -math.inf     # when the last draw was posted [s, monotonic]
+        self._stream_t0 = 0.0           # when the streamed run started [s, monotonic]
         self._stream_drawn = 0          # the run whose selectors are set
         css = list(css)
 
@@ -498,18 +506,21 @@ class SweepView:
             self._stream_rows = []
             self._stream_posted = False
             self._stream_at = -math.inf
+            self._stream_t0 = time.monotonic()
             return self._runs
 
     def _rows_arrived(self, run: int, spec: SweepSpec, rows: list[dict[str, Any]]) -> None:
         """New rows of a running sweep (on the sweep's thread): kept, and a draw posted
-        unless one is waiting or the last was posted less than `STREAM_EVERY_S` ago (the
-        rows then wait for the next batch, or for the end of the sweep)."""
+        unless one is waiting or the last was posted less than `STREAM_EVERY_S` (or
+        `STREAM_SHARE` of the run's time so far) ago; the rows then wait for the next
+        batch, or for the end of the sweep."""
         with self._stream_lock:
             if run != self._stream_run:
                 return
             self._stream_rows.extend(rows)
             now = time.monotonic()
-            if self._stream_posted or now - self._stream_at < STREAM_EVERY_S:
+            wait = max(STREAM_EVERY_S, STREAM_SHARE * (now - self._stream_t0))
+            if self._stream_posted or now - self._stream_at < wait:
                 return
             self._stream_posted, self._stream_at = True, now
         self.post(self._draw_streamed, run, spec)

@@ -226,6 +226,7 @@ def test_streamed_rows_are_drawn_at_most_once_per_interval_and_only_for_the_runn
     v._rows_arrived(run, spec, [{"index": 0}])   # within the interval: kept, not posted
     assert not posted
     monkeypatch.setattr(sweep_view, "STREAM_EVERY_S", 0.0)
+    monkeypatch.setattr(sweep_view, "STREAM_SHARE", 0.0)
     v._rows_arrived(run, spec, [{"index": 2}])
     fn, args = posted.pop()
     v._end_stream()                               # the sweep ended before the draw ran
