@@ -119,8 +119,8 @@ def main() -> None:
                 failed += f
         n_d = spec.size()
         rate = {n: n_d / statistics.median(w) for n, w in walls.items()}
-        print(f"\nscaling sweep: {n_d} designs, {a.vg_points} gate voltages each, {a.repeats} repeats "
-              f"({failed} failed designs in all)")
+        print(f"\nscaling sweep: {n_d} designs, {a.vg_points} gate voltages each, {a.repeats} "
+              f"repeat{'s' if a.repeats > 1 else ''} ({failed} failed designs in all)")
         for n in (1, 2):
             print(f"  {n} worker{'s' if n > 1 else ' '}: median wall {statistics.median(walls[n]):.2f} s "
                   f"-> {rate[n]:.3f} designs/s (walls {', '.join(f'{w:.2f}' for w in walls[n])})")
@@ -187,8 +187,10 @@ def main() -> None:
               f"(target >= 1.7 on 2 cores: {'met' if ratio >= 1.7 else 'not met'}; CPU share "
               f"of the tasks {share[1]:.2f} / {share[2]:.2f})")
         print(f"  scheduler overhead per task, 2 workers: {over2 * 1e3:.1f} ms = {pct:.1f} % of "
-              f"the median task (target <= 5 %: {'met' if pct <= 5 else 'not met'}); trivial-task "
-              f"round trip {rt * 1e3:.2f} ms = {100 * rt / task_med:.2f} %")
+              f"the median task (target <= 5 %: {'met' if pct <= 5 else 'not met'}; it includes "
+              "the sweep's tail, when one worker has no task left, which weighs more in a "
+              f"short sweep); trivial-task round trip {rt * 1e3:.2f} ms = "
+              f"{100 * rt / task_med:.2f} %")
         if big_wall is not None:
             print(f"  {big.size()}-design sweep on 2 workers: {big_wall:.1f} s")
         print(f"  estimate, {n:,} designs on {w} workers: {est / 60:.1f} min")
