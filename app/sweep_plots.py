@@ -344,6 +344,10 @@ def pareto_plot(rows: Sequence[dict[str, Any]], knob_fields: Sequence[str], agai
     fig.legend.location = "bottom_right"
     fig.legend.label_text_font_size = "11px"
     fig.legend.background_fill_alpha = 0.8
+    if not numeric:  # one entry per value: outside the frame, where no point hides under it
+        legend = fig.legend[0]
+        fig.legend.location = "top_left"
+        fig.add_layout(legend, "right")
     if numeric:
         fig.add_layout(_colour_bar(mapper, label_of(colour_field), log,
                                    colour_field.endswith("_doping_cm3")), "right")
