@@ -41,8 +41,15 @@ def _fmt(v) -> str:
     return "-" if v is None else f"{v:.4g}"
 
 
+def _value(v) -> str:
+    """A knob value: text as it is, a number in at most 6 significant digits."""
+    return v if isinstance(v, str) else _fmt(v) if v is None else f"{v:.6g}"
+
+
 def summary(res, spec) -> str:
-    """Counts, files and the five best designs by Ion (with their knob values and SS_avg4)."""
+    """Counts, files and the five best designs by Ion (with their knob values, named by the
+    page's control labels with units, and SS_avg4)."""
+    from sub60.app.state import label_of  # the page's control labels, with their units
     from sub60.app.sweep_engine import best_designs, pareto_front
 
     lines = [f"sweep: {res.total} designs: {res.computed} computed, {res.cached} from the cache, "
@@ -59,7 +66,7 @@ def summary(res, spec) -> str:
         for r in best:
             lines.append(f"  #{r['index']:<5d} Ion {_fmt(r['ion_uA_per_um'])} uA/um, SS_avg4 "
                          f"{_fmt(r['ss_avg4_mV_per_dec'])} mV/dec  "
-                         + ", ".join(f"{k} = {r[k]}" for k in knobs))
+                         + ", ".join(f"{label_of(k)} = {_value(r[k])}" for k in knobs))
     front = pareto_front(res.rows)
     if front:
         lines.append(f"Pareto front (Ion vs SS_avg4): {len(front)} designs, rows "

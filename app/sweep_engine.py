@@ -369,6 +369,7 @@ def _client(scheduler: str | None, workers: int | None, connect_timeout_s: float
 def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = None,
               workers: int | None = None, client: Any = None,
               progress: Callable[[Progress], None] | None = None,
+              on_rows: Callable[[list[dict[str, Any]]], None] | None = None,
               cancel: threading.Event | None = None, retry_failed: bool = False,
               table_every_s: float = TABLE_EVERY_S,
               designs: list[Design] | None = None,
@@ -385,6 +386,9 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
         LocalCluster of ``workers`` single-threaded processes (default: the cores)
     client : an existing ``distributed.Client`` to use instead (not closed here)
     progress : called with a `Progress` after each batch of finished designs
+    on_rows : called after each batch with the rows that became known since the last call
+        (the cached ones first; each row once, as in the final table; not the "cancelled"
+        rows added at the end), so that a caller can show the results as they arrive
     cancel : when set, pending tasks are cancelled and the rows so far are written
     retry_failed : recompute designs whose cached result is a failure
     designs : run these designs instead of the spec's grid or sample (the spec still gives
@@ -416,10 +420,12 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
     rows: list[dict[str, Any] | None] = [None] * len(designs)
     by_key: dict[str, list[int]] = {}
     st = Progress(total=len(designs))
+    fresh: list[int] = []  # rows known since the last `on_rows` call
     for i, k in enumerate(keys):
         hit = cache.get(k)
         if hit is not None and not (retry_failed and hit.get("status") != "ok"):
             rows[i] = _row(i, designs[i], k, hit, cached=True)
+            fresh.append(i)
             st.cached += 1
             st.failed += hit.get("status") != "ok"
         else:
@@ -448,6 +454,7 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
             cpu_s.append(result.get("cpu_s") or 0.0)
         for i in by_key[k]:
             rows[i] = _row(i, designs[i], keys[i], result, cached=False, error=error)
+            fresh.append(i)
             st.done += 1
             st.computed += 1
             st.failed += rows[i]["status"] != "ok"
@@ -459,6 +466,10 @@ def run_sweep(spec: SweepSpec, out_dir: str | Path, *, scheduler: str | None = N
             st.eta_s = (st.total - st.done) / st.rate
         if progress is not None:
             progress(dataclasses.replace(st))
+        if on_rows is not None and fresh:
+            new = [rows[i] for i in fresh]
+            fresh.clear()
+            on_rows(new)
         now = time.perf_counter()
         if now - table_at[0] > table_at[1]:
             table()

@@ -16,6 +16,7 @@ front is `sweep_engine.pareto_front`.
 from __future__ import annotations
 
 import math
+import re
 from collections.abc import Sequence
 from typing import Any
 
@@ -130,8 +131,14 @@ def _colour_bar(mapper, title: str, log: bool, short_numbers: bool = False):
 
 # ---------------------------------------------------------------------- the map
 def metric_map(rows: Sequence[dict[str, Any]], knob_fields: Sequence[str], x_field: str,
-               y_field: str, metric: str, grid: bool):
-    """A figure of ``metric`` over two knobs (cells of a grid, or points of a sample)."""
+               y_field: str, metric: str, grid: bool,
+               axes: dict[str, Sequence[Any]] | None = None):
+    """A figure of ``metric`` over two knobs (cells of a grid, or points of a sample).
+
+    ``axes``: every value of each knob of a grid (its factors on the axes), so that the
+    axes of a sweep still running are already those of the whole grid; by default the
+    values present in ``rows``.
+    """
     label = METRIC_LABELS[metric]
     ok = [r for r in rows if r.get("status") == "ok" and r.get(metric) is not None]
     others = [f for f in knob_fields if f not in (x_field, y_field)]
@@ -160,9 +167,9 @@ def metric_map(rows: Sequence[dict[str, Any]], knob_fields: Sequence[str], x_fie
     def order(field: str | None) -> list[Any]:
         if field is None:
             return [""]
-        seen = sorted({r[field] for r in rows if r.get(field) is not None},
-                      key=lambda v: (isinstance(v, str), v))
-        return seen
+        seen = {r[field] for r in rows if r.get(field) is not None}
+        seen.update((axes or {}).get(field, ()))
+        return sorted(seen, key=lambda v: (isinstance(v, str), v))
 
     xs, ys = order(x_field), order(y_field)
     data: dict[str, list[Any]] = {"x": [], "y": [], "value": [], "text": [], "text_colour": [],
@@ -252,11 +259,28 @@ def _undefined_cells(rows: Sequence[dict[str, Any]], x_field: str, y_field: str 
 
 
 def _short_label(field: str) -> str:
-    return label_of(field).split(" (")[0]
+    """The control label without its unit and explanation ('Gate–source overlap')."""
+    return re.split(r" \(|,", label_of(field), maxsplit=1)[0]
+
+
+def knob_unit(field: str) -> str:
+    """The unit of a design field as its control label states it ('nm', 'cm⁻³'); '' for a
+    dimensionless field ('(–)') or a text field (no parentheses)."""
+    label = label_of(field)
+    if not label.endswith(")") or " (" not in label:
+        return ""
+    unit = label.rsplit(" (", 1)[1][:-1]
+    return "" if unit in ("–", "-") else unit
+
+
+def knob_text(field: str, value: Any) -> str:
+    """A knob and its value in words with the unit, e.g. 'Body thickness 5 nm'."""
+    unit = knob_unit(field)
+    return f"{_short_label(field)} {value_text(field, value)}" + (f" {unit}" if unit else "")
 
 
 def _design_hover(r: dict[str, Any], knob_fields: Sequence[str]) -> str:
-    return ", ".join(f"{_short_label(f)} {value_text(f, r[f])}" for f in knob_fields)
+    return ", ".join(knob_text(f, r[f]) for f in knob_fields)
 
 
 # ---------------------------------------------------------------------- the Pareto front
@@ -320,6 +344,10 @@ def pareto_plot(rows: Sequence[dict[str, Any]], knob_fields: Sequence[str], agai
     fig.legend.location = "bottom_right"
     fig.legend.label_text_font_size = "11px"
     fig.legend.background_fill_alpha = 0.8
+    if not numeric:  # one entry per value: outside the frame, where no point hides under it
+        legend = fig.legend[0]
+        fig.legend.location = "top_left"
+        fig.add_layout(legend, "right")
     if numeric:
         fig.add_layout(_colour_bar(mapper, label_of(colour_field), log,
                                    colour_field.endswith("_doping_cm3")), "right")

@@ -143,11 +143,21 @@ class SweepSession:
     # ------------------------------------------------------------------ runs
     def run(self, spec: SweepSpec, *, scheduler: str | None, workers: int | None,
             on_progress: Callable[[Progress], None], on_done: Callable[[Any], None],
-            on_start: Callable[[str], None] | None = None) -> None:
+            on_start: Callable[[str], None] | None = None,
+            on_rows: Callable[[list[dict[str, Any]]], None] | None = None) -> None:
         """Run a sweep in the background; ``on_done`` gets the `SweepResult` or the
         exception (SpecError for an invalid design, OSError for an unreachable
-        scheduler). Raises SweepBusy while another run of this session is going."""
-        self._submit(self._sweep_job, spec, scheduler, workers, on_progress, on_done, on_start)
+        scheduler); ``on_rows`` (optional) gets the rows as they arrive (see
+        `sweep_engine.run_sweep`). Raises SweepBusy while another run of this session is
+        going."""
+        def work(client: Any, task: Callable[..., Any]) -> SweepResult:
+            res = run_sweep(spec, self.sweep_dir, client=client, progress=on_progress,
+                            on_rows=on_rows, cancel=self._cancel, task=task)
+            self.last, self.last_spec = res, spec
+            return res
+
+        # every design validated before a cluster starts
+        self._submit(self._job, scheduler, workers, on_start, on_done, work, spec.designs)
 
     def run_sensitivity(self, design: Design, fields: list[str], spec: SweepSpec, *,
                         scheduler: str | None, workers: int | None,
@@ -157,8 +167,12 @@ class SweepSession:
         """Normalised sensitivities of every metric to ``fields`` at ``design`` (central
         differences, `sweep_engine.sensitivity`) on the same cluster; ``on_done`` gets the
         list of items or the exception."""
-        self._submit(self._sensitivity_job, design, fields, spec, scheduler, workers,
-                     on_progress, on_done, on_start)
+        def work(client: Any, task: Callable[..., Any]) -> list[dict[str, Any]]:
+            return sensitivity(design, fields, spec, self.sensitivity_dir, metrics=METRICS,
+                               client=client, progress=on_progress, cancel=self._cancel,
+                               task=task)
+
+        self._submit(self._job, scheduler, workers, on_start, on_done, work, None)
 
     def cancel(self) -> None:
         """Ask the running sweep to stop (the rows computed so far are kept)."""
@@ -177,33 +191,19 @@ class SweepSession:
         except RuntimeError:  # the pool was shut down: the session closed meanwhile
             self._running = False
 
-    def _sweep_job(self, spec: SweepSpec, scheduler: str | None, workers: int | None,
-                   on_progress: Callable[[Progress], None], on_done: Callable[[Any], None],
-                   on_start: Callable[[str], None] | None) -> None:
+    def _job(self, scheduler: str | None, workers: int | None,
+             on_start: Callable[[str], None] | None, on_done: Callable[[Any], None],
+             work: Callable[[Any, Callable[..., Any]], Any],
+             check: Callable[[], Any] | None) -> None:
+        """One run on the session's thread: ``check()`` (before any cluster starts), the
+        client of the target, ``work(client, task)``; its outcome (or the exception) goes
+        to ``on_done``; the session is free for the next run afterwards."""
         outcome: Any
         try:
-            spec.designs()  # every design validated before a cluster starts
+            if check is not None:
+                check()
             client, task = self._client_for(scheduler, workers, on_start)
-            outcome = run_sweep(spec, self.sweep_dir, client=client, progress=on_progress,
-                                cancel=self._cancel, task=task)
-            self.last, self.last_spec = outcome, spec
-        except Exception as exc:  # noqa: BLE001 - handed to the page as a message
-            outcome = exc
-        try:
-            self._deliver(on_done, outcome)
-        finally:
-            self._running = False
-
-    def _sensitivity_job(self, design: Design, fields: list[str], spec: SweepSpec,
-                         scheduler: str | None, workers: int | None,
-                         on_progress: Callable[[Progress], None], on_done: Callable[[Any], None],
-                         on_start: Callable[[str], None] | None) -> None:
-        outcome: Any
-        try:
-            client, task = self._client_for(scheduler, workers, on_start)
-            outcome = sensitivity(design, fields, spec, self.sensitivity_dir, metrics=METRICS,
-                                  client=client, progress=on_progress, cancel=self._cancel,
-                                  task=task)
+            outcome = work(client, task)
         except Exception as exc:  # noqa: BLE001 - handed to the page as a message
             outcome = exc
         try:

@@ -315,7 +315,10 @@ def _check_field(name: Any, value: Any, where: str) -> Any:
         return getattr(Design(**{name: value}), name)
     except ValueError as exc:
         if str(exc).startswith(f"{name}:"):
-            raise SpecError(f"{where}.{exc}") from None
+            detail = str(exc)[len(name) + 1:].lstrip()
+            # "fixed.oxide: ...", "knob oxide.values: ..." (the field named once)
+            raise SpecError(f"{where}: {detail}" if name in where
+                            else f"{where}.{name}: {detail}") from None
         return value  # valid alone; only a combination with defaults failed
 def _parse_knob(raw: Any, i: int, method: str) -> Knob:
     where = f"knob[{i}]"

@@ -12,7 +12,10 @@
   larger than `sweep_spec.LARGE_SWEEP` asks for a confirmation first.
 * **Run.** `app.sweep_session.SweepSession` runs it off the event loop; progress (done,
   computed, cached, failed, rate, ETA) arrives through the page's ``post``; Cancel keeps
-  the rows computed so far.
+  the rows computed so far. The rows stream into the map and the Pareto front while the
+  sweep runs: they are gathered on the sweep's thread and drawn through ``post`` at most
+  once per `STREAM_EVERY_S`, less often as a long sweep goes on (`STREAM_SHARE`; a draw
+  rebuilds both figures of this session).
 * **Results.** A map of any figure of merit over any two knobs, the Pareto front of Ion
   against the average (or minimum) swing coloured by a chosen knob — a click on a design
   puts it into the explorer — and the normalised sensitivities of the present design to
@@ -26,13 +29,16 @@ from __future__ import annotations
 
 import io
 import math
+import re
+import threading
+import time
 from collections.abc import Callable, Sequence
 from typing import Any
 
 import panel as pn
 
 from sub60.app.messages import html_escape, short_error
-from sub60.app.state import ExplorerState, label_of
+from sub60.app.state import ExplorerState, label_of, plain_words
 from sub60.app.sweep_engine import TABLE_NAME, Progress, SweepResult
 from sub60.app.sweep_plots import (
     METRIC_LABELS,
@@ -68,6 +74,15 @@ DEFAULT_KNOBS: tuple[tuple[str, str, str, int], ...] = (
 SAMPLING_LABELS = {"Grid": "grid", "Sobol sample": "sobol", "Latin hypercube": "latin-hypercube"}
 assert set(SAMPLING_LABELS.values()) == set(SAMPLING_METHODS)
 RUN_ON = ("This machine", "Dask scheduler")
+#: Shortest time between two draws of the rows of a running sweep [s] (each draw rebuilds
+#: the map and the Pareto front; engineering choice, no source).
+STREAM_EVERY_S = 0.5
+#: ... and at least this share of the time the sweep has run: draws grow rarer as a long
+#: sweep goes on (at most about 35 in the first minute, 75 in an hour). BokehJS keeps a replaced
+#: figure's models in its document's model map until the page closes (observed with Bokeh
+#: 3.9: only the latest figure is reachable from the roots), so the number of draws is
+#: what a long sweep costs the browser. Engineering choice, no source.
+STREAM_SHARE = 0.1
 
 
 def _number(text: str, where: str) -> float:
@@ -107,7 +122,7 @@ class KnobRow:
         self.values = pn.widgets.TextInput(value="", width=150, margin=(2, 4),
                                            placeholder="or values: a, b, c",
                                            css_classes=["sweep-knob-values"])
-        self.remove = pn.widgets.Button(label="✕", width=38, margin=(2, 4), button_type="light",
+        self.remove = pn.widgets.Button(label="✕", width=38, margin=(2, 4), color="light",
                                         description="Take this knob away")
         if on_remove is not None:
             self.remove.on_click(lambda _e: on_remove(self))
@@ -173,6 +188,15 @@ class SweepView:
         self.sensitivities: list[dict[str, Any]] = []
         self._confirmed_size: int | None = None  # a large grid the user confirmed
         self._pareto_source: Any = None
+        # rows of the running sweep, gathered on its thread (`_rows_arrived`)
+        self._stream_lock = threading.Lock()
+        self._stream_run = 0            # the run whose rows are streamed; 0: none
+        self._runs = 0
+        self._stream_rows: list[dict[str, Any]] = []
+        self._stream_posted = False     # a draw is posted and not yet run
+        self._stream_at = -math.inf     # when the last draw was posted [s, monotonic]
+        self._stream_t0 = 0.0           # when the streamed run started [s, monotonic]
+        self._stream_drawn = 0          # the run whose selectors are set
         css = list(css)
 
         # ---------------------------------------------------------------- setup
@@ -180,7 +204,7 @@ class SweepView:
                                      for f, lo, hi, n in DEFAULT_KNOBS]
         self.knob_rows = pn.Column(*[k.view for k in self.knobs], margin=0)
         self.add_knob = pn.widgets.Button(label="+ Add a knob", width=130, margin=(4, 4),
-                                          button_type="light")
+                                          color="light")
         self.add_knob.on_click(self._add_knob)
         heads = "".join(f'<span style="display:inline-block;width:{w}px">{t}</span>'
                         for t, w in (("Design field (knob)", 238), ("from", 90), ("to", 90),
@@ -208,17 +232,18 @@ class SweepView:
         self.ioff = pn.widgets.TextInput(label="Ioff target (µA/µm)",
                                          value=f"{state.ioff_target_uA_per_um:g}", width=115)
         self.run_on = pn.widgets.RadioButtonGroup(options=list(RUN_ON), value=RUN_ON[0],
-                                                  button_type="default", width=250)
+                                                  color="default", width=250)
         self.workers = pn.widgets.IntInput(label="Local workers (processes)",
                                            value=LOCAL_WORKERS_RANGE[1], start=LOCAL_WORKERS_RANGE[0],
-                                           end=LOCAL_WORKERS_RANGE[1], width=170)
+                                           end=LOCAL_WORKERS_RANGE[1], width=170,
+                                           css_classes=["sweep-workers"])
         self.address = pn.widgets.TextInput(label="Scheduler address", value="",
                                             placeholder="tcp://HOST:8786", width=250,
                                             disabled=True)
         self.run_on.param.watch(self._run_on_changed, "value")
-        self.run = pn.widgets.Button(label="Run sweep", button_type="primary", width=130,
+        self.run = pn.widgets.Button(label="Run sweep", color="primary", width=130,
                                      css_classes=["sweep-run"])
-        self.confirm = pn.widgets.Button(label="Confirm", button_type="warning", width=220,
+        self.confirm = pn.widgets.Button(label="Confirm", color="warning", width=220,
                                          visible=False, css_classes=["sweep-confirm"])
         self.cancel = pn.widgets.Button(label="Cancel", width=90, disabled=True,
                                         css_classes=["sweep-cancel"])
@@ -235,7 +260,7 @@ class SweepView:
                                      margin=(2, 8))
         self.download = pn.widgets.FileDownload(callback=self._csv, filename="sweep-results.csv",
                                                 label="Download the results (CSV)", width=220,
-                                                disabled=True, button_type="light")
+                                                disabled=True, color="light")
         note = pn.pane.HTML(
             '<div class="note">Fields not varied take the present design of the Explorer '
             "tab; the tunnelling model and grid are the session's. Each design is one "
@@ -395,13 +420,15 @@ class SweepView:
             if spec.size() <= LARGE_SWEEP:
                 spec.designs()  # every design checked now (a large one: on the sweep's thread)
         except SpecError as exc:
-            self._say(str(exc))
+            self._say(_labelled(str(exc)))  # (a message labelled already stays as it is)
             return False
+        run = self._new_stream()
         # the page shows the run before it starts: its end may be delivered at once
         return self._launch(
             f"Sweep of {spec.size():,} designs: starting…",
-            lambda **hooks: self.session.run(spec, scheduler=scheduler, workers=workers,
-                                             **hooks),
+            lambda **hooks: self.session.run(
+                spec, scheduler=scheduler, workers=workers,
+                on_rows=lambda rows: self._rows_arrived(run, spec, rows), **hooks),
             self._sweep_done, spec)
 
     def _large_size(self) -> int | None:
@@ -470,8 +497,70 @@ class SweepView:
         self.progress.value = int(round(100 * p.done / max(p.total, 1)))
         self.status.object = html_escape(p.line())
 
+    # ------------------------------------------------------------------ streaming rows
+    def _new_stream(self) -> int:
+        """A new run's rows start streaming (those of an earlier run are dropped)."""
+        with self._stream_lock:
+            self._runs += 1
+            self._stream_run = self._runs
+            self._stream_rows = []
+            self._stream_posted = False
+            self._stream_at = -math.inf
+            self._stream_t0 = time.monotonic()
+            return self._runs
+
+    def _rows_arrived(self, run: int, spec: SweepSpec, rows: list[dict[str, Any]]) -> None:
+        """New rows of a running sweep (on the sweep's thread): kept, and a draw posted
+        unless one is waiting or the last was posted less than `STREAM_EVERY_S` (or
+        `STREAM_SHARE` of the run's time so far) ago; the rows then wait for the next
+        batch, or for the end of the sweep."""
+        with self._stream_lock:
+            if run != self._stream_run:
+                return
+            self._stream_rows.extend(rows)
+            now = time.monotonic()
+            wait = max(STREAM_EVERY_S, STREAM_SHARE * (now - self._stream_t0))
+            if self._stream_posted or now - self._stream_at < wait:
+                return
+            self._stream_posted, self._stream_at = True, now
+        self.post(self._draw_streamed, run, spec)
+
+    def _draw_streamed(self, run: int, spec: SweepSpec) -> None:
+        """Draw the rows so far of the running sweep (on the event loop); nothing when the
+        sweep has ended meanwhile (its end draws them all)."""
+        with self._stream_lock:
+            self._stream_posted = False
+            if run != self._stream_run:
+                return
+            rows = sorted(self._stream_rows, key=lambda r: r["index"])
+        self._show_rows(spec, rows, new_selectors=self._stream_drawn != run)
+        self._stream_drawn = run
+
+    def _end_stream(self) -> None:
+        with self._stream_lock:
+            self._stream_run = 0
+            self._stream_rows = []
+
+    def _show_rows(self, spec: SweepSpec, rows: list[dict[str, Any]], new_selectors: bool) -> None:
+        """Show ``rows`` of ``spec`` in the map and the Pareto front (selectors set to the
+        sweep's knobs first when ``new_selectors``)."""
+        self.spec, self.rows = spec, rows
+        if new_selectors:
+            knob_opts = {label_of(f): f for f in spec.knob_fields}
+            fields = list(spec.knob_fields)
+            with _batched(self):
+                self.map_x.options = knob_opts
+                self.map_y.options = knob_opts
+                self.map_x.value = fields[0]
+                self.map_y.value = fields[1] if len(fields) > 1 else fields[0]
+                self.colour_by.options = knob_opts
+                self.colour_by.value = fields[-1] if len(fields) > 1 else fields[0]
+        self._draw_map()
+        self._draw_pareto()
+
     def _sweep_done(self, outcome: Any, spec: SweepSpec) -> None:
         self._busy(False)
+        self._end_stream()
         if not isinstance(outcome, SweepResult):
             self.progress.bar_color = "danger"
             self._say(_labelled(short_error(outcome)) if isinstance(outcome, SpecError)
@@ -492,17 +581,9 @@ class SweepView:
             self._say(f"{res.failed} design(s) failed; the first (#{first['index']}): "
                       f"{first['error'][:300]}")
         self.download.disabled = res.table_path is None
-        knob_opts = {label_of(f): f for f in spec.knob_fields}
-        fields = list(spec.knob_fields)
-        with _batched(self):
-            self.map_x.options = knob_opts
-            self.map_y.options = knob_opts
-            self.map_x.value = fields[0]
-            self.map_y.value = fields[1] if len(fields) > 1 else fields[0]
-            self.colour_by.options = knob_opts
-            self.colour_by.value = fields[-1] if len(fields) > 1 else fields[0]
-        self._draw_map()
-        self._draw_pareto()
+        # the selectors chosen while the rows streamed in stay
+        self._show_rows(spec, res.rows, new_selectors=self._stream_drawn != self._runs)
+        self._stream_drawn = self._runs
 
     def _sensitivity_done(self, outcome: Any, design: Design) -> None:
         self._busy(False)
@@ -521,9 +602,11 @@ class SweepView:
     def _draw_map(self) -> None:
         if getattr(self, "_holding", False) or self.spec is None:
             return
+        grid = self.spec.method == "grid"
+        axes = {k.field: k.grid() for k in self.spec.knobs} if grid else None
         self.map_pane.object = metric_map(self.rows, self.spec.knob_fields, self.map_x.value,
                                           self.map_y.value, self.map_metric.value,
-                                          grid=self.spec.method == "grid")
+                                          grid=grid, axes=axes)
 
     def _draw_pareto(self) -> None:
         if getattr(self, "_holding", False) or self.spec is None:
@@ -595,11 +678,16 @@ class _batched:
 
 
 def _labelled(text: str) -> str:
-    """A spec message led by the control label of the design field it names."""
+    """A spec message led by the control label (with its unit) of the design field it
+    names, every field name in it in words ('source_material = ...' -> 'source
+    semiconductor = ...')."""
+    words = {"low": "from", "high": "to"}  # the form's column heads
+    text = re.sub(r"\bknob (\w+)\.(low|high|steps|values|spacing)\b",
+                  lambda m: f"{m.group(1)}, {words.get(m.group(2), m.group(2))}", text)
     for f in sorted(FIELD_RANGES, key=len, reverse=True):
         if f in text:
-            return f"{label_of(f)} — {text}"
-    return text
+            return f"{label_of(f)} — {plain_words(text)}"
+    return plain_words(text)
 
 
 def _hours(designs: int, workers: int | None) -> str:

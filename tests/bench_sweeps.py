@@ -1,6 +1,7 @@
 """Benchmark of design sweeps on Dask: throughput, scaling, scheduler overhead, a big sweep.
 
     python tests/bench_sweeps.py [--designs 32] [--repeats 3] [--big 500] [--vg-points 46]
+    python tests/bench_sweeps.py --quick      # a reduced run to check that it works (~2 min)
 
 Prints, from one run (medians over the repeats; 1- and 2-worker runs interleaved):
 
@@ -13,7 +14,10 @@ Prints, from one run (medians over the repeats; 1- and 2-worker runs interleaved
 - the CPU share of the tasks (CPU / wall time inside each task): below 1 when other
   processes hold the cores, which then also caps the scaling ratio;
 - the wall time of a ``--big``-design sweep on 2 local workers;
-- an estimate for 100,000 designs on 64 workers from the measured per-task figures.
+- an estimate for 100,000 designs on 64 workers from the measured per-task figures;
+- a closing summary of those figures beside their targets (scaling ratio >= 1.7 on 2
+  cores, overhead <= 5 % of a task), with the load average before and after: on a shared
+  machine the figures are loaded, and the CPU share tells by how much.
 
 Every sweep writes into a fresh temporary folder (no cache hits). Worker start-up (process
 spawn, imports, the compiled kernels' first call) is excluded by a warm-up task per worker
@@ -86,9 +90,18 @@ def main() -> None:
     ap.add_argument("--big", type=int, default=500, help="designs of the big sweep (0: skip)")
     ap.add_argument("--vg-points", type=int, default=46, help="gate voltages per transfer curve")
     ap.add_argument("--noop", type=int, default=1000, help="trivial tasks for the round trip")
+    ap.add_argument("--quick", action="store_true",
+                    help="a reduced run: 8 designs, 1 repeat, a 40-design big sweep, 15 gate "
+                         "voltages, 200 trivial tasks (checks the script; figures are rough)")
     a = ap.parse_args()
+    if a.quick:
+        a.designs, a.repeats, a.big, a.vg_points, a.noop = 8, 1, 40, 15, 200
+    if a.designs < 2 or a.repeats < 1 or a.big < 0 or not 3 <= a.vg_points <= 401:
+        ap.error("--designs >= 2, --repeats >= 1, --big >= 0, --vg-points in [3, 401]")
+    load_before = os.getloadavg()[0]
 
-    print(f"cores: {os.cpu_count()}, load average before: {os.getloadavg()[0]:.2f}")
+    print(f"cores: {os.cpu_count()}, load average before: {load_before:.2f}"
+          + (" (quick run)" if a.quick else ""))
     spec = _spec(a.designs // 2, 2, a.vg_points)
     c1, cl1, s1, w1 = _cluster(1)
     c2, cl2, s2, w2 = _cluster(2)
@@ -106,8 +119,8 @@ def main() -> None:
                 failed += f
         n_d = spec.size()
         rate = {n: n_d / statistics.median(w) for n, w in walls.items()}
-        print(f"\nscaling sweep: {n_d} designs, {a.vg_points} gate voltages each, {a.repeats} repeats "
-              f"({failed} failed designs in all)")
+        print(f"\nscaling sweep: {n_d} designs, {a.vg_points} gate voltages each, {a.repeats} "
+              f"repeat{'s' if a.repeats > 1 else ''} ({failed} failed designs in all)")
         for n in (1, 2):
             print(f"  {n} worker{'s' if n > 1 else ' '}: median wall {statistics.median(walls[n]):.2f} s "
                   f"-> {rate[n]:.3f} designs/s (walls {', '.join(f'{w:.2f}' for w in walls[n])})")
@@ -165,6 +178,26 @@ def main() -> None:
               f"{max(over2, 0) * 1e3:.1f} ms overhead) / {w} = {est / 60:.1f} min "
               f"(scheduler floor {n:,} x {rt * 1e3:.2f} ms = {floor / 60:.1f} min; "
               f"cluster start and the per-worker warm-up of ~{w1 - s1:.0f} s not included)")
+
+        load_after = os.getloadavg()[0]
+        ratio = rate[2] / rate[1]
+        pct = 100 * over2 / task_med
+        print("\nsummary (medians of this run)")
+        print(f"  designs/s: 1 worker {rate[1]:.3f}, 2 workers {rate[2]:.3f}; ratio {ratio:.2f} "
+              f"(target >= 1.7 on 2 cores: {'met' if ratio >= 1.7 else 'not met'}; CPU share "
+              f"of the tasks {share[1]:.2f} / {share[2]:.2f})")
+        print(f"  scheduler overhead per task, 2 workers: {over2 * 1e3:.1f} ms = {pct:.1f} % of "
+              f"the median task (target <= 5 %: {'met' if pct <= 5 else 'not met'}; it includes "
+              "the sweep's tail, when one worker has no task left, which weighs more in a "
+              f"short sweep); trivial-task round trip {rt * 1e3:.2f} ms = "
+              f"{100 * rt / task_med:.2f} %")
+        if big_wall is not None:
+            print(f"  {big.size()}-design sweep on 2 workers: {big_wall:.1f} s")
+        print(f"  estimate, {n:,} designs on {w} workers: {est / 60:.1f} min")
+        print(f"  load average (1 min) before {load_before:.2f}, after {load_after:.2f} on "
+              f"{os.cpu_count()} cores" + ("; above the cores: the figures are loaded"
+                                          if max(load_before, load_after) > (os.cpu_count() or 1)
+                                          else ""))
     finally:
         for cl, c in ((cl1, c1), (cl2, c2)):
             cl.close()

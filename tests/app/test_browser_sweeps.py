@@ -69,8 +69,15 @@ def test_range_outside_the_field_bounds_is_refused_naming_the_field(browser, app
         page.close()
 
 
+# the model of that name in the page now: reachable from the document's roots (BokehJS keeps
+# the models of a replaced figure in its model map, so a name may be found more than once)
+SHOWN_JS = """(name) => {
+  for (const r of sub60.doc().roots()) {
+    for (const m of r.references()) { if (m.name === name) { return m; } } }
+  return null; }"""
+
 POINT_ON_SCREEN = """(i) => {
-  const src = sub60.model('sweep_pareto_source');
+  const src = (""" + SHOWN_JS + """)('sweep_pareto_source');
   const fig = [...sub60.doc()._all_models.values()].find(m => m.type === 'Figure' &&
     m.renderers.some(r => r.data_source === src));
   const view = Bokeh.index.find_one(fig);
@@ -89,15 +96,19 @@ def test_small_sweep_fills_map_and_front_and_a_click_loads_the_design(browser, a
         _type(page, "sweep-vg-from", "-0.2")
         _type(page, "sweep-vg-points", "9")            # coarse gate sweep
         page.locator(".sweep-run button").click()
+        # the rows stream in while it runs: wait for its end (Cancel disabled again)
         page.wait_for_function(
-            "() => { const s = sub60.model('sweep_pareto_source');"
-            " return s != null && s.data.x.length > 0; }", timeout=SWEEP_TIMEOUT_MS)
+            f"() => {{ const s = ({SHOWN_JS})('sweep_pareto_source');"
+            " return s != null && s.data.x.length > 0 &&"
+            " sub60.byClass('sweep-cancel').disabled === true; }", timeout=SWEEP_TIMEOUT_MS)
         cells = page.evaluate(
-            "() => { const d = sub60.model('sweep_map_source').data;"
-            " const u = sub60.model('sweep_map_undefined_source');"
+            f"() => {{ const shown = {SHOWN_JS}; const d = shown('sweep_map_source').data;"
+            " const u = shown('sweep_map_undefined_source');"
             " return [d.x.length, u ? u.data.x.length : 0]; }")
         assert cells[0] >= 1 and sum(cells) == 6, cells  # every design of the 2 x 3 grid has its cell
-        pts = page.evaluate("() => sub60.data('sweep_pareto_source')")
+        pts = page.evaluate(f"() => {{ const d = ({SHOWN_JS})('sweep_pareto_source').data;"
+                            " const out = {}; for (const k in d) { out[k] = Array.from(d[k]); }"
+                            " return out; }")
         n = len(pts["x"])
         assert 1 <= n <= 6
         # the design with the largest Ion is on the front by definition; no design beats it
@@ -117,6 +128,44 @@ def test_small_sweep_fills_map_and_front_and_a_click_loads_the_design(browser, a
         assert doping == pytest.approx(math.log10(want_na), abs=1e-6)
         page.wait_for_function("() => sub60.byClass('sub60-tabs').active === 0",
                                timeout=20_000)  # the page shows the explorer again
+        assert not errors, errors
+    finally:
+        page.close()
+
+
+# while the sweep runs: its Cancel is enabled (it is disabled again when the sweep ends)
+STREAMING_JS = """() => {
+  const shown = """ + SHOWN_JS + """;
+  const running = sub60.byClass('sweep-cancel').disabled === false;
+  const front = shown('sweep_pareto_source');
+  const map = shown('sweep_map_source');
+  if (!running || !front || !map || front.data.x.length === 0 || map.data.x.length === 0) {
+    return null; }
+  const fig = [...sub60.doc()._all_models.values()].find(m => m.type === 'Figure' &&
+    m.renderers.some(r => r.data_source === map));
+  return {front: front.data.x.length, cells: map.data.x.length,
+          xs: fig.x_range.factors.length, ys: fig.y_range.factors.length};
+}"""
+
+
+def test_rows_fill_the_map_and_front_while_the_sweep_runs_and_cancel_keeps_them(browser, app_url):
+    """A 3 x 3 grid on one worker process finishes its designs one by one: the front and the
+    map get points while the sweep still runs (its Cancel still enabled), the map already on
+    the whole grid's axes; Cancel then ends it with the rows computed so far shown."""
+    page, errors = _open_sweep_tab(browser, app_url)
+    try:
+        _type(page, "sweep-workers", "1")
+        page.locator(".sweep-run button").click()
+        seen = page.wait_for_function(STREAMING_JS, timeout=SWEEP_TIMEOUT_MS).json_value()
+        assert seen["front"] >= 1 and seen["cells"] >= 1, seen
+        assert (seen["xs"], seen["ys"]) == (3, 3), seen  # axes of the whole grid at once
+        page.locator(".sweep-cancel button").click()
+        page.wait_for_function("() => sub60.byClass('sweep-cancel').disabled === true",
+                               timeout=SWEEP_TIMEOUT_MS)
+        status = page.evaluate("() => sub60.byClass('sweep-page-status').text")
+        assert "9 designs" in status, status
+        kept = page.evaluate(f"() => ({SHOWN_JS})('sweep_pareto_source').data.x.length")
+        assert kept >= seen["front"]  # the rows drawn while running are still there
         assert not errors, errors
     finally:
         page.close()

@@ -11,12 +11,13 @@ from __future__ import annotations
 
 import math
 import os
+import re
 import threading
 from pathlib import Path
 
 import pytest
 
-from sub60.app import sweep_session
+from sub60.app import sweep_session, sweep_view
 from sub60.app.state import ExplorerState
 from sub60.app.sweep_engine import (
     BACKGROUND_NICENESS,
@@ -127,11 +128,21 @@ def test_session_runs_a_sweep_and_a_sensitivity_then_closes_its_cluster(tmp_path
     v.vg_from.value, v.vg_points.value = "-0.1", 8
     v.workers.value = 1
     done = threading.Event()
-    v.post = lambda fn, *a: (fn(*a), done.set() if fn in (v._sweep_done, v._sensitivity_done)
-                             else None)
+    streamed: list[list[int]] = []  # the rows shown by each draw while the sweep ran
+
+    def post(fn, *a) -> None:
+        fn(*a)
+        if fn == v._draw_streamed:
+            streamed.append([r["index"] for r in v.rows])
+        if fn in (v._sweep_done, v._sensitivity_done):
+            done.set()
+
+    v.post = post
     assert v.start(), v.message.object
     assert done.wait(600)
     assert [r["status"] for r in v.rows] == ["ok", "ok"], v.rows
+    # the first rows to arrive are drawn at once (then at most every STREAM_EVERY_S)
+    assert streamed and all(set(s) <= {0, 1} and s for s in streamed), streamed
     assert v.map_pane.object.name == "sweep_map"
     front = pareto_front(v.rows)
     assert 1 <= len(front) <= 2
@@ -178,3 +189,99 @@ def test_a_page_beyond_the_local_cluster_limit_is_told_to_wait() -> None:
     finally:
         for _ in range(taken):
             sweep_session._local_clusters.release()
+
+
+def test_the_tab_uses_no_deprecated_panel_option() -> None:
+    """Panel 1.9 deprecates Button(button_type=...) for color=... (PendingDeprecationWarning,
+    panel/widgets/button.py); the tab is built with what the installed Panel wants."""
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", PendingDeprecationWarning)
+        warnings.simplefilter("error", DeprecationWarning)
+        v = _view()
+    assert v.run.color == "primary" and v.knobs[0].remove.color == "light"
+    v.close()
+
+
+def test_streamed_rows_are_drawn_at_most_once_per_interval_and_only_for_the_running_sweep(
+        monkeypatch) -> None:
+    """Rows arrive on the sweep's thread; a draw is posted for the first ones, then none
+    while one is waiting or within `STREAM_EVERY_S`; the rows of a run that has ended, or
+    of an earlier run, are never drawn."""
+    monkeypatch.setattr(sweep_view, "STREAM_EVERY_S", 1e9)
+    v = _view()
+    posted: list[tuple] = []
+    drawn: list[list[int]] = []
+    v.post = lambda fn, *a: posted.append((fn, a))
+    v._show_rows = lambda spec, rows, new_selectors: drawn.append([r["index"] for r in rows])
+    spec = v.read_spec()
+    run = v._new_stream()
+    v._rows_arrived(run, spec, [{"index": 3}])
+    v._rows_arrived(run, spec, [{"index": 1}])   # a draw is waiting: none posted
+    assert len(posted) == 1
+    fn, args = posted.pop()
+    fn(*args)                                     # the page's event loop runs it
+    assert drawn == [[1, 3]]                      # every row so far, in sweep order
+    v._rows_arrived(run, spec, [{"index": 0}])   # within the interval: kept, not posted
+    assert not posted
+    monkeypatch.setattr(sweep_view, "STREAM_EVERY_S", 0.0)
+    monkeypatch.setattr(sweep_view, "STREAM_SHARE", 0.0)
+    v._rows_arrived(run, spec, [{"index": 2}])
+    fn, args = posted.pop()
+    v._end_stream()                               # the sweep ended before the draw ran
+    fn(*args)
+    assert drawn == [[1, 3]]
+    old, new = run, v._new_stream()
+    v._rows_arrived(old, spec, [{"index": 5}])   # rows of the earlier run: dropped
+    assert not posted and new == old + 1
+    v.close()
+
+
+def test_every_design_field_has_a_knob_label_with_the_unit_of_its_name() -> None:
+    """The knob list, the map and front axes, the hover and the command-line summary name
+    fields by their control labels; the unit a label states is the one the field's name
+    carries (the project's units-in-names convention), and a number without a unit says
+    (–)."""
+    from sub60.app.state import label_of
+    from sub60.app.sweep_plots import knob_text, knob_unit
+    from sub60.physics import FIELD_RANGES
+
+    units = {"_nm": "nm", "_cm3": "cm⁻³", "_eV": "eV", "_K": "K", "_meV": "meV", "_ns": "ns",
+             "_ohm_um": "Ω·µm", "_cm2eV": "cm⁻²eV⁻¹", "_nm_per_dec": "nm/decade"}
+    assert set(sweep_view.KNOB_CHOICES.values()) == set(FIELD_RANGES)
+    for f, spec in FIELD_RANGES.items():
+        label = label_of(f)
+        assert not re.search(r"[a-z0-9]_[a-z]", label), (f, label)  # no snake_case name
+        if spec.kind is not float:
+            assert knob_unit(f) == "", (f, label)
+            continue
+        suffix = max((s for s in units if f.endswith(s)), key=len, default=None)
+        if suffix is None:
+            assert label.endswith("(–)"), (f, label)
+        else:
+            assert knob_unit(f) == units[suffix], (f, label)
+    assert knob_text("heterointerface_nm", -2.0) == "Heterointerface from the gate edge -2 nm"
+    assert knob_text("source_material", "GaSb") == "Source semiconductor GaSb"
+
+
+def test_heterojunction_source_knobs_in_the_form() -> None:
+    """The source material (values, 'same' = homojunction) and the heterointerface (a range)
+    as knobs of the form; a source composition on a homojunction is refused, the message
+    naming the fields in words."""
+    v = _view()
+    v.knobs[0].field.value = "heterointerface_nm"
+    v.knobs[0].low.value, v.knobs[0].high.value, v.knobs[0].steps.value = "-2", "2", 3
+    v.knobs[1].field.value = "source_material"
+    v.knobs[1].values.value = "same, GaSb"
+    spec = v.read_spec()
+    assert spec.knob_fields == ("heterointerface_nm", "source_material") and spec.size() == 6
+    assert sum(d.is_heterojunction for d in spec.designs()) == 3
+    v.knobs[1].field.value = "source_composition_x"
+    v.knobs[1].values.value = ""
+    v.knobs[1].low.value, v.knobs[1].high.value, v.knobs[1].steps.value = "0.2", "0.4", 2
+    assert v.start() is False
+    text = v.message.object
+    assert "Source alloy composition x (–)" in text and "source semiconductor" in text, text
+    assert "source_material" not in text and "source_composition_x" not in text, text
+    v.close()

@@ -210,3 +210,36 @@ def test_unreachable_scheduler_is_an_error_before_anything_is_computed(tmp_path:
     with pytest.raises(OSError):
         run_sweep(spec, tmp_path, scheduler=f"tcp://127.0.0.1:{port}", connect_timeout_s=2)
     assert not list(tmp_path.glob("cache/*/*.json"))
+
+
+def test_heterojunction_sweep_streams_its_rows_once_and_equals_transfer_curve(client,
+                                                                              tmp_path: Path) -> None:
+    """A knob over the source material (InAs body; 'same' = homojunction, GaSb source): each
+    row reaches ``on_rows`` exactly once, cached ones first on a rerun; the heterojunction
+    row carries the metrics of `transfer_curve` for that design (1e-9 relative, the
+    project's contract); the summary names the knob by its control label."""
+    from sub60.app.sweep_cli import summary
+
+    spec = spec_from_text('[fixed]\nmaterial = "InAs"\n[[knob]]\nfield = "source_material"\n'
+                          'values = ["same", "GaSb"]\n' + PLAN)
+    batches: list[list[dict]] = []
+    res = run_sweep(spec, tmp_path, client=client, on_rows=batches.append)
+    streamed = [r for b in batches for r in b]
+    assert sorted(r["index"] for r in streamed) == [0, 1]
+    assert sorted(streamed, key=lambda r: r["index"]) == res.rows
+    homo, hetero = res.rows
+    assert (homo["source_material"], hetero["source_material"]) == ("same", "GaSb")
+    design = Design.from_dict({k: hetero[k] for k in Design().to_dict()})
+    assert design.is_heterojunction
+    tc = Simulator().transfer_curve(design, spec.bias.vg_V(), 0.3, ioff_target_uA_per_um=1e-3,
+                                    vdd_V=0.3)
+    direct = tc.metrics.to_dict()
+    for k in METRICS:
+        assert _same(hetero[k], direct[k]), (k, hetero[k], direct[k])
+    assert hetero["ion_uA_per_um"] != homo["ion_uA_per_um"]  # the source material matters
+    text = summary(res, spec)
+    assert "Source semiconductor = GaSb" in text and "source_material" not in text, text
+
+    batches.clear()
+    again = run_sweep(spec, tmp_path, client=client, on_rows=batches.append)
+    assert again.cached == 2 and len(batches) == 1 and batches[0] == again.rows

@@ -75,6 +75,29 @@ HOSTILE = [
     ('[fixed]\ngate_source_offset_nm = -8.0\n[[knob]]\nfield = "gate_length_nm"\nlow = 5.0\nhigh = 15.0\n'
      'steps = 3', ["1 of 3 designs are invalid", "gate_source_offset_nm", "gate_length_nm = 5.0"]),
     ("[[knob]\nfield=", ["not valid TOML"]),
+    # heterojunction source: the design record's ranges and rules (FIELD_RANGES: x in [0, 1],
+    # heterointerface in [-10, 10] nm; source materials the record's names or 'same')
+    ('[[knob]]\nfield = "source_material"\nvalues = ["same", "Unobtainium"]',
+     ["source_material", "Unobtainium", "'same'", "GaSb"]),
+    ('[[knob]]\nfield = "source_material"\nlow = 0.0\nhigh = 1.0\nsteps = 2',
+     ["knob source_material", "list of values", "'same'"]),
+    ('[[knob]]\nfield = "source_material"\nvalues = ["GaSb", 3]',
+     ["knob source_material.values", "expected text"]),
+    ('[fixed]\nsource_material = "InGaAs"\n[[knob]]\nfield = "source_composition_x"\nlow = 0.5\n'
+     'high = 1.5\nsteps = 3', ["source_composition_x.high", "[0, 1]"]),
+    ('[fixed]\nsource_material = "InGaAs"\n[[knob]]\nfield = "source_composition_x"\nlow = nan\n'
+     'high = 1.0\nsteps = 3', ["source_composition_x.low", "not a finite number", "[0, 1]"]),
+    ('[fixed]\nsource_material = "GaSb"\n[[knob]]\nfield = "heterointerface_nm"\nlow = -2.0\n'
+     'high = 12.0\nsteps = 3', ["heterointerface_nm.high", "[-10, 10]"]),
+    ('[fixed]\nsource_material = "Vibranium"\n[[knob]]\nfield = "body_thickness_nm"\nvalues = [5.0]',
+     ["fixed.source_material", "Vibranium", "'same'"]),
+    # combination rules, checked on every design: x needs an alloy source; the interface
+    # must lie 1 nm inside the source contact (source 5 nm, gate from x = 5 nm: >= -4 nm)
+    ('[[knob]]\nfield = "source_composition_x"\nlow = 0.5\nhigh = 1.0\nsteps = 2',
+     ["2 of 2 designs are invalid", "source_composition_x", "source_material = 'same'"]),
+    ('[fixed]\nmaterial = "InAs"\nsource_material = "GaSb"\nsource_length_nm = 5.0\n'
+     '[[knob]]\nfield = "heterointerface_nm"\nlow = -9.0\nhigh = 1.0\nsteps = 3',
+     ["1 of 3 designs are invalid", "heterointerface_nm", "[-4,", "heterointerface_nm = -9.0"]),
 ]
 
 
@@ -183,3 +206,25 @@ def test_the_readme_example_is_a_valid_spec() -> None:
 def test_sweep_file_follows_the_shared_number_rules(text, fmt, needle):
     with pytest.raises(SpecError, match=needle):
         spec_from_text(text, fmt)
+
+
+def test_heterojunction_source_fields_are_knobs() -> None:
+    """source_material (text: explicit values, 'same' = homojunction), source_composition_x
+    and heterointerface_nm (numbers: ranges) vary like any field; each design is the
+    design record's, so `is_heterojunction` tells which are heterojunctions."""
+    spec = spec_from_text(
+        '[fixed]\nmaterial = "InAs"\n'
+        '[[knob]]\nfield = "source_material"\nvalues = ["same", "GaSb", "InGaAs"]\n'
+        '[[knob]]\nfield = "heterointerface_nm"\nlow = -2.0\nhigh = 2.0\nsteps = 3\n')
+    designs = spec.designs()
+    assert spec.size() == len(designs) == 9
+    assert {(d.source_material, d.heterointerface_nm) for d in designs} == {
+        (m, h) for m in ("same", "GaSb", "InGaAs") for h in (-2.0, 0.0, 2.0)}
+    assert [d.is_heterojunction for d in designs[:3]] == [False] * 3  # 'same': homojunction
+    assert all(d.is_heterojunction for d in designs[3:])  # InGaAs at x = 0 is GaAs, not InAs
+    alloy = spec_from_text(
+        '[fixed]\nmaterial = "InAs"\nsource_material = "InGaAs"\n'
+        '[[knob]]\nfield = "source_composition_x"\nlow = 0.5\nhigh = 1.0\nsteps = 3\n')
+    xs = [d.source_composition_x for d in alloy.designs()]
+    assert xs == [0.5, 0.75, 1.0]
+    assert all(d.source_semiconductor.name != d.semiconductor.name for d in alloy.designs()[:2])
