@@ -181,7 +181,8 @@ class Explorer(pn.viewable.Viewer):
             css_classes=["presentation-toggle"])
         # material card: every parameter of the body material with its source
         self.material_card = MaterialCard(self.state, css)
-        self.measured_card = MeasuredCard(self.state, css, self._post)  # app.measured_view
+        self.measured_card = MeasuredCard(self.state, css, self._post,  # app.measured_view
+                                          on_data=self.results.show_measured)
         r = self.results
         top = pn.Row(self.header,
                      pn.Column(self.presentation_toggle, r.progress, r.status,

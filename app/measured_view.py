@@ -84,12 +84,17 @@ class MeasuredCard:
     css : stylesheets of the card's HTML panes.
     post : runs ``fn(*args)`` on the page's event loop (the fit reports from a thread).
     background : run the fit on a thread of its own (False: at once, for tests).
+    on_data : called with (file name, MeasuredData) when a file is opened (the page puts
+        its points on the main transfer and output plots and its metrics in the strip).
     """
 
     def __init__(self, state: ExplorerState, css: Sequence[str],
-                 post: Callable[..., None], background: bool = True) -> None:
+                 post: Callable[..., None], background: bool = True,
+                 on_data: Callable[[str, MeasuredData | None], None] | None = None) -> None:
         self.state, self.post, self.background = state, post, background
+        self.on_data = on_data
         self.data: MeasuredData | None = None
+        self.name = ""
         self.result: Any = None
         self._cancel: threading.Event | None = None
         self._thread: threading.Thread | None = None
@@ -151,15 +156,19 @@ class MeasuredCard:
         except ValueError as exc:
             self._say(f"{html_escape(name)} not read: {html_escape(str(exc))}", "error")
             return False
-        if not data.transfer:
-            self._say(f"{html_escape(name)} holds output curves (Id–Vd) only; the fit needs "
-                      "a transfer curve (Id–Vg).", "error")
-            return False
-        self.data, self.result = data, None
+        self.data, self.result, self.name = data, None, name
+        if self.on_data is not None:
+            self.on_data(name, data)
         note = f" The file says: {html_escape(data.comments[0])}" if data.comments else ""
-        self._say(f"{html_escape(name)}: {len(data.transfer)} transfer curve(s), "
-                  f"{data.n_points} points (current in {html_escape(data.unit)}).{note}", "done")
-        self.fit_button.disabled = False
+        if data.transfer:
+            self._say(f"{html_escape(name)}: {len(data.transfer)} transfer curve(s), "
+                      f"{data.n_points} points (current in {html_escape(data.unit)}), shown "
+                      f"on the transfer plot.{note}", "done")
+        else:
+            self._say(f"{html_escape(name)}: {len(data.output)} output curve(s) (I<sub>d</sub>"
+                      f"–V<sub>d</sub>), {data.n_points} points, shown on the output plot; the "
+                      f"fit needs a transfer curve (I<sub>d</sub>–V<sub>g</sub>).{note}", "done")
+        self.fit_button.disabled = not data.transfer
         self.use_button.disabled = True
         self.fitted.object = ""
         self._redraw()
@@ -270,6 +279,12 @@ class MeasuredCard:
 
     def _redraw(self) -> None:
         if self.data is None:
+            return
+        if not self.data.transfer:
+            self._data_src.data = {"vg": [], "id": []}
+            self._fit_src.data = {"vg": [], "id": []}
+            self._res_src.data = {"vg": [], "r": []}
+            self.table.object = ""
             return
         vg = np.concatenate([c.vg_V for c in self.data.transfer])
         current = np.concatenate([c.id_uA_per_um for c in self.data.transfer])

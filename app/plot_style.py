@@ -35,6 +35,7 @@ COLOURS: dict[str, str] = {
     "target_text": PALETTE["target_text"],
     "gate_bar": PALETTE["gate_bar"],
     "frame": PALETTE["frame"],
+    "measured": PALETTE["measured"],
 }
 TOOLS = "pan,box_zoom,wheel_zoom,reset,save"
 #: Lowest drain current the current axes reach [uA/um]: two decades below the lowest Ioff

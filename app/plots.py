@@ -16,7 +16,8 @@ Test hooks: figures are named ``band_plot``, ``spectrum_plot``, ``transmission_p
 ``swing_twin_source``, ``map_source``, ``output_source_0`` ... ; pinned designs
 (slot k = 0 ... 7): ``pin_band_source_k``, ``pin_transfer_source_k``, renderers
 ``pin_band_ec_k``, ``pin_band_ev_k``, ``pin_transfer_k``, legends ``pin_band_legend``,
-``pin_transfer_legend``.
+``pin_transfer_legend``; a measured file: ``measured_transfer_source``,
+``measured_output_source`` (renderers ``measured_transfer``, ``measured_output``).
 """
 
 from __future__ import annotations
@@ -43,6 +44,7 @@ from sub60.app.plots_curves import (
     DEVICE_NAMES,
     N_OUTPUT_SLOTS,
     N_PIN_SLOTS,
+    MeasuredOverlay,
     OutputPlot,
     PinOverlays,
     SwingPlot,
@@ -113,6 +115,7 @@ class ExplorerFigures:
         self.output = self.output_plot.figure
         self.pins = PinOverlays(self.band, self.transfer)
         self.nonideal = IdealOverlay(self)  # ideal curves, band-tail fringes
+        self.measured = MeasuredOverlay(self.transfer_plot, self.output_plot)  # a file's points
         for builder, names in self._SHARED.items():
             for name in names:
                 setattr(self, name, getattr(getattr(self, builder), name))
@@ -179,6 +182,14 @@ class ExplorerFigures:
 
     def clear_outputs(self) -> None:
         self.show_outputs([])
+
+    def show_measured(self, name: str, data=None) -> None:
+        """A measured file's curves (`physics.MeasuredData`; None: none) as markers on
+        the transfer and output plots, in the legend as "measured (name)"."""
+        if data is None:
+            self.measured.clear()
+        else:
+            self.measured.show(name, data.transfer, data.output)
 
     def show_pin(self, slot: int, name: str, bias=None, curve=None) -> None:
         """Show a pinned design in a slot: its name, and (when given) its band edges at

@@ -1,5 +1,6 @@
 """Live plots of curves: transfer Id-Vg, point swing vs current, output Id-Vd, and the
-overlays of the pinned designs (on the band diagram and the transfer plot).
+overlays of the pinned designs (on the band diagram and the transfer plot) and of a
+measured file's curves (markers on the transfer and output plots).
 
 Each builder makes its Bokeh figure once, with named data sources, and updates those
 sources in place.
@@ -72,6 +73,8 @@ class TransferPlot:
                             line_alpha=0.35, line_width=1)
         f.add_layout(self.vg_span)
         f.legend[0].items = [*f.legend[0].items, self.limit_item]
+        #: other sources with an "id" column the current axis makes room for (measured)
+        self.extra_sources: list[ColumnDataSource] = []
         self.figure = f
 
     def show(self, key: str, vg: np.ndarray, ids: np.ndarray, btbt: np.ndarray | None,
@@ -85,9 +88,10 @@ class TransferPlot:
         self._floor_axis()
 
     def _floor_axis(self) -> None:
-        """The current axis starts at the lowest drawn current, not below
-        `ID_FLOOR_UA_PER_UM` (its end follows the data)."""
-        lows = [np.nanmin(v) for src in self.transfer_sources.values()
+        """The current axis starts at the lowest drawn current (model curves and the
+        measured points), not below `ID_FLOOR_UA_PER_UM` (its end follows the data)."""
+        sources = [*self.transfer_sources.values(), *self.extra_sources]
+        lows = [np.nanmin(v) for src in sources
                 if (v := np.asarray(src.data["id"], float)).size and np.isfinite(v).any()]
         low = max(min(lows), ID_FLOOR_UA_PER_UM) if lows else ID_FLOOR_UA_PER_UM
         self.figure.y_range.start = low / 2
@@ -213,7 +217,7 @@ class OutputPlot:
             else:
                 self.output_sources[k].data = {"vd": [], "id": [], "vg": []}
                 self.output_items[k].visible = False
-        self.legend.visible = bool(curves)
+        self.legend.visible = any(item.visible for item in self.legend.items)
 
 
 class PinOverlays:
@@ -296,3 +300,70 @@ class PinOverlays:
         for leg in self.pin_legends.values():
             leg.visible = n > 0
             leg.ncols = 1 if n <= 4 else 2
+
+
+class MeasuredOverlay:
+    """A measured file's curves as markers (open circles, no line) on the transfer plot
+    and the output plot, each with one legend entry "measured (file name)" that is shown
+    only while there are points.
+
+    Sources ``measured_transfer_source`` (vg, id, vd) and ``measured_output_source``
+    (vd, id, vg); renderers ``measured_transfer`` and ``measured_output``.
+    """
+
+    def __init__(self, transfer: TransferPlot, output: OutputPlot) -> None:
+        colour = COLOURS["measured"]
+        self._transfer = transfer
+        self.transfer_source = ColumnDataSource({"vg": [], "id": [], "vd": []},
+                                                name="measured_transfer_source")
+        rt = transfer.figure.scatter("vg", "id", source=self.transfer_source, marker="circle",
+                                     size=6.5, fill_color=None, line_color=colour,
+                                     line_width=1.4, name="measured_transfer")
+        transfer.figure.add_tools(HoverTool(renderers=[rt], tooltips=[
+            ("", "measured"), ("Vd", "@vd{0.00} V"), ("Vg", "@vg{0.000} V"),
+            ("Id", "@id{0.00e+0} µA/µm")]))
+        self.output_source = ColumnDataSource({"vd": [], "id": [], "vg": []},
+                                              name="measured_output_source")
+        ro = output.figure.scatter("vd", "id", source=self.output_source, marker="circle",
+                                   size=6, fill_color=None, line_color=colour, line_width=1.4,
+                                   name="measured_output")
+        output.figure.add_tools(HoverTool(renderers=[ro], tooltips=[
+            ("", "measured"), ("Vg", "@vg{0.00} V"), ("Vd", "@vd{0.000} V"),
+            ("Id", "@id{0.000e+0} µA/µm")]))
+        self.transfer_item = LegendItem(label=value("measured"), renderers=[rt], visible=False)
+        self.output_item = LegendItem(label=value("measured"), renderers=[ro], visible=False)
+        transfer.figure.legend[0].items = [*transfer.figure.legend[0].items, self.transfer_item]
+        output.legend.items = [*output.legend.items, self.output_item]
+        self._output = output
+        transfer.extra_sources.append(self.transfer_source)
+
+    def show(self, name: str, transfer: Sequence = (), output: Sequence = ()) -> None:
+        """The measured curves of a file called ``name``: transfer curves
+        (`physics.MeasuredTransfer`) and output curves (`physics.MeasuredOutput`);
+        currents that are not positive are left out of the log axis."""
+        label = value(f"measured ({name})")
+        vg = [np.asarray(c.vg_V, float) for c in transfer]
+        self.transfer_source.data = {
+            "vg": np.concatenate(vg) if vg else np.array([]),
+            "id": (np.concatenate([positive_or_nan(c.id_uA_per_um) for c in transfer])
+                   if vg else np.array([])),
+            "vd": (np.concatenate([np.full(v.size, c.vd_V) for v, c in zip(vg, transfer,
+                                                                             strict=True)])
+                   if vg else np.array([]))}
+        vd = [np.asarray(c.vd_V, float) for c in output]
+        self.output_source.data = {
+            "vd": np.concatenate(vd) if vd else np.array([]),
+            "id": (np.concatenate([np.asarray(c.id_uA_per_um, float) for c in output])
+                   if vd else np.array([])),
+            "vg": (np.concatenate([np.full(v.size, c.vg_V) for v, c in zip(vd, output,
+                                                                             strict=True)])
+                   if vd else np.array([]))}
+        self.transfer_item.label = self.output_item.label = label
+        self.transfer_item.visible = bool(vg)
+        self.output_item.visible = bool(vd)
+        self._output.legend.visible = any(i.visible for i in self._output.legend.items)
+        self._transfer._floor_axis()
+
+    def clear(self) -> None:
+        """No measured curve."""
+        self.show("", (), ())

@@ -16,7 +16,13 @@ import numpy as np
 import panel as pn
 
 from sub60.app.jobs import SessionJobs, SweepRequest
-from sub60.app.messages import MessageBoard, solver_message, validity_notes_html, value_message
+from sub60.app.messages import (
+    MessageBoard,
+    html_escape,
+    solver_message,
+    validity_notes_html,
+    value_message,
+)
 from sub60.app.nonideal_view import breakdown_html, breakdown_pane
 from sub60.app.plots import ExplorerFigures, metrics_html
 from sub60.app.state import ExplorerState, vg_step_text
@@ -53,6 +59,8 @@ class ResultsView:
         # made the browser report "Out of bounds" on a design change)
         self.notes = pn.pane.HTML("", css_classes=["validity-notes"],
                                   stylesheets=css, sizing_mode="stretch_width", margin=(2, 8))
+        self.measured: tuple[str, Any] | None = None  # (file name, physics.MeasuredData)
+        self._stale = True
         self.breakdown = breakdown_pane(css)  # off-state current by mechanism
         self._breakdown: dict | None = None
         self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 2))
@@ -77,8 +85,24 @@ class ResultsView:
         if self.state.any_nonideal:  # non-idealities: the ideal device beside
             rows.insert(1, ("ideal", "same, ideal (non-idealities off)",
                             getattr(curves.get("ideal"), "metrics", None)))
+        if self.measured is not None:  # a measured file: its curves by the same metrics code
+            name, data = self.measured
+            settings = {"temperature_K": self.state.temperature_K, "vdd_V": self.state.vdd_V,
+                        "ioff_target_uA_per_um": self.state.ioff_target_uA_per_um}
+            for k, c in enumerate(data.transfer):
+                rows.append((f"measured-{k}", f"measured ({name}), V<sub>d</sub> = "
+                             f"{c.vd_V:g} V", c.metrics(**settings)))
+        self._stale = stale
         body = metrics_html(rows, self.state.temperature_K, self.state.vdd_V)
         self.metrics.object = f'<div class="{"stale" if stale else "fresh"}">{body}</div>'
+
+    def show_measured(self, name: str, data: Any = None) -> None:
+        """A measured file's curves (`physics.MeasuredData`, None: none) on the transfer
+        and output plots, and a metrics row per transfer curve (its figures of merit by
+        the model's own code, at the page's temperature, Ioff target and supply)."""
+        self.measured = None if data is None else (html_escape(name), data)
+        self.figures.show_measured(name, data)
+        self.show_metrics(stale=self._stale)
 
     def _failure_message(self, exc: Exception, what: str) -> str:
         if isinstance(exc, SolverError):

@@ -43,6 +43,7 @@ PALETTE: dict[str, str | tuple[str, ...]] = {
     "target_text": "#6c757d",
     "gate_bar": "#adb5bd",
     "frame": "#ced4da",
+    "measured": "#1b1b1b",
 }
 
 #: One colour per pinned-design slot, the same on the page and in an exported figure.
