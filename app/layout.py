@@ -142,7 +142,8 @@ class Explorer(pn.viewable.Viewer):
         self.pin_view.work = self.pin_jobs
         self.pin_view.changed()
         self.snapshot_view = SnapshotView(self.jobs, self.pins, self.messages, css, self._post,
-                                          self.apply_settings)
+                                          self.apply_settings,
+                                          measured=lambda: self.measured_card.snapshot())
         self.snapshots = self.snapshot_view.controls
         self.controls = Controls(self.state, css, self.snapshots, self.messages)
         self.sidebar = self.controls.sidebar
@@ -370,14 +371,17 @@ class Explorer(pn.viewable.Viewer):
 
     # ------------------------------------------------------------------ snapshots
     def apply_settings(self, settings: SnapshotSettings, updates: dict) -> None:
-        """Every control (the tunnelling model among them), the grid resolution and the
-        pinned designs of a snapshot, in one update of the state (one recomputation)."""
+        """Every control (the tunnelling model among them), the grid resolution, the
+        pinned designs and the measured curves with their fit (when the snapshot holds
+        them) of a snapshot, in one update of the state (one recomputation)."""
         m = settings.model
         sim = self.jobs.simulator
         new_model = m.resolution != sim.resolution
         if new_model:  # the state's tunnelling model follows with the updates
             self.jobs.use_simulator(shared_simulator(m.resolution, sim.model))
         self.pin_view.replace_all(settings.pinned, settings.transfer_sweep)
+        if settings.measured is not None:  # a file without one leaves the card as it is
+            self.measured_card.restore(settings.measured)
         before = (self.jobs.bias_generation, self.jobs.sweep_generation)
         self._importing = True
         try:

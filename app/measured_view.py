@@ -24,6 +24,7 @@ import numpy as np
 import panel as pn
 
 from sub60.app.messages import html_escape
+from sub60.app.snapshot_measured import MeasuredSnapshot
 from sub60.app.state import ExplorerState
 from sub60.physics import CURRENT_UNITS, FIT_KNOBS, MeasuredData, read_measured
 
@@ -173,6 +174,30 @@ class MeasuredCard:
         self.fitted.object = ""
         self._redraw()
         return True
+
+    # ------------------------------------------------------------------ snapshots
+    def snapshot(self) -> MeasuredSnapshot | None:
+        """The open file, the freed knobs and the last fit, for a snapshot (None: no
+        file is open)."""
+        if self.data is None:
+            return None
+        return MeasuredSnapshot(self.name, self.data, tuple(self.knobs.value), self.result)
+
+    def restore(self, m: MeasuredSnapshot) -> None:
+        """A snapshot's file and fit back in the card, on the plots and in the strip."""
+        self.stop()
+        self.data, self.result, self.name = m.data, m.fit, m.name
+        if self.on_data is not None:
+            self.on_data(m.name, m.data)
+        if m.free:
+            self.knobs.value = list(m.free)
+        self.fit_button.disabled = not m.data.transfer or self._thread is not None
+        self.use_button.disabled = m.fit is None
+        self.fitted.object = "" if m.fit is None else knobs_html(m.fit)
+        self._say(f"{html_escape(m.name)}: {m.data.n_points} measured points from the "
+                  "snapshot" + (", with its fit (not recomputed)." if m.fit is not None
+                                else "."), "done")
+        self._redraw()
 
     # ------------------------------------------------------------------ the fit
     def start_fit(self) -> bool:

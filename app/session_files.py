@@ -46,10 +46,14 @@ class OpenedSnapshot:
     notes: list[str]            # what the page cannot show exactly as the file states it
 
 
-def snapshot_of_session(state: ExplorerState, board: PinBoard, simulator: Any) -> SnapshotSettings:
-    """The snapshot settings of a page: controls, numerical model, pinned designs."""
+def snapshot_of_session(state: ExplorerState, board: PinBoard, simulator: Any,
+                        measured: Any = None) -> SnapshotSettings:
+    """The snapshot settings of a page: controls, numerical model, pinned designs, and
+    the measured-curve card's file and fit (`app.snapshot_measured.MeasuredSnapshot`,
+    None: no file open)."""
     model = ModelSettings(simulator.resolution, state.tunnelling_model)
-    return settings_from_state(state, [p.record() for p in board.pins], model)
+    settings = settings_from_state(state, [p.record() for p in board.pins], model)
+    return settings if measured is None else settings.replace(measured=measured)
 
 
 def export_session(settings: SnapshotSettings,

@@ -32,8 +32,9 @@ from sub60.physics import Simulator
 
 #: Largest snapshot accepted (zip or bare settings.json) [bytes].
 MAX_SNAPSHOT_BYTES = 20 * 1024 * 1024
-#: Largest settings.json accepted [bytes].
-MAX_SETTINGS_BYTES = 1024 * 1024
+#: Largest settings.json accepted [bytes] (a measured file's curves and fit, at most
+#: `app.snapshot_measured.MAX_STORED_POINTS` points, take up to about 1.5 MB of it).
+MAX_SETTINGS_BYTES = 4 * 1024 * 1024
 #: Zip-bomb guards: members, and their total uncompressed size [bytes].
 MAX_MEMBERS = 64
 MAX_UNCOMPRESSED_BYTES = 64 * 1024 * 1024

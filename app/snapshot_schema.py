@@ -1,13 +1,15 @@
 """The snapshot settings: one view's settings as frozen records, their JSON form and its
-strict validation (schema ``"sub60.snapshot"``, version 2; the file layout is described
+strict validation (schema ``"sub60.snapshot"``, version 4; the file layout is described
 in `app.snapshot`).
 
 Versions: 1 stored the design fields of sub60 0.2.0 (`DESIGN_FIELDS_V1`); 2 added the
 non-ideal physics and the alloy composition (`DESIGN_FIELDS_V2`); 3 stores every field of
 `physics.design.Design`, including the heterojunction source (`HETEROJUNCTION_FIELDS`);
 fields added to the design since, each with a default (`OPTIONAL_DESIGN_FIELDS`: the
-charge model), may be absent from a version-3 file and then take their default, so the
-version stays 3. An older file still opens: the fields it predates take their defaults (off, a
+charge model), may be absent from a version-3 or later file and then take their
+default. 4 adds the optional ``measured`` member: a measured file's curves, the freed
+knobs, and a fit's settings and result (`app.snapshot_measured`).
+An older file still opens: the fields it predates take their defaults (off, a
 homojunction, or as before), and `added_design_fields` names them so the reader can say
 so.
 
@@ -38,12 +40,15 @@ from sub60.app.snapshot_fields import (
     read_number,
     show_value,
 )
+from sub60.app.snapshot_measured import MeasuredSnapshot, measured_from_dict, measured_to_dict
 from sub60.app.state import DEFAULT_GATE_SWEEP, sweep_voltages
 from sub60.physics import FIELD_RANGES, TUNNELLING_MODELS, VD_RANGE_V, VG_RANGE_V, Design, Metrics, check_bias
 
 # ---------------------------------------------------------------------- constants
 SCHEMA_NAME = "sub60.snapshot"
-SCHEMA_VERSION = 3
+SCHEMA_VERSION = 4
+#: First version that may hold a ``measured`` member.
+MEASURED_SINCE_VERSION = 4
 #: The design fields a version-1 file holds (exactly these, every one required).
 DESIGN_FIELDS_V1: tuple[str, ...] = (
     "material", "source_type", "source_doping_cm3", "channel_doping_cm3", "drain_doping_cm3",
@@ -199,6 +204,9 @@ class SnapshotSettings:
     sub60_version: str | None = None
     created_utc: str | None = None
     stored: StoredResults | None = None
+    #: The measured-curve card's file and fit (None: no file open); not compared (it
+    #: holds arrays), compare `measured_to_dict` of both.
+    measured: MeasuredSnapshot | None = field(default=None, compare=False)
     #: Schema version of the file these settings were read from (None: made in code;
     #: an export always writes `SCHEMA_VERSION`).
     schema_version: int | None = field(default=None, compare=False)
@@ -269,6 +277,8 @@ def _settings_to_dict(s: SnapshotSettings) -> dict[str, Any]:
             "pinned": [_curve_dict(c) for c in st.pinned],
             "bias": {"current_uA_per_um": st.bias_current_uA_per_um,
                      "window_eV": None if st.window_eV is None else list(st.window_eV)}}
+    if s.measured is not None:
+        out["measured"] = measured_to_dict(s.measured)
     return out
 
 
@@ -385,7 +395,7 @@ def _stored(data: Any, path: str, n_pinned: int) -> StoredResults:
 
 _TOP_FIELDS = ("schema", "schema_version", "sub60_version", "created_utc", "title", "note",
                "design", "bias", "transfer_sweep", "output_sweep", "metric_settings", "model",
-               "pinned", "stored")
+               "pinned", "stored", "measured")
 _TOP_REQUIRED = ("schema", "schema_version", "design", "bias", "transfer_sweep", "output_sweep",
                  "metric_settings")
 
@@ -467,10 +477,18 @@ def _settings_from_dict(data: Any) -> SnapshotSettings:
                                     "design too")
             pinned.append(PinnedDesign(name, _design(po.data["design"], po.at("design"), schema_version), ps))
     stored = _stored(o.data["stored"], "stored", len(pinned)) if o.has("stored") else None
+    measured = None
+    if o.has("measured"):
+        if schema_version < MEASURED_SINCE_VERSION:
+            raise SnapshotError(f"measured: not part of a version-{schema_version} file "
+                                f"(measured curves are stored from version "
+                                f"{MEASURED_SINCE_VERSION})")
+        measured = measured_from_dict(o.data["measured"], "measured")
     return _build(design=design, bias=BiasSettings(vg, vd), transfer_sweep=sweep,
                   output_sweep=output, metric_settings=metric_settings, model=model,
                   pinned=tuple(pinned), title=title, note=note, sub60_version=version,
-                  created_utc=created, stored=stored, schema_version=schema_version)
+                  created_utc=created, stored=stored, measured=measured,
+                  schema_version=schema_version)
 
 
 def parse_utc(text: str) -> _dt.datetime:

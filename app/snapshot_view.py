@@ -46,12 +46,16 @@ class SnapshotView:
     css : stylesheets of the page's HTML panes.
     post : runs an action on the document's event loop.
     apply : puts a snapshot's settings and its parameter values into the page.
+    measured : returns the measured-curve card's file and fit for an export
+        (`app.snapshot_measured.MeasuredSnapshot`, None: no file open).
     """
 
     def __init__(self, jobs: SessionJobs, board: PinBoard, messages: MessageBoard, css: Sequence[str],
                  post: Callable[..., None],
-                 apply: Callable[[SnapshotSettings, dict], None]) -> None:
+                 apply: Callable[[SnapshotSettings, dict], None],
+                 measured: Callable[[], object] | None = None) -> None:
         self.jobs = jobs
+        self._measured = measured
         self.board = board
         self.messages = messages
         self._post = post
@@ -80,7 +84,9 @@ class SnapshotView:
     # ------------------------------------------------------------------ export
     def export_bytes(self, created: _dt.datetime | None = None) -> tuple[str, bytes]:
         """(file name, zip bytes) of a snapshot of the page, recomputed from scratch."""
-        settings = snapshot_of_session(self.jobs.state, self.board, self.jobs.simulator)
+        measured = self._measured() if self._measured is not None else None
+        settings = snapshot_of_session(self.jobs.state, self.board, self.jobs.simulator,
+                                       measured)
         return export_session(settings, created)
 
     async def _download(self) -> io.BytesIO:
@@ -139,6 +145,10 @@ class SnapshotView:
         n = len(settings.pinned)
         notes = [f"every control restored, {n} pinned design{'s' if n != 1 else ''}",
                  *opened.notes]
+        if settings.measured is not None:
+            m = settings.measured
+            notes.append(f"measured curves of {html_escape(m.name)} restored"
+                         + (" with their fit" if m.fit is not None else ""))
         self.controls.show_report("busy" if report.has_stored else "info", heading,
                                   [*report.lines(), *notes])
         if report.has_stored:

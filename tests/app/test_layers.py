@@ -40,7 +40,7 @@ LAYERS: dict[str, int] = {
     # model and I/O: no Panel, no Bokeh, no matplotlib
     "state": MODEL, "jobs": MODEL, "pin_jobs": MODEL, "pinning": MODEL, "sharing": MODEL,
     "messages": MODEL, "theme": MODEL, "tables": MODEL, "snapshot_fields": MODEL,
-    "snapshot_schema": MODEL, "snapshot_reader": MODEL, "snapshot_check": MODEL,
+    "snapshot_schema": MODEL, "snapshot_measured": MODEL, "snapshot_reader": MODEL, "snapshot_check": MODEL,
     "presets": MODEL, "atomic": MODEL, "sweep_spec": MODEL, "sweep_engine": MODEL,
     "number_rules": MODEL, "sweep_session": MODEL,
     "nonideal": MODEL, "nonideal_view": VIEWS,  # non-idealities

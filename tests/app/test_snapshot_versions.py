@@ -60,7 +60,7 @@ def test_version_1_file_opens_with_later_fields_at_their_defaults():
 def test_export_writes_the_current_version_with_every_design_field():
     settings, _ = import_snapshot(json.dumps(_v1_document()).encode())
     out = settings.to_dict()
-    assert out["schema_version"] == SCHEMA_VERSION == 3
+    assert out["schema_version"] == SCHEMA_VERSION == 4
     assert sorted(out["design"]) == sorted(FIELD_RANGES)
     again = SnapshotSettings.from_dict(json.loads(json.dumps(out)))
     assert again.design == settings.design
