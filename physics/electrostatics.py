@@ -88,6 +88,7 @@ def solve_electrostatics(
     design : Design
     vg_V : gate voltage [V]; vd_V : drain voltage [V] (source grounded)
     initial : a previous solution of the same design and resolution to continue from
+        (one of another design on the same grid only lends its potential as the start)
     resolution : grid refinement factor (1 = default spacing) [-]
     quantum_correction : shift the charge's band edges by the lowest subband energies
     max_iter : Newton steps allowed
@@ -108,7 +109,10 @@ def solve_electrostatics(
     else:
         frame = build_frame(design, resolution, quantum_correction)
         problem = problem_at_bias(frame, vg_V, vd_V)
-        start = initial_guess(frame, problem)
+        if initial is not None and _same_mesh(initial, frame):
+            start = initial.psi_V  # another design on the same grid: its potential
+        else:
+            start = initial_guess(frame, problem)
     try:
         sol = solve_poisson(problem, start, frame.operator, max_iter=max_iter, max_step_V=max_step_V)
     except SolverError as exc:
@@ -124,3 +128,11 @@ def solve_electrostatics(
         efn_eV=sol.efn_eV, efp_eV=sol.efp_eV, iterations=sol.iterations,
         residual_V=sol.residual_V, history=tuple(sol.history), frame=frame,
         interface_charge_cm2=sol.interface_charge_cm2)
+
+
+def _same_mesh(es: Electrostatics, frame: DeviceFrame) -> bool:
+    """True when a solution of another design lies on the grid of ``frame`` (same node
+    coordinates), so that its potential can start Newton there."""
+    return (es.psi_V.shape == (frame.mesh.x_nm.size, frame.mesh.y_nm.size)
+            and np.array_equal(es.x_nm, frame.mesh.x_nm)
+            and np.array_equal(es.y_nm, frame.mesh.y_nm))

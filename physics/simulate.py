@@ -66,6 +66,21 @@ if TYPE_CHECKING:
 
 #: Default memory budget of a Simulator's cache of solved bias points [B].
 DEFAULT_CACHE_BYTES = 64 * 2**20
+#: Design fields that change only the current computed from a solved electrostatics (band
+#: tails and trap-assisted generation act on the current alone in this model; the charge
+#: and potential do not see them), so two designs that differ only here share their
+#: electrostatics (`Simulator.transfer_curve`'s ``electrostatics_from``).
+CURRENT_ONLY_FIELDS: tuple[str, ...] = ("tail_energy_source_meV", "tail_energy_channel_meV",
+                                        "tat_lifetime_ns")
+
+
+def same_electrostatics(a: Design, b: Design) -> bool:
+    """True when designs a and b differ at most in `CURRENT_ONLY_FIELDS` and have no
+    access resistance (whose self-consistent bias depends on the current)."""
+    if a.source_resistance_ohm_um > 0 or a.drain_resistance_ohm_um > 0:
+        return False
+    blank = {f: 0.0 for f in CURRENT_ONLY_FIELDS}
+    return dataclasses.replace(a, **blank) == dataclasses.replace(b, **blank)
 
 
 def _design_label(d: Design) -> str:
@@ -644,22 +659,37 @@ class Simulator:
             self._series_ratios.clear()
 
     def solve_bias(self, design: Design, vg_V: float, vd_V: float,
-                   initial: Electrostatics | None = None, store: bool = True) -> BiasPoint:
+                   initial: Electrostatics | None = None, store: bool = True,
+                   electrostatics_from: Design | None = None) -> BiasPoint:
         """One bias point; cached; warm-started from the design's last solution.
 
         ``store=False`` (used for the points a transfer curve adds by refinement) reads
         the cache but neither stores the point nor makes it the design's warm start, so
         that later sweeps follow the same continuation path with or without refinement.
+        ``electrostatics_from``: a design that differs from ``design`` only in
+        `CURRENT_ONLY_FIELDS` (`same_electrostatics`); when its point at this bias is
+        cached, its electrostatics are used as they are (no Poisson solve) and only the
+        current is computed.
         """
         vg_V, vd_V = check_bias(vg_V, vd_V)
         key = (design, vg_V, vd_V)
         hit = self._cache.get(key)
         if hit is not None:
             return hit
+        shared = None
+        if electrostatics_from is not None and electrostatics_from != design:
+            if not same_electrostatics(design, electrostatics_from):
+                raise ValueError("electrostatics_from: the designs differ in more than "
+                                 + ", ".join(CURRENT_ONLY_FIELDS))
+            shared = self._cache.get((electrostatics_from, vg_V, vd_V))
         with self._lock:
             start = initial or self._last.get(design)
         with single_blas_thread():
-            if design.source_resistance_ohm_um > 0 or design.drain_resistance_ohm_um > 0:
+            if shared is not None:
+                es, notes = dataclasses.replace(shared.electrostatics, design=design), ()
+                bp = bias_point_from_electrostatics(es, self.model)
+                bp.timings_s["poisson"] = 0.0
+            elif design.source_resistance_ohm_um > 0 or design.drain_resistance_ohm_um > 0:
                 bp, es, notes = self._series_point(design, vg_V, vd_V, start, store)
             else:
                 t0 = time.perf_counter()
@@ -777,6 +807,7 @@ class Simulator:
         cancelled: Callable[[], bool] | None = None,
         slots: threading.Semaphore | None = None,
         refine: bool = True, ss_floor_uA_per_um: float | None = None,
+        electrostatics_from: Design | None = None, warm_from: Design | None = None,
     ) -> TransferCurve:
         """Id-Vg at fixed V_d with continuation along V_g, and its figures of merit.
 
@@ -791,7 +822,11 @@ class Simulator:
         are read (`physics.metrics.refine_curve`, bisection down to 2.5 mV), each new
         point warm-started from its nearest solved neighbour, so that the metrics do not
         depend on the requested spacing; ``ss_floor_uA_per_um`` is the SS_min floor
-        (None: Ioff target / 100).
+        (None: Ioff target / 100). ``electrostatics_from``: a design differing only in
+        `CURRENT_ONLY_FIELDS` whose cached points lend their electrostatics (`solve_bias`).
+        ``warm_from``: a nearby design on the same grid whose cached point at each bias
+        (when there is one) starts Newton there, instead of the extrapolation along the
+        curve (a fit's knob steps: the solution moves little between the two designs).
         """
         vg = np.asarray(vg_V, float)
         points: list[BiasPoint] = []
@@ -799,7 +834,12 @@ class Simulator:
             if cancelled is not None and cancelled():
                 raise InterruptedError("transfer curve superseded")
             with slots if slots is not None else contextlib.nullcontext():
-                bp = self.solve_bias(design, float(v), vd_V, initial=_predict(points, float(v), "vg_V"))
+                start = _predict(points, float(v), "vg_V")
+                if warm_from is not None and warm_from != design:
+                    near = self._cache.get((warm_from, *check_bias(float(v), vd_V)))
+                    start = near.electrostatics if near is not None else start
+                bp = self.solve_bias(design, float(v), vd_V, initial=start,
+                                     electrostatics_from=electrostatics_from)
             points.append(bp)
             if progress is not None:
                 progress(i + 1, vg.size)
