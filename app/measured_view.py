@@ -10,7 +10,9 @@ user frees, off the event loop with a progress line and a Stop button, then draw
 fitted model and the residuals, lists each knob ± its uncertainty (or why it is not
 determined), and can put the fitted design into the explorer (where it can be pinned).
 
-Each card belongs to one session; its Bokeh figures are made per card.
+Each card belongs to one session; its Bokeh figures are made per card. Test hooks (css
+classes): ``measured-file``, ``measured-demo``, ``measured-knobs``, ``measured-fit``,
+``measured-status``, ``measured-fitted``.
 """
 
 from __future__ import annotations
@@ -99,8 +101,10 @@ class MeasuredCard:
         self.result: Any = None
         self._cancel: threading.Event | None = None
         self._thread: threading.Thread | None = None
-        self.file = pn.widgets.FileInput(accept=".csv,.tsv,.txt,.dat", multiple=False, width=260)
-        self.demo = pn.widgets.Button(label="Open the synthetic demo curve", width=240)
+        self.file = pn.widgets.FileInput(accept=".csv,.tsv,.txt,.dat", multiple=False, width=260,
+                                         css_classes=["measured-file"])
+        self.demo = pn.widgets.Button(label="Open the synthetic demo curve", width=240,
+                                      css_classes=["measured-demo"])
         self.unit = pn.widgets.Select(label="Current unit", options=[HEADER_UNIT, *CURRENT_UNITS],
                                       width=170)
         self.width_um = pn.widgets.FloatInput(label="Width for a current in A [µm]", value=None,
@@ -108,17 +112,20 @@ class MeasuredCard:
         self.vd = pn.widgets.FloatInput(label="Vd of a file without one [V]", value=None,
                                         start=-0.6, end=1.0, step=0.05, width=190)
         self.knobs = pn.widgets.MultiChoice(label="Knobs to fit", options=list(FIT_KNOBS),
-                                            value=list(DEFAULT_KNOBS), width=520)
+                                            value=list(DEFAULT_KNOBS), width=520,
+                                            css_classes=["measured-knobs"])
         self.fit_button = pn.widgets.Button(label="Fit", button_type="primary", disabled=True,
-                                            width=90)
+                                            width=90, css_classes=["measured-fit"])
         self.stop_button = pn.widgets.Button(label="Stop", disabled=True, width=80)
         self.use_button = pn.widgets.Button(label="Put the fitted design in the explorer",
                                             disabled=True, width=300)
         self.progress = pn.indicators.Progress(value=0, max=100, width=200, height=14,
                                                active=False)
-        self.status = pn.pane.HTML("", stylesheets=list(css), sizing_mode="stretch_width")
+        self.status = pn.pane.HTML("", stylesheets=list(css), sizing_mode="stretch_width",
+                                   css_classes=["measured-status"])
         self.table = pn.pane.HTML("", stylesheets=list(css), sizing_mode="stretch_width")
-        self.fitted = pn.pane.HTML("", stylesheets=list(css), sizing_mode="stretch_width")
+        self.fitted = pn.pane.HTML("", stylesheets=list(css), sizing_mode="stretch_width",
+                                   css_classes=["measured-fitted"])
         self.plot = pn.pane.Bokeh(self._figure(), sizing_mode="stretch_width")
         self.file.param.watch(self._file_changed, "value")
         self.demo.on_click(lambda _e: self.open(demo_bytes(), DEMO_NAME))
