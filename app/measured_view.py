@@ -98,6 +98,7 @@ class MeasuredCard:
         self.on_data = on_data
         self.data: MeasuredData | None = None
         self.name = ""
+        self._generation = 0  # a fit's result for an older file or snapshot is dropped
         self.result: Any = None
         self._cancel: threading.Event | None = None
         self._thread: threading.Thread | None = None
@@ -165,6 +166,7 @@ class MeasuredCard:
             self._say(f"{html_escape(name)} not read: {html_escape(str(exc))}", "error")
             return False
         self.data, self.result, self.name = data, None, name
+        self._generation += 1
         if self.on_data is not None:
             self.on_data(name, data)
         note = f" The file says: {html_escape(data.comments[0])}" if data.comments else ""
@@ -193,6 +195,7 @@ class MeasuredCard:
     def restore(self, m: MeasuredSnapshot) -> None:
         """A snapshot's file and fit back in the card, on the plots and in the strip."""
         self.stop()
+        self._generation += 1
         self.data, self.result, self.name = m.data, m.fit, m.name
         if self.on_data is not None:
             self.on_data(m.name, m.data)
@@ -220,7 +223,7 @@ class MeasuredCard:
         self.fit_button.disabled, self.stop_button.disabled = True, False
         self.progress.active, self.progress.value = True, -1
         self._say("Fitting " + html_escape(", ".join(self.knobs.value)) + " …", "busy")
-        args = (self.data, design, list(self.knobs.value), self._cancel)
+        args = (self.data, design, list(self.knobs.value), self._cancel, self._generation)
         if not self.background:
             self._run(*args)
             return True
@@ -230,7 +233,7 @@ class MeasuredCard:
         return True
 
     def _run(self, data: MeasuredData, design: Any, free: list[str],
-             cancel: threading.Event) -> None:
+             cancel: threading.Event, generation: int | None = None) -> None:
         from sub60.physics import fit_transfer
 
         def progress(n: int, rms: float) -> None:
@@ -243,12 +246,15 @@ class MeasuredCard:
             result = "stopped"
         except Exception as exc:  # a bad setting or a failed solve: say it, keep the page
             result = exc
-        self.post(self._fit_done, result)
+        self.post(self._fit_done, result, generation)
 
-    def _fit_done(self, result: Any) -> None:
+    def _fit_done(self, result: Any, generation: int | None = None) -> None:
         self._thread = None
-        self.fit_button.disabled, self.stop_button.disabled = self.data is None, True
+        self.fit_button.disabled = self.data is None or not self.data.transfer
+        self.stop_button.disabled = True
         self.progress.active, self.progress.value = False, 0
+        if generation is not None and generation != self._generation:
+            return  # another file or a snapshot was opened meanwhile: not its fit
         if isinstance(result, str):
             self._say("Fit stopped.", "error")
             return

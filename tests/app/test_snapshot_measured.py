@@ -164,3 +164,26 @@ def test_page_snapshot_reopens_with_the_overlay_and_the_fit(fitted):
     # a file without measured curves leaves the card as it is
     assert second.import_bytes(V3_FILE.read_bytes(), "v3.json")
     assert second.measured_card.data is not None
+
+
+def test_output_file_round_trips_without_a_fit():
+    text = b"Vd,Id@Vg=0.5 [uA/um],Id@Vg=0.6 [uA/um]\n0,0,0\n0.1,1,2\n0.2,2,3\n"
+    data = read_measured(text)
+    s = SnapshotSettings(measured=MeasuredSnapshot("out.csv", data))
+    back = SnapshotSettings.from_dict(json.loads(s.to_json())).measured
+    assert not back.data.transfer and back.fit is None
+    assert [c.vg_V for c in back.data.output] == [0.5, 0.6]
+    np.testing.assert_array_equal(back.data.output[1].id_uA_per_um, [0, 2, 3])
+    doc = json.loads(s.to_json())
+    doc["measured"]["fit"] = _doc(read_measured(demo_bytes()), None)["measured"].get("fit", {})
+    _refused(doc, "a fit needs a transfer curve")
+
+
+def test_a_fit_of_an_older_file_is_not_shown(fitted):
+    _, fit = fitted
+    card = Explorer(ExplorerState(vg_points=11), background=False).measured_card
+    assert card.open(demo_bytes(), DEMO_NAME)
+    old = card._generation
+    assert card.open(demo_bytes(), "again.csv")  # a new file while the fit ran
+    card._fit_done(fit, old)
+    assert card.result is None and card.fitted.object == ""
