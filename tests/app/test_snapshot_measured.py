@@ -82,7 +82,9 @@ def test_version_3_file_opens_as_before():
     settings, report = import_snapshot(V3_FILE.read_bytes())
     assert settings.schema_version == 3 and settings.measured is None
     assert settings.design.interface_trap_density_cm2eV == 1e12
-    assert report.added_fields == ()
+    # written before the optional charge model existed: it opens with the default
+    assert report.added_fields == ("charge_model",)
+    assert settings.design.charge_model == "semiclassical"
     assert "measured" not in settings.to_dict()
 
 
