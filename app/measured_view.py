@@ -115,7 +115,7 @@ class MeasuredCard:
         self.knobs = pn.widgets.MultiChoice(label="Knobs to fit", options=list(FIT_KNOBS),
                                             value=list(DEFAULT_KNOBS), width=520,
                                             css_classes=["measured-knobs"])
-        self.fit_button = pn.widgets.Button(label="Fit", button_type="primary", disabled=True,
+        self.fit_button = pn.widgets.Button(label="Fit", color="primary", disabled=True,
                                             width=90, css_classes=["measured-fit"])
         self.stop_button = pn.widgets.Button(label="Stop", disabled=True, width=80)
         self.use_button = pn.widgets.Button(label="Put the fitted design in the explorer",

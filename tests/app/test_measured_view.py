@@ -76,3 +76,17 @@ def test_stop_before_the_first_point_says_stopped(card):
     card._run(card.data, card.state.design(), ["tail_energy"], stop)
     assert "stopped" in card.status.object
     assert not card.fit_button.disabled
+
+
+def test_the_card_uses_no_deprecated_panel_option() -> None:
+    """Panel 1.9 deprecates Button(button_type=...) for color=... (PendingDeprecationWarning,
+    panel/widgets/button.py); the card, opened, is built with what the installed Panel
+    wants."""
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", PendingDeprecationWarning)
+        warnings.simplefilter("error", DeprecationWarning)
+        c = MeasuredCard(ExplorerState(), [], lambda fn, *a: fn(*a), background=False)
+        c.view.collapsed = False
+    assert c.fit_button.color == "primary"
