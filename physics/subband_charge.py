@@ -63,6 +63,22 @@ def sheet_density_cm2(mass_rel: np.ndarray, eta: np.ndarray, kT_eV: float) -> np
     return DOS_2D_CM2_PER_EV * np.asarray(mass_rel) * kT_eV * np.logaddexp(0.0, eta)
 
 
+def coupled_sheet(mass_rel: np.ndarray, eta: np.ndarray, kT_eV: float, ratio_value: np.ndarray,
+                  ratio_slope: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Sheet density eq. (1) times the density-of-states ratio r(eta) of the subband's
+    coupled in-plane dispersion (`physics.hole_subbands`, eq. (3); r = 1: parabolic)
+    [cm^-2], and its derivative by the Fermi level |dN/dF| [cm^-2 / eV].
+
+    ratio_value, ratio_slope : tables (eta.shape..., n_eta) of r and dr/deta.
+    """
+    from sub60.physics.hole_subbands import interpolate_ratio
+
+    r, dr = interpolate_ratio(ratio_value, ratio_slope, eta)
+    ln = np.logaddexp(0.0, eta)
+    dos = DOS_2D_CM2_PER_EV * np.asarray(mass_rel)
+    return dos * kT_eV * ln * r, dos * (expit(eta) * r + ln * dr)
+
+
 def column_weights(y_fine_nm: np.ndarray, density: np.ndarray, y_nodes_nm: np.ndarray,
                    dy_semi_nm: np.ndarray) -> np.ndarray:
     """Weights u_j of |phi|^2 on the mesh rows that hold semiconductor, summing to 1 [-].
@@ -104,9 +120,20 @@ class SubbandCharge:
     chi_eV: np.ndarray
     eg_eV: np.ndarray
     kT_eV: float
+    #: (R, K, n_eta) density-of-states ratio r and dr/deta of each region's subbands
+    #: (`physics.hole_subbands`, eq. (3); 1 and 0 for the conduction subbands)
+    ratio_value: np.ndarray | None = None
+    ratio_slope: np.ndarray | None = None
 
     def __post_init__(self) -> None:
         nb = self.region_weights.shape[2]
+        if self.ratio_value is None:
+            shape = self.region_weights.shape[:2] + (2,)
+            object.__setattr__(self, "ratio_value", np.ones(shape))
+            object.__setattr__(self, "ratio_slope", np.zeros(shape))
+        # per column (K, nx, n_eta)
+        object.__setattr__(self, "_col_value", self.ratio_value[self.region].transpose(1, 0, 2).copy())
+        object.__setattr__(self, "_col_slope", self.ratio_slope[self.region].transpose(1, 0, 2).copy())
         masks = [self.region == r for r in range(self.region_weights.shape[0])]
         # upper-band products P[k, d, b] = u[k, b - d] u[k, b] (b >= d) of eq. (3)
         pairs = np.zeros(self.region_weights.shape[:2] + (nb, nb))
@@ -161,8 +188,8 @@ class SubbandCharge:
         edges = self._edges(psi_body)
         e = self.electron[:, None]
         eta = np.where(e, efn_eV[None, :] - edges, edges - efp_eV[None, :]) / kT
-        sheet = sheet_density_cm2(self.mass, eta, kT)  # (K, nx)
-        dsheet = DOS_2D_CM2_PER_EV * self.mass * expit(eta)  # |dN/dE_n| [cm^-2 / eV]
+        # (K, nx) sheets and |dN/dE_n| [cm^-2 / eV]
+        sheet, dsheet = coupled_sheet(self.mass, eta, kT, self._col_value, self._col_slope)
         inv_dy = _CM3_PER_CM2_NM / self.dy_semi_nm
         w = self.region_weights
         nb = w.shape[2]
@@ -188,7 +215,7 @@ class SubbandCharge:
         """The charge of a column at uniform potential, for charge-neutral contacts."""
         thickness = float(self.dy_semi_nm.sum())
         return ColumnCharge(self.electron, self.energy_eV, self.mass, thickness, self.chi_eV,
-                            self.eg_eV, self.kT_eV)
+                            self.eg_eV, self.kT_eV, self._col_value, self._col_slope)
 
 
 @dataclass(frozen=True, eq=False)
@@ -207,11 +234,19 @@ class ColumnCharge:
     chi_eV: np.ndarray  # (nx,)
     eg_eV: np.ndarray  # (nx,)
     kT_eV: float
+    ratio_value: np.ndarray | None = None  # (K, nx, n_eta), eq. (3) of `hole_subbands`
+    ratio_slope: np.ndarray | None = None
+
+    def __post_init__(self) -> None:
+        if self.ratio_value is None:
+            object.__setattr__(self, "ratio_value", np.ones(self.mass.shape + (2,)))
+            object.__setattr__(self, "ratio_slope", np.zeros(self.mass.shape + (2,)))
 
     def at(self, index) -> ColumnCharge:
         """The columns at some nodes along x."""
         return ColumnCharge(self.electron, self.energy_eV[:, index], self.mass[:, index],
-                            self.thickness_nm, self.chi_eV[index], self.eg_eV[index], self.kT_eV)
+                            self.thickness_nm, self.chi_eV[index], self.eg_eV[index], self.kT_eV,
+                            self.ratio_value[:, index], self.ratio_slope[:, index])
 
     def densities(self, psi_V, efn_eV, efp_eV):
         """n, p [cm^-3] and dn/dpsi, dp/dpsi [cm^-3 / V] of columns at potential psi (nx,)."""
@@ -223,8 +258,10 @@ class ColumnCharge:
         efp = np.broadcast_to(np.asarray(efp_eV, float), psi.shape)
         eta = np.where(e, efn - edges, edges - efp) / self.kT_eV
         scale = _CM3_PER_CM2_NM / self.thickness_nm
-        sheet = sheet_density_cm2(self.mass, eta, self.kT_eV) * scale
-        dsheet = DOS_2D_CM2_PER_EV * self.mass * expit(eta) * scale
+        rv = np.broadcast_to(self.ratio_value, eta.shape + self.ratio_value.shape[-1:])
+        rs = np.broadcast_to(self.ratio_slope, rv.shape)
+        sheet, dsheet = coupled_sheet(self.mass, eta, self.kT_eV, rv, rs)
+        sheet, dsheet = sheet * scale, dsheet * scale
         n = np.where(e, sheet, 0.0).sum(axis=0)
         p = np.where(e, 0.0, sheet).sum(axis=0)
         dn = np.where(e, dsheet, 0.0).sum(axis=0)
@@ -255,6 +292,7 @@ def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> Su
     nodes of source material of a heterojunction (None: a homojunction).
     """
     from sub60.physics.constants import thermal_energy_eV
+    from sub60.physics.hole_subbands import ETA_MAX, ETA_MIN, ETA_STEP, hole_dos_ratio
     from sub60.physics.subbands import charge_subbands
 
     dy = mesh.dy_semiconductor_nm
@@ -267,8 +305,7 @@ def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> Su
     def region(d):
         sb = charge_subbands(d)
         states = list(sb.conduction) + list(sb.valence)
-        rec = d.semiconductor
-        return (states, rec)
+        return (states, d)
 
     regions = [region(design)]
     if x_source is not None and np.any(x_source):
@@ -283,11 +320,18 @@ def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> Su
     energy = np.empty((K, nx))
     mass = np.empty((K, nx))
     weights = np.empty((len(regions), K, rows.stop - rows.start))
+    n_eta = int(round((ETA_MAX - ETA_MIN) / ETA_STEP)) + 1
+    ratio_value = np.ones((len(regions), K, n_eta))
+    ratio_slope = np.zeros((len(regions), K, n_eta))
     chi = np.empty(nx)
     eg = np.empty(nx)
     masks = [np.ones(nx, bool)] if len(regions) == 1 else [~x_source, x_source]
-    for r, ((states, rec), mask) in enumerate(zip(regions, masks, strict=True)):
+    for r, ((states, d), mask) in enumerate(zip(regions, masks, strict=True)):
+        rec = d.semiconductor
         c, v = kinds(states)
+        coupled = hole_dos_ratio(d)  # the valence subbands of charge_subbands(d), in order
+        ratio_value[r, n_c:] = coupled.value[:n_v]
+        ratio_slope[r, n_c:] = coupled.slope[:n_v]
         sel = c[:n_c] + v[:n_v]
         energy[:, mask] = np.array([s.energy_eV for s in sel])[:, None]
         mass[:, mask] = np.array([s.inplane_mass for s in sel])[:, None]
@@ -302,14 +346,17 @@ def build_subband_charge(design, mesh, x_source: np.ndarray | None = None) -> Su
         chi[:] = np.where(x_source, source_affinity_eV(design), design.semiconductor.electron_affinity_eV)
     region = np.zeros(nx, int) if len(regions) == 1 else x_source.astype(int)
     return SubbandCharge(electron, energy, mass, region, weights, rows, mesh.ny, dy_rows,
-                         mesh.dx_nm, chi, eg, thermal_energy_eV(design.temperature_K))
+                         mesh.dx_nm, chi, eg, thermal_energy_eV(design.temperature_K),
+                         ratio_value, ratio_slope)
 
 
 def contact_fermi_depth_eV(design, doping_cm3: float, electrons: bool) -> float:
     """How far the Fermi level of a neutral flat column lies inside the band, measured
     from the lowest conduction (highest valence) subband edge, eq. (1) [eV]: the
-    sheet sum_n N_n equals doping x body thickness. Positive: degenerate."""
+    sheet sum_n N_n equals doping x body thickness (holes: with the coupled density of
+    states of `physics.hole_subbands`). Positive: degenerate."""
     from sub60.physics.constants import thermal_energy_eV
+    from sub60.physics.hole_subbands import hole_dos_ratio
     from sub60.physics.subbands import charge_subbands
 
     sb = charge_subbands(design)
@@ -317,11 +364,15 @@ def contact_fermi_depth_eV(design, doping_cm3: float, electrons: bool) -> float:
     e0 = np.array([s.energy_eV for s in states])
     m = np.array([s.inplane_mass for s in states])
     kT = thermal_energy_eV(design.temperature_K)
+    if electrons:
+        rv, rs = np.ones((len(states), 2)), np.zeros((len(states), 2))
+    else:
+        rv, rs = hole_dos_ratio(design).value, hole_dos_ratio(design).slope
     target = doping_cm3 * design.body_thickness_nm * 1e-7
     lo, hi = e0[0] - 3.0, e0[0] + 3.0  # F (into the band, from the bulk edge) [eV]
     for _ in range(80):
         mid = 0.5 * (lo + hi)
-        if sheet_density_cm2(m, (mid - e0) / kT, kT).sum() > target:
+        if coupled_sheet(m, (mid - e0) / kT, kT, rv, rs)[0].sum() > target:
             hi = mid
         else:
             lo = mid
