@@ -386,10 +386,10 @@ class Controls:
             "matrices along the same subband edges (slower). The Transmission plot draws "
             "both at the present bias.</div>", stylesheets=self._css, margin=(0, 12))
         charge_note = pn.pane.HTML(
-            '<div class="note">The 2D subbands use the uncoupled in-plane hole masses '
-            "(light for heavy holes): a degenerate p+ source then has its Fermi level far "
-            "inside the valence band and the tunnel FET loses its steep swing. The bulk "
-            "states stay the default; see the README.</div>",
+            '<div class="note">The 2D subbands count the holes with the density of states '
+            "of coupled heavy/light-hole subbands (4×4 k·p) and the electrons with the "
+            "in-plane masses transport uses; transport still moves holes with the uncoupled "
+            "masses. The bulk states stay the default; see the README.</div>",
             stylesheets=self._css, margin=(0, 12))
         return [
             card("Demo designs and snapshots", *snapshots.items),

@@ -302,7 +302,7 @@ class ExplorerState(NonIdealSettings):
         label="Carrier charge",
         doc="Density of states of the body's charge in the electrostatics: the bulk one "
             "with the band edges shifted by the lowest subbands, or the 2D density of "
-            "states of every confinement subband with the in-plane masses transport uses "
+            "states of every confinement subband (holes: coupled 4x4 k.p subbands) "
             "(Design.charge_model).")
 
     # ---------------------------------------------------------------- display

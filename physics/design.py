@@ -151,7 +151,7 @@ FIELD_RANGES: dict[str, FieldSpec] = {
         str, choices=("semiclassical", "subbands"),
         help="carrier charge of the body: 'semiclassical' (bulk density of states, band "
              "edges shifted by the lowest subbands) or 'subbands' (2D density of states "
-             "of the confinement subbands with the in-plane masses transport uses)"),
+             "of the confinement subbands; hole subbands from coupled 4x4 k.p)"),
 }
 
 #: The switches of the non-idealities and their "off" values (the ideal device);
@@ -248,8 +248,9 @@ class Design:
     charge_model : str
         carrier charge of the body in the electrostatics: "semiclassical" (default; bulk
         3D density of states with the band edges shifted by the lowest confinement
-        subbands) or "subbands" (2D density of states of every confinement subband, with
-        the in-plane masses transport uses; `physics.subband_charge`).
+        subbands) or "subbands" (2D density of states of every confinement subband: the
+        conduction subbands with the in-plane masses transport uses, the hole subbands
+        with their coupled 4x4 k.p dispersion; `physics.subband_charge`).
 
     Notes
     -----

@@ -26,16 +26,19 @@ E = P -+ sqrt(Q^2 + |R|^2 + |S|^2) (the closed form the tests check).
 
 Well. kz = -i d/dy across the body with position-dependent parameters in the operator
 orderings kz g kz (second derivatives) and (g kz + kz g)/2 (first derivative, symmetrised
-so that H is Hermitian; e.g. Chuang 1995, ch. 4 — from memory). The stack is that of
-`physics.subbands`: the same grid, the same hole barriers V_h of the dielectrics and,
-in them, the isotropic mass of `subbands._well` (g1 = 1/m_bar, g2 = g3 = 0), so that at
-k = 0 the four components decouple into exactly the uncoupled heavy- (mass 1/(g1 - 2g2)
-along y) and light-hole (1/(g1 + 2g2)) problems of `physics.confinement` — the same
-box-integration discretisation, hence the same numbers to round-off. The first-derivative
+so that H is Hermitian; e.g. Chuang 1995, ch. 4 — from memory), on the box-integration
+grid of `physics.confinement` (psi = 0 at the outer faces of the barriers). At k = 0
+the four components decouple into the uncoupled heavy- (mass 1/(g1 - 2g2) along y) and
+light-hole (1/(g1 + 2g2)) problems of `physics.confinement` on the same grid — the same
+discretisation, hence the same numbers to round-off (tested). The first-derivative
 term is discretised cell by cell from its bilinear form,
 int g psi* phi' over a cell -> g_c (psi_i + psi_i+1)*/2 (phi_i+1 - phi_i), which gives
 the Hermitian central difference +-i g_c / 2 between neighbours; second order in the
-spacing where the parameters are smooth.
+spacing where the parameters are smooth. The stack (`design_well`): the dielectrics'
+hole barriers of `physics.subbands`, but the semiconductor's Luttinger parameters in
+them too — with the dielectric's isotropic mass there (g2 = g3 = 0) the symmetrised
+ordering binds a spurious interface state (see `design_well`). Only the in-plane shape
+E_n(k) - E_n(0) is used, placed on the edges of `subbands.charge_subbands`.
 
 Density of states. The n-th eigenvalues of the two axial blocks (`block_energies`,
 each ordered by energy at every k) form subband n; its sheet density at hole Fermi level F (hole energies) is
@@ -301,7 +304,7 @@ def design_well(design, spacing_nm: float = DISPERSION_SPACING_NM) -> LuttingerW
     interface state whose energy falls without bound as k grows and as the grid is
     refined (found here: -0.27, -0.63, -0.77 eV at k = 2.5/nm with 0.2, 0.1, 0.05 nm
     spacing in the default body; non-symmetric splittings of g3 kz tried were worse).
-    Continuous parameters remove it. The heavy-hole edges move by < 2 meV (HH1 20.7
+    Continuous parameters remove it. The heavy-hole edges move by 0.2-5 meV (HH1 20.7
     against 20.5 meV in the default body), the light-hole ones much more (LH1 0.212
     against 0.106 eV: the uncoupled model's heavy oxide mass, 0.4 m0 against the light
     hole's 0.027 m0, lowers it), so only the in-plane shape is taken from here

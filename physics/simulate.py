@@ -583,8 +583,8 @@ def _design_warnings(design: Design) -> tuple[str, ...]:
 
 def _subband_charge_warnings(design: Design) -> list[str]:
     """Cautions of the 2D-subband charge (`physics.subband_charge`): one conduction valley
-    only, and contacts whose Fermi level the light uncoupled in-plane masses put deep in
-    a band."""
+    only, and contacts whose Fermi level lies deep in a band (conduction: parabolic
+    in-plane subbands; holes: coupled 4x4 k.p subbands without the split-off band)."""
     from sub60.physics.subband_charge import contact_fermi_depth_eV
 
     out = []
@@ -600,10 +600,10 @@ def _subband_charge_warnings(design: Design) -> list[str]:
         depth = contact_fermi_depth_eV(d, dop, electrons)
         if depth > SUBBAND_DEGENERACY_WARN_EV:
             out.append(f"{name} = {dop:.3g} cm^-3 puts the Fermi level {depth:.2f} eV beyond the "
-                       "first subband edge with the 2D subband charge (uncoupled in-plane "
-                       "masses, light for heavy holes); real, mixed subbands are heavier and "
-                       "hold it closer to the edge: the semiclassical charge is the default "
-                       "for this reason.")
+                       "first subband edge with the 2D subband charge; that deep, the "
+                       "subbands' in-plane dispersions (parabolic for electrons, 4x4 k.p "
+                       "without the split-off band for holes) and the single Gamma valley "
+                       "are outside their range.")
     return out
 
 

@@ -26,14 +26,20 @@ a symmetric, positive semi-definite block within each column: it fits inside the
 of the banded Cholesky Newton matrix (unknowns ordered y fastest), so Newton keeps its
 exact Jacobian and its speed (`physics.poisson`).
 
+Holes: each valence subband's sheet density is eq. (1) times the density-of-states
+ratio r_n(eta) of its coupled in-plane dispersion (4x4 Luttinger–Kohn, heavy/light-hole
+mixing; `physics.hole_subbands`, eq. (3)), so m_n r_n(eta) is its Fermi-level- and
+temperature-dependent DOS mass (HH1 of the default InAs body: 0.27 m0 non-degenerate,
+0.44 m0 at the p+ source's Fermi level, against the uncoupled 0.035 m0); the Jacobian,
+eq. (3), takes the derivative of the product.
+
 Limits, stated: the envelopes are those of the flat well (no self-consistent
 Schrödinger–Poisson: the potential across the body moves the edges, eq. (1) of
-`physics.subbands`, but does not reshape phi_n); in-plane dispersions are parabolic with
-the subband-edge masses (conduction m*(1 + 2 alpha E_n); holes the uncoupled Luttinger
-in-plane masses, which ignore the heavy/light-hole mixing that makes hole subbands
-heavier away from k = 0: the hole charge is underestimated at a given Fermi level, so
-a degenerate p+ source has its Fermi level deeper in the valence band than a coupled
-k.p model would give); subbands up to `subbands.CHARGE_CUTOFF_EV` hold charge; a
+`physics.subbands`, but does not reshape phi_n); conduction in-plane dispersions are
+parabolic with the subband-edge masses m*(1 + 2 alpha E_n); the hole dispersions come
+from a well with the semiconductor's Luttinger parameters in the dielectrics (see
+`hole_subbands.design_well`) placed on the uncoupled edges; subbands up to
+`subbands.CHARGE_CUTOFF_EV` hold charge; a
 heterojunction's interface node takes the subbands of the side it is assigned to by
 `heterojunction.source_nodes` (the semiclassical charge splits its control volume).
 """

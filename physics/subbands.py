@@ -241,8 +241,9 @@ def device_subbands(design: Design) -> DeviceSubbands:
 
 #: Confinement energy up to which subbands hold charge (`charge_subbands`) [eV], and the
 #: most states of each kind (C, HH, LH) kept. Engineering choice, no source: with the
-#: Fermi level up to 0.4-0.5 eV beyond the first subband (a 4e19 source with the
-#: subband charge), a subband at 0.9 eV still lies ~16 kT above it at 300 K.
+#: Fermi level up to 0.4-0.5 eV beyond the first subband (a 4e20 source; 4e19 puts it
+#: 0.10 eV in with the coupled hole subbands), a subband at 0.9 eV still lies ~16 kT
+#: above it at 300 K.
 CHARGE_CUTOFF_EV = 0.9
 CHARGE_MAX_STATES = 24
 

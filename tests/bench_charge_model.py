@@ -4,8 +4,8 @@
 
 On the default design, for Design.charge_model "semiclassical" and "subbands"
 (`physics.subband_charge`), interleaved so that both see the same machine load:
-- the one-time structure (mesh, operator and, for subbands, the charge subbands, with
-  the subband cache cleared),
+- the one-time structure (mesh, operator and, for subbands, the charge subbands and the
+  coupled hole dispersion, with their caches cleared),
 - a cold electrostatics solve (charge-neutral start) and a warm one (continuation after
   dVg = 20 mV) with their Newton steps,
 - a 41-point transfer curve (-0.3…0.5 V, Vd = 0.3 V, fresh simulator, metrics refined);
@@ -45,9 +45,11 @@ def main() -> None:
     steps: dict[str, dict[str, list[int]]] = {m: {"cold": [], "warm": []} for m in MODELS}
     for _ in range(args.repeats):
         for m, d in designs.items():
+            from sub60.physics.hole_subbands import hole_dos_ratio
             from sub60.physics.subbands import charge_subbands
 
             charge_subbands.cache_clear()
+            hole_dos_ratio.cache_clear()
             t = time.perf_counter()
             _frame(d, 1.0, True)
             times[m]["frame"].append(time.perf_counter() - t)
