@@ -60,6 +60,7 @@ from sub60.app.state import (
     ExplorerState,
 )
 from sub60.app.sweep_view import SweepView
+from sub60.app.whatif_bar import WhatIfBar
 from sub60.physics import check_tunnelling_material
 
 __all__ = ["CAUTION", "SIDEBAR_WIDTH", "TITLE", "Explorer", "create_app", "stylesheet"]
@@ -184,12 +185,16 @@ class Explorer(pn.viewable.Viewer):
         self.material_card = MaterialCard(self.state, css)
         self.measured_card = MeasuredCard(self.state, css, self._post,  # app.measured_view
                                           on_data=self.results.show_measured)
+        # the most used settings in one row above the results, shown in both modes (the
+        # presentation mode hides only the sidebar): app.whatif_bar
+        self.whatif = WhatIfBar(self.state, self.messages, css)
         r = self.results
         top = pn.Row(self.header,
                      pn.Column(self.presentation_toggle, r.progress, r.status,
                                width=280, margin=0),
                      sizing_mode="stretch_width", margin=0)
-        self.main = pn.Column(top, r.metrics, r.breakdown,  # breakdown: app.nonideal_view
+        self.main = pn.Column(top, self.whatif.view, r.metrics,
+                              r.breakdown,  # breakdown: app.nonideal_view
                               self.material_warning, r.notes, self.alert, r.plots,
                               self.material_card.view, self.measured_card.view,
                               self.pin_view.compare.view, sizing_mode="stretch_width",
@@ -255,6 +260,7 @@ class Explorer(pn.viewable.Viewer):
         self.sweep_view.close()
         self.material_card.close()
         self.measured_card.close()
+        self.whatif.close()
         for owner, watcher in self._watchers:
             try:
                 owner.param.unwatch(watcher)
@@ -289,8 +295,10 @@ class Explorer(pn.viewable.Viewer):
     # ------------------------------------------------------------------ watchers
     def _on_presentation(self, event) -> None:
         """The controls hide (or show) and the header, metrics and status text grow (css
-        class 'presenting'). The figures keep their sizes and fonts: changing them one by
-        one made the browser lay the whole page out for each (18 s a toggle)."""
+        class 'presenting'), in one document update. No figure property changes: the
+        figures stretch over the width they get (`ExplorerFigures.WIDTH_SHARES`), so the
+        browser widens them all in the one reflow of the page without the sidebar
+        (resizing them one by one from here made the browser lay the page out for each)."""
         on = bool(event.new)
         doc = self._doc
         with hold(doc) if doc is not None else nullcontext():

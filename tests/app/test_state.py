@@ -331,7 +331,8 @@ def test_sessions_share_no_bokeh_model():
     assert not shared, sorted(type(roots[0][i]).__name__ for i in shared)
     formats = [{m.id for m in r.values() if type(m).__name__ == "CustomJSTickFormatter"}
                for r in roots]
-    assert len(formats[0]) == len(formats[1]) == 4  # Ioff and three dopings, one per page
+    # Ioff and three dopings in the sidebar, the what-if bar's doping entry: one per page
+    assert len(formats[0]) == len(formats[1]) == 5
 
 
 def test_design_message_goes_when_the_combination_is_fixed():
