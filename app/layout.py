@@ -102,6 +102,23 @@ if (!window.sub60PresentKey) {
 }
 """
 
+#: The presentation toggle's looks, applied in the browser at the click (or P key) without
+#: waiting for the server: the page, header, metrics and status take the css class
+#: 'presenting'; the page's stylesheet (`PAGE_CSS`) then hides the controls. The server's
+#: watcher (`Explorer._on_presentation`) sets the same classes afterwards (no change then
+#: reaches the browser). Hiding the controls by a class, not by their Bokeh `visible`,
+#: spares the browser a layout pass of every model on the page.
+PRESENT_LOOKS_JS = """
+const on = source.active;
+for (const pane of [page, header, metrics, status]) {
+  const rest = pane.css_classes.filter((c) => c !== 'presenting');
+  pane.css_classes = on ? [...rest, 'presenting'] : rest;
+}
+"""
+#: The page row's own stylesheet: in presentation the controls are not shown.
+PAGE_CSS = ":host(.presenting) .sub60-sidebar { display: none !important; }"
+
+
 class Explorer(pn.viewable.Viewer):
     """One session of the explorer: settings, work and views of one browser page.
 
@@ -211,7 +228,10 @@ class Explorer(pn.viewable.Viewer):
                             stylesheets=css)
         self.tabs.param.watch(self._on_tab, "active")
         self._page = pn.Row(self.sidebar, self.tabs, sizing_mode="stretch_width", margin=0,
-                            css_classes=["sub60-page"])
+                            css_classes=["sub60-page"], stylesheets=[PAGE_CSS])
+        self.presentation_toggle.jscallback(
+            args={"page": self._page, "header": self.header, "metrics": r.metrics,
+                  "status": r.status}, value=PRESENT_LOOKS_JS)
 
     def _watch(self) -> None:
         """One watcher per concern (each called once per batch of changes)."""
@@ -294,18 +314,23 @@ class Explorer(pn.viewable.Viewer):
 
     # ------------------------------------------------------------------ watchers
     def _on_presentation(self, event) -> None:
-        """The controls hide (or show) and the header, metrics and status text grow (css
-        class 'presenting'), in one document update. No figure property changes: the
-        figures stretch over the width they get (`ExplorerFigures.WIDTH_SHARES`), so the
-        browser widens them all in the one reflow of the page without the sidebar
+        """The controls hide (or show) and the header, metrics and status text grow: the
+        page and those panes take the css class 'presenting' (the browser has done so at
+        the click already: `PRESENT_LOOKS_JS`), in one document update. No figure property
+        changes: the figures stretch over the width they get (`ExplorerFigures.WIDTH_SHARES`),
+        so the browser widens them all in the one reflow of the page without the controls
         (resizing them one by one from here made the browser lay the page out for each)."""
         on = bool(event.new)
         doc = self._doc
         with hold(doc) if doc is not None else nullcontext():
-            self.sidebar.visible = not on
-            for pane in (self.header, self.results.metrics, self.results.status):
+            for pane in (self._page, self.header, self.results.metrics, self.results.status):
                 pane.css_classes = [c for c in pane.css_classes if c != "presenting"] + (
                     ["presenting"] if on else [])
+
+    @property
+    def presenting(self) -> bool:
+        """Whether the page shows the presentation look (controls hidden)."""
+        return "presenting" in self._page.css_classes
 
     def _on_tab(self, event) -> None:
         if event.new == 1 and not self._sweep_slot.objects:

@@ -366,7 +366,7 @@ class MapPlot:
         self.colour_mapper = LinearColorMapper(palette=list(MAP_PALETTE), low=-1, high=1)
         # the bulk edge (the band diagram draws the confined subbands): said in the title
         f = figure(name="map_plot",
-                   title="Bulk conduction-band edge over the cross-section (no confinement shift)",
+                   title="Bulk Ec over the cross-section (no confinement shift)",
                    x_range=x_range, y_range=Range1d(0, 11),
                    x_axis_label="x (nm)", y_axis_label="y (nm)", tools=TOOLS)
         self.map_source = ColumnDataSource({"image": [], "x": [], "y": [], "dw": [], "dh": []},

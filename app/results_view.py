@@ -74,7 +74,8 @@ class ResultsView:
                    sizing_mode="stretch_width", margin=0, styles={"flex-wrap": "wrap"}),
             pn.Row(p["map"], p["output"], p["swing"], sizing_mode="stretch_width", margin=0,
                    styles={"flex-wrap": "wrap"}),
-            sizing_mode="stretch_width", margin=(0, 4), css_classes=["sub60-plots"])
+            sizing_mode="stretch_width", margin=(0, 4), css_classes=["sub60-plots"],
+            stylesheets=css)
         self.show_metrics(stale=True)
 
     # ------------------------------------------------------------------ texts

@@ -63,8 +63,7 @@ window.sub60bench = {
   async looks(on) {                  // resolves at the first frame of the toggle's settled
     // looks: controls hidden or shown, header class, and every figure's width unchanged
     // over three frames (figures that follow the window are re-laid out by the browser)
-    await this.poll(() => sub60.byClass('sub60-sidebar').visible === !on &&
-      sub60.byClass('sub60-header').css_classes.includes('presenting') === on);
+    await this.poll(() => (on ? sub60.presenting() : sub60.desk()));
     let t = await this.frame();
     let last = JSON.stringify(this.widths());
     let same = 0;

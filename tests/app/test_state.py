@@ -233,13 +233,13 @@ def test_presentation_mode_hides_controls_and_leaves_the_figures_alone(explorer)
     before = {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
               for k, fig in f.figures.items()}
     e.state.presentation = True
-    assert not e.sidebar.visible
+    assert e.presenting  # the page's class hides the sidebar (its stylesheet)
     assert all("presenting" in p.css_classes
                for p in (e.header, e.results.metrics, e.results.status))
     assert {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
             for k, fig in f.figures.items()} == before
     e.state.presentation = False
-    assert e.sidebar.visible and "presenting" not in e.header.css_classes
+    assert not e.presenting and "presenting" not in e.header.css_classes
 
 
 def test_caution_and_metrics_are_in_the_page(explorer):
