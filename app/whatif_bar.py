@@ -35,6 +35,14 @@ class _NowFloatInput(pn.widgets.FloatInput):
 
     _debounce = 0
 
+    def _process_property_change(self, msg: dict) -> dict:
+        # a whole number of 1e16 or more (a doping such as 1.5e20) arrives from the
+        # browser's JSON as a Python int too large for NumPy, on which Panel's own check
+        # fails: values are floats here
+        msg = {k: float(v) if k in ("value", "value_throttled") and isinstance(v, int)
+               and not isinstance(v, bool) else v for k, v in msg.items()}
+        return super()._process_property_change(msg)
+
 
 @dataclass(frozen=True)
 class Knob:

@@ -154,6 +154,20 @@ def test_presentation_fills_the_window_and_takes_a_typed_vg(browser, app_url, tm
         page.wait_for_function("(v) => Math.abs(sub60.byClass('whatif-vg').value - v) < 1e-9",
                                arg=vg, timeout=60_000)
         assert abs(page.evaluate("() => sub60.sliderOf('ctl-vg_V').value") - vg) < 1e-9
+        # a doping typed as a designer writes it (1.5e20 reaches the server as a whole
+        # number too large for NumPy: it was lost on the way), and an EOT
+        doping = page.locator(".whatif-nsource input").first
+        assert doping.input_value() == "4e19"
+        doping.fill("1.5e20")
+        doping.press("Enter")
+        page.wait_for_function(
+            "() => sub60.byClass('sub60-header').text.includes('source 1.5e+20 cm')",
+            timeout=60_000)
+        eot = page.locator(".whatif-eot input").first
+        eot.fill("0.8")
+        eot.press("Enter")
+        page.wait_for_function("() => sub60.byClass('sub60-header').text.includes('EOT 0.80 nm')",
+                               timeout=60_000)
         page.keyboard.press("Escape")
         page.locator("body").click(position={"x": 5, "y": height - 5})
         page.keyboard.press("p")
