@@ -290,7 +290,8 @@ class SpectrumPlots:
             fig.yaxis.major_tick_line_color = None
             if fig is s:
                 fig.xaxis.ticker.desired_num_ticks = 2
-                fig.xaxis.formatter = BasicTickFormatter(precision=0, power_limit_low=-2,
+                # digits as the ticks need them (0.5 was drawn as "0" with none)
+                fig.xaxis.formatter = BasicTickFormatter(power_limit_low=-2,
                                                          power_limit_high=3)
             for _ in range(2):
                 span = Span(location=0, dimension="width", line_color=COLOURS["fermi"],
