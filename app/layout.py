@@ -60,6 +60,7 @@ from sub60.app.state import (
     ExplorerState,
 )
 from sub60.app.sweep_view import SweepView
+from sub60.app.whatif_bar import WhatIfBar
 from sub60.physics import check_tunnelling_material
 
 __all__ = ["CAUTION", "SIDEBAR_WIDTH", "TITLE", "Explorer", "create_app", "stylesheet"]
@@ -100,6 +101,23 @@ if (!window.sub60PresentKey) {
   });
 }
 """
+
+#: The presentation toggle's looks, applied in the browser at the click (or P key) without
+#: waiting for the server: the page, header, metrics and status take the css class
+#: 'presenting'; the page's stylesheet (`PAGE_CSS`) then hides the controls. The server's
+#: watcher (`Explorer._on_presentation`) sets the same classes afterwards (no change then
+#: reaches the browser). Hiding the controls by a class, not by their Bokeh `visible`,
+#: spares the browser a layout pass of every model on the page.
+PRESENT_LOOKS_JS = """
+const on = source.active;
+for (const pane of [page, header, metrics, status]) {
+  const rest = pane.css_classes.filter((c) => c !== 'presenting');
+  pane.css_classes = on ? [...rest, 'presenting'] : rest;
+}
+"""
+#: The page row's own stylesheet: in presentation the controls are not shown.
+PAGE_CSS = ":host(.presenting) .sub60-sidebar { display: none !important; }"
+
 
 class Explorer(pn.viewable.Viewer):
     """One session of the explorer: settings, work and views of one browser page.
@@ -184,12 +202,16 @@ class Explorer(pn.viewable.Viewer):
         self.material_card = MaterialCard(self.state, css)
         self.measured_card = MeasuredCard(self.state, css, self._post,  # app.measured_view
                                           on_data=self.results.show_measured)
+        # the most used settings in one row above the results, shown in both modes (the
+        # presentation mode hides only the sidebar): app.whatif_bar
+        self.whatif = WhatIfBar(self.state, self.messages, css)
         r = self.results
         top = pn.Row(self.header,
                      pn.Column(self.presentation_toggle, r.progress, r.status,
                                width=280, margin=0),
                      sizing_mode="stretch_width", margin=0)
-        self.main = pn.Column(top, r.metrics, r.breakdown,  # breakdown: app.nonideal_view
+        self.main = pn.Column(top, self.whatif.view, r.metrics,
+                              r.breakdown,  # breakdown: app.nonideal_view
                               self.material_warning, r.notes, self.alert, r.plots,
                               self.material_card.view, self.measured_card.view,
                               self.pin_view.compare.view, sizing_mode="stretch_width",
@@ -206,7 +228,10 @@ class Explorer(pn.viewable.Viewer):
                             stylesheets=css)
         self.tabs.param.watch(self._on_tab, "active")
         self._page = pn.Row(self.sidebar, self.tabs, sizing_mode="stretch_width", margin=0,
-                            css_classes=["sub60-page"])
+                            css_classes=["sub60-page"], stylesheets=[PAGE_CSS])
+        self.presentation_toggle.jscallback(
+            args={"page": self._page, "header": self.header, "metrics": r.metrics,
+                  "status": r.status}, value=PRESENT_LOOKS_JS)
 
     def _watch(self) -> None:
         """One watcher per concern (each called once per batch of changes)."""
@@ -255,6 +280,7 @@ class Explorer(pn.viewable.Viewer):
         self.sweep_view.close()
         self.material_card.close()
         self.measured_card.close()
+        self.whatif.close()
         for owner, watcher in self._watchers:
             try:
                 owner.param.unwatch(watcher)
@@ -288,16 +314,23 @@ class Explorer(pn.viewable.Viewer):
 
     # ------------------------------------------------------------------ watchers
     def _on_presentation(self, event) -> None:
-        """The controls hide (or show) and the header, metrics and status text grow (css
-        class 'presenting'). The figures keep their sizes and fonts: changing them one by
-        one made the browser lay the whole page out for each (18 s a toggle)."""
+        """The controls hide (or show) and the header, metrics and status text grow: the
+        page and those panes take the css class 'presenting' (the browser has done so at
+        the click already: `PRESENT_LOOKS_JS`), in one document update. No figure property
+        changes: the figures stretch over the width they get (`ExplorerFigures.WIDTH_SHARES`),
+        so the browser widens them all in the one reflow of the page without the controls
+        (resizing them one by one from here made the browser lay the page out for each)."""
         on = bool(event.new)
         doc = self._doc
         with hold(doc) if doc is not None else nullcontext():
-            self.sidebar.visible = not on
-            for pane in (self.header, self.results.metrics, self.results.status):
+            for pane in (self._page, self.header, self.results.metrics, self.results.status):
                 pane.css_classes = [c for c in pane.css_classes if c != "presenting"] + (
                     ["presenting"] if on else [])
+
+    @property
+    def presenting(self) -> bool:
+        """Whether the page shows the presentation look (controls hidden)."""
+        return "presenting" in self._page.css_classes
 
     def _on_tab(self, event) -> None:
         if event.new == 1 and not self._sweep_slot.objects:

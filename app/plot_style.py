@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from sub60.app.theme import PALETTE
+from sub60.app.theme import PALETTE, PLOT_FONTS
 
 # The page's names for the palette entries of `app.theme.PALETTE` (no new colours).
 COLOURS: dict[str, str] = {
@@ -50,17 +50,17 @@ def style_figure(fig) -> None:
     """The page's look of one Bokeh figure: toolbar, fonts, colours, grid."""
     fig.toolbar.autohide = True
     fig.toolbar.logo = None
-    fig.title.text_font_size = "13px"
+    fig.title.text_font_size = PLOT_FONTS["title"]
     fig.title.text_color = COLOURS["text"]
     fig.title.text_font_style = "bold"
     fig.background_fill_color = "#ffffff"
     fig.border_fill_color = "#ffffff"
     fig.outline_line_color = COLOURS["frame"]
     for axis in (*fig.xaxis, *fig.yaxis):
-        axis.axis_label_text_font_size = "12px"
+        axis.axis_label_text_font_size = PLOT_FONTS["axis_label"]
         axis.axis_label_text_font_style = "normal"
         axis.axis_label_text_color = COLOURS["text"]
-        axis.major_label_text_font_size = "11px"
+        axis.major_label_text_font_size = PLOT_FONTS["tick"]
     fig.xgrid.grid_line_color = COLOURS["grid"]
     fig.ygrid.grid_line_color = COLOURS["grid"]
 
@@ -98,7 +98,7 @@ def style_legend(fig, location: str = "top_right", side: str | None = None,
         leg.location = location
     leg.click_policy = "hide"
     leg.background_fill_alpha = 0.75
-    leg.label_text_font_size = "11px"
+    leg.label_text_font_size = PLOT_FONTS["legend"]
     if side is None:
         leg.spacing = 0
     leg.padding = 4

@@ -54,6 +54,7 @@ from sub60.app.theme import (
     MAP_PALETTE,
     OUTPUT_COLOURS,
     PIN_COLOURS,
+    PLOT_FONTS,
     format_current,
     format_ratio,
 )
@@ -73,14 +74,23 @@ class ExplorerFigures:
     ``band_source``, ``transfer_sources``, ``pin_legends`` ...).
     """
 
-    # Plot-frame sizes (width, height) [px] for a 1600 x 1000 screen: the band diagram,
-    # J(E) and T(E) share one frame height (common energy axis); the 2D map sits under
-    # the band diagram with the same frame width and left border (common x axis).
-    SIZES = {
-        "band": (462, 345), "spectrum": (110, 345), "transmission": (110, 345),
-        "transfer": (266, 345), "map": (462, 195), "output": (212, 195), "swing": (246, 195),
-    }
-    LEFT_BORDER = {"band": 66, "map": 66, "spectrum": 6, "transmission": 6}
+    #: Plot-frame heights [px]: the band diagram, J(E) and T(E) share one frame height
+    #: (common energy axis). Widths follow the window (`_size_and_fonts`).
+    FRAME_HEIGHTS = {"band": 345, "spectrum": 345, "transmission": 345, "transfer": 345,
+                     "map": 195, "output": 195, "swing": 195}
+    #: Share of its row's width of each figure [-] (rows: band, J(E), T(E), transfer; map,
+    #: output, swing; each row's shares add up to 1132, so the band diagram and the 2D map
+    #: under it get the same width and, with the same borders, the same frame: common x
+    #: axis). At a 1600 px window with the controls shown these are about the figures'
+    #: widths in px.
+    WIDTH_SHARES = {"band": 480, "spectrum": 145, "transmission": 145, "transfer": 362,
+                    "map": 480, "output": 310, "swing": 342}
+    #: Narrowest width of each figure [px]: its legend and axis labels fit. A row narrower
+    #: than its figures' sum (a 1280 px window with the controls shown) wraps its last
+    #: figure onto a line of its own instead of cutting legends.
+    MIN_WIDTHS = {"band": 480, "spectrum": 130, "transmission": 150, "transfer": 380,
+                  "map": 480, "output": 280, "swing": 300}
+    LEFT_BORDER = {"band": 74, "map": 74, "spectrum": 6, "transmission": 6}
     #: Attributes of the builders shown here under the same name (the page and the tests
     #: use them).
     _SHARED = {
@@ -131,7 +141,7 @@ class ExplorerFigures:
         style_legend(self.band, side="below", columns=3)
         style_legend(self.transfer, side="below", columns=2)  # 3 across clip at 1600 px
         style_legend(self.swing, side="below", columns=2)
-        style_legend(self.output, side="below", columns=4)
+        style_legend(self.output, side="below", columns=2)  # 4 across clip below 1600 px
         style_legend(self.transmission, side="below", columns=1)
         self._size_and_fonts()
 
@@ -203,21 +213,33 @@ class ExplorerFigures:
 
     # ------------------------------------------------------------------ sizes
     def _size_and_fonts(self) -> None:
-        """Frame sizes, borders and fonts of every figure. The presentation mode does not
-        change them (`app.layout`): a change of one figure's size makes the browser lay
-        out the whole page again (seconds for the seven figures)."""
+        """Sizes, borders and fonts of every figure. Each figure stretches over its share of
+        its row (`WIDTH_SHARES`, as CSS flex-grow with a zero basis) at a fixed frame
+        height: the browser lays the figures out again when the window or the page changes
+        (the presentation mode hides the controls; no figure property changes then, and
+        one reflow of the page resizes them all)."""
         for key, fig in self.figures.items():
-            fig.frame_width, fig.frame_height = self.SIZES[key]
+            fig.frame_width, fig.width = None, None
+            fig.frame_height = self.FRAME_HEIGHTS[key]
+            fig.sizing_mode = "stretch_width"
+            # CSS only (a model min_width would be summed by Panel into the page's own
+            # minimum width, the hidden sidebar's included, and the page would overflow)
+            fig.styles = {"flex": f"{self.WIDTH_SHARES[key]} 1 0px",
+                          "min-width": f"{self.MIN_WIDTHS[key]}px"}
             fig.min_border_left = self.LEFT_BORDER.get(key, 58)
             fig.min_border_right = 12
-            fig.title.text_font_size = "13px"
+            fig.title.text_font_size = PLOT_FONTS["title"]
             for axis in (*fig.xaxis, *fig.yaxis):
-                axis.axis_label_text_font_size = "12px"
-                axis.major_label_text_font_size = "11px"
+                axis.axis_label_text_font_size = PLOT_FONTS["axis_label"]
+                axis.major_label_text_font_size = PLOT_FONTS["tick"]
             if key in ("spectrum", "transmission"):  # energy labels are on the band diagram
                 fig.yaxis.major_label_text_font_size = "0px"
             for leg in fig.legend:
-                leg.label_text_font_size = "11px"
+                if not str(leg.name or "").startswith("pin_"):  # pinned: a small inset
+                    leg.label_text_font_size = PLOT_FONTS["legend"]
         for lab in (*self.band_plot.labels, *self.spectrum_plots.labels,
-                    self.swing_limit_label):
-            lab.text_font_size = "11px"
+                    self.swing_limit_label, self.transfer_plot.ioff_label):
+            lab.text_font_size = PLOT_FONTS["label"]
+        bar = self.map_plot.colour_bar
+        bar.title_text_font_size = PLOT_FONTS["label"]
+        bar.major_label_text_font_size = PLOT_FONTS["small"]

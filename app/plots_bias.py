@@ -250,7 +250,7 @@ class SpectrumPlots:
         self.spectrum_source = ColumnDataSource({"energy_eV": [], "j": [], "t": []},
                                                 name="spectrum_source")
         s = figure(name="spectrum_plot", title="Spectral current", y_range=energy_range,
-                   x_axis_label="J(E) (µA/µm per eV)", tools=TOOLS)
+                   x_axis_label="J(E) (µA/µm/eV)", tools=TOOLS)
         s.harea(x1=0, x2="j", y="energy_eV", source=self.spectrum_source,
                 fill_color=COLOURS["tfet"], fill_alpha=0.18)
         jr = s.line("j", "energy_eV", source=self.spectrum_source, line_color=COLOURS["tfet"],
@@ -290,7 +290,8 @@ class SpectrumPlots:
             fig.yaxis.major_tick_line_color = None
             if fig is s:
                 fig.xaxis.ticker.desired_num_ticks = 2
-                fig.xaxis.formatter = BasicTickFormatter(precision=0, power_limit_low=-2,
+                # digits as the ticks need them (0.5 was drawn as "0" with none)
+                fig.xaxis.formatter = BasicTickFormatter(power_limit_low=-2,
                                                          power_limit_high=3)
             for _ in range(2):
                 span = Span(location=0, dimension="width", line_color=COLOURS["fermi"],
@@ -366,7 +367,7 @@ class MapPlot:
         self.colour_mapper = LinearColorMapper(palette=list(MAP_PALETTE), low=-1, high=1)
         # the bulk edge (the band diagram draws the confined subbands): said in the title
         f = figure(name="map_plot",
-                   title="Bulk conduction-band edge over the cross-section (no confinement shift)",
+                   title="Bulk Ec over the cross-section (no confinement shift)",
                    x_range=x_range, y_range=Range1d(0, 11),
                    x_axis_label="x (nm)", y_axis_label="y (nm)", tools=TOOLS)
         self.map_source = ColumnDataSource({"image": [], "x": [], "y": [], "dw": [], "dh": []},
@@ -375,9 +376,13 @@ class MapPlot:
                       color_mapper=self.colour_mapper)
         f.add_tools(HoverTool(renderers=[img], tooltips=[
             ("x", "$x{0.0} nm"), ("y", "$y{0.0} nm"), ("bulk Ec", "@image{0.000} eV")]))
-        bar = ColorBar(color_mapper=self.colour_mapper, title="bulk Ec (eV)", width=10,
-                       title_text_font_size="11px", major_label_text_font_size="10px")
-        f.add_layout(bar, "right")
+        # under the map (across it, not beside it): the map then has the band diagram's
+        # borders, so with the same width both frames line up on their common x axis
+        bar = ColorBar(color_mapper=self.colour_mapper, title="bulk Ec (eV)", height=10,
+                       orientation="horizontal", title_text_font_size="11px",
+                       major_label_text_font_size="10px", name="map_colour_bar")
+        f.add_layout(bar, "below")
+        self.colour_bar = bar
         self.body_spans = [Span(location=0, dimension="width", line_color="white",
                                 line_dash="dashed", line_width=1, line_alpha=0.8)
                            for _ in range(2)]

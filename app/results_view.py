@@ -63,13 +63,19 @@ class ResultsView:
         self._stale = True
         self.breakdown = breakdown_pane(css)  # off-state current by mechanism
         self._breakdown: dict | None = None
-        self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 2))
+        # the figures stretch over their rows' widths (`ExplorerFigures.WIDTH_SHARES`); the
+        # map's wider right margin gives both rows the same margins in all (16 px), so the
+        # band diagram and the map under it get the same width
+        self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 6, 2, 2) if k == "map" else (2, 2))
                            for k, fig in self.figures.figures.items()}
         p = self.plot_panes
         self.plots = pn.Column(
-            pn.Row(p["band"], p["spectrum"], p["transmission"], p["transfer"]),
-            pn.Row(p["map"], p["output"], p["swing"]),
-            margin=(0, 4))
+            pn.Row(p["band"], p["spectrum"], p["transmission"], p["transfer"],
+                   sizing_mode="stretch_width", margin=0, styles={"flex-wrap": "wrap"}),
+            pn.Row(p["map"], p["output"], p["swing"], sizing_mode="stretch_width", margin=0,
+                   styles={"flex-wrap": "wrap"}),
+            sizing_mode="stretch_width", margin=(0, 4), css_classes=["sub60-plots"],
+            stylesheets=css)
         self.show_metrics(stale=True)
 
     # ------------------------------------------------------------------ texts

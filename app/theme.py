@@ -46,6 +46,15 @@ PALETTE: dict[str, str | tuple[str, ...]] = {
     "measured": "#1b1b1b",
 }
 
+#: Font sizes of the live page's figures [CSS px], one set for the desk and the projector:
+#: the figures widen with the window (and when the controls are hidden), their text is
+#: drawn at these sizes (engineering choice, no source: 14 px axis labels stay readable
+#: from the back of a meeting room on a 1920 px projector image).
+PLOT_FONTS: dict[str, str] = {
+    "title": "15px", "axis_label": "14px", "tick": "12.5px", "legend": "13px",
+    "label": "12.5px", "small": "11.5px",
+}
+
 #: One colour per pinned-design slot, the same on the page and in an exported figure.
 PIN_COLOURS: tuple[str, ...] = tuple(PALETTE["pinned"])
 #: Output curves on the page, one per slot, lowest gate voltage lightest.

@@ -1,6 +1,7 @@
 """Latency benchmark of the served explorer, measured in the browser (a script, not a test).
 
-    python tests/bench_app.py [--moves 20] [--designs 10] [--url http://127.0.0.1:PORT/]
+    python tests/bench_app.py [--moves 20] [--designs 10] [--toggles 6] [--opens 4]
+                              [--port PORT | --url http://127.0.0.1:PORT/]
 
 Without --url it serves the app itself on a free 127.0.0.1 port (subprocess, one BLAS
 thread) and stops it at the end. In headless Chromium it then
@@ -13,8 +14,10 @@ thread) and stops it at the end. In headless Chromium it then
    tunnel FET's transfer curve and both complete transfer curves with their metrics
    have arrived.
 
-3. clicks "Presentation mode" on and off and times, from just before the click, until every plot
-   has its new size and fonts and the next animation frame is drawn;
+3. clicks "Presentation mode" on and off and times, from just before the click, until the
+   controls are hidden (shown), the header has its presentation class, and every figure's
+   drawn width has stayed the same over three animation frames (the time is that of the
+   first of those frames);
 4. opens the page afresh (new browser page, new session) and times until the first
    band diagram, both transfer curves with their metrics, and the output curves are
    complete (`open_app`), with the server's CPU seconds per open.
@@ -53,10 +56,23 @@ window.sub60bench = {
       step();
     });
   },
-  async looks(on) {                  // resolves at the frame after the toggle's looks
-    await this.poll(() => sub60.byClass('sub60-sidebar').visible === !on &&
-      sub60.byClass('sub60-header').css_classes.includes('presenting') === on);
-    return this.frame();
+  widths() {                         // every live figure's drawn width [px]
+    return ['band_plot', 'spectrum_plot', 'transmission_plot', 'transfer_plot', 'map_plot',
+            'output_plot', 'swing_plot'].map(n => Bokeh.index.find_one(sub60.model(n)).bbox.width);
+  },
+  async looks(on) {                  // resolves at the first frame of the toggle's settled
+    // looks: controls hidden or shown, header class, and every figure's width unchanged
+    // over three frames (figures that follow the window are re-laid out by the browser)
+    await this.poll(() => (on ? sub60.presenting() : sub60.desk()));
+    let t = await this.frame();
+    let last = JSON.stringify(this.widths());
+    let same = 0;
+    while (same < 3) {
+      const t2 = await this.frame();
+      const now = JSON.stringify(this.widths());
+      if (now === last) { same += 1; } else { same = 0; t = t2; last = now; }
+    }
+    return t;
   },
   frame() { return new Promise(r => requestAnimationFrame(() => r(performance.now()))); },
   release(cls, v) {                  // what a slider release sends
@@ -92,6 +108,8 @@ window.sub60bench = {
 
 
 def _stats(samples: list[float]) -> str:
+    if not samples:
+        return "not measured"
     s = sorted(samples)
     p95 = s[min(len(s) - 1, max(0, round(0.95 * (len(s) - 1))))]
     return (f"median {statistics.median(s):7.1f} ms   p95 {p95:7.1f} ms   "
@@ -122,7 +140,8 @@ def run(url: str, moves: int, designs: int, toggles: int = 6, opens: int = 4,
             t_data, t_frame = page.evaluate("(v) => sub60bench.bandMove(v)", vg)
             band.append(t_data)
             band_frame.append(t_frame)
-        page.wait_for_function("() => sub60.allDone(41)", timeout=120_000)
+        if moves:
+            page.wait_for_function("() => sub60.allDone(41)", timeout=120_000)
         d_band, d_tfet, d_all = [], [], []
         for k in range(designs):
             t_nm = round(7.5 + 0.5 * k, 3)
@@ -171,11 +190,12 @@ def main() -> int:
     ap.add_argument("--designs", type=int, default=10, help="design changes [-]")
     ap.add_argument("--toggles", type=int, default=6, help="presentation toggles [-]")
     ap.add_argument("--opens", type=int, default=4, help="fresh page opens [-]")
+    ap.add_argument("--port", type=int, default=0, help="port of the served app (default: free)")
     a = ap.parse_args()
     if a.url:
         run(a.url, a.moves, a.designs, a.toggles, a.opens)
         return 0
-    port = free_port()
+    port = a.port or free_port()
     proc = start_server(port)
     try:
         run(f"http://127.0.0.1:{port}/", a.moves, a.designs, a.toggles, a.opens, proc.pid)

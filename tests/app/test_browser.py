@@ -117,10 +117,8 @@ def test_body_thickness_typed_updates_band_and_metrics_as_physics(browser, app_u
 def test_presentation_mode_and_screenshot(browser, app_url, tmp_path):
     """The button and the P key hide the controls and enlarge the header and metrics;
     the figures keep their sizes (the page is not laid out figure by figure)."""
-    presenting = ("() => sub60.byClass('sub60-sidebar').visible === false && "
-                  "sub60.byClass('sub60-header').css_classes.includes('presenting')")
-    desk = ("() => sub60.byClass('sub60-sidebar').visible !== false && "
-            "!sub60.byClass('sub60-header').css_classes.includes('presenting')")
+    presenting = "() => sub60.presenting()"
+    desk = "() => sub60.desk()"
     page, _, errors = open_app(browser, app_url)
     try:
         frame = page.evaluate("() => sub60.model('band_plot').frame_width")

@@ -42,9 +42,7 @@ def test_legends_cover_no_data(browser, app_url):
     try:
         _assert_no_legend_in_frames(page)
         page.get_by_role("button", name="Presentation mode").click()
-        page.wait_for_function("() => sub60.byClass('sub60-sidebar').visible === false && "
-                               "sub60.byClass('sub60-header').css_classes.includes("
-                               "'presenting')", timeout=60_000)
+        page.wait_for_function("() => sub60.presenting()", timeout=60_000)
         _assert_no_legend_in_frames(page)
         assert not errors, errors
     finally:

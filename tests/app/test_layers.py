@@ -50,7 +50,7 @@ LAYERS: dict[str, int] = {
     "plots_curves": VIEWS, "plot_style": VIEWS, "metrics_strip": VIEWS, "figures": VIEWS,
     "figures_page": VIEWS, "snapshot_bundle": VIEWS, "session_files": VIEWS,
     "sweep_view": VIEWS, "sweep_plots": VIEWS,
-    "material_card": VIEWS, "measured_view": VIEWS,
+    "material_card": VIEWS, "measured_view": VIEWS, "whatif_bar": VIEWS,
     # entry points
     "cli": ENTRY, "cli_common": ENTRY, "snapshot_cli": ENTRY, "sweep_cli": ENTRY, "server": ENTRY,
     "fit_cli": ENTRY,  # measured curves and fits

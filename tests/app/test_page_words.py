@@ -69,7 +69,7 @@ def test_demo_note_goes_when_the_design_is_changed_by_hand():
 
 def test_map_is_labelled_as_the_bulk_edge():
     e = _fresh()
-    assert e.figures.map.title.text.startswith("Bulk conduction-band edge")
+    assert e.figures.map.title.text.startswith("Bulk Ec ")  # the bulk conduction-band edge
     assert "no confinement shift" in e.figures.map.title.text
-    bars = [r for r in e.figures.map.right if type(r).__name__ == "ColorBar"]
+    bars = [r for r in e.figures.map.below if type(r).__name__ == "ColorBar"]
     assert bars and bars[0].title == "bulk Ec (eV)"

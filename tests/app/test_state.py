@@ -233,13 +233,13 @@ def test_presentation_mode_hides_controls_and_leaves_the_figures_alone(explorer)
     before = {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
               for k, fig in f.figures.items()}
     e.state.presentation = True
-    assert not e.sidebar.visible
+    assert e.presenting  # the page's class hides the sidebar (its stylesheet)
     assert all("presenting" in p.css_classes
                for p in (e.header, e.results.metrics, e.results.status))
     assert {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
             for k, fig in f.figures.items()} == before
     e.state.presentation = False
-    assert e.sidebar.visible and "presenting" not in e.header.css_classes
+    assert not e.presenting and "presenting" not in e.header.css_classes
 
 
 def test_caution_and_metrics_are_in_the_page(explorer):
@@ -331,7 +331,8 @@ def test_sessions_share_no_bokeh_model():
     assert not shared, sorted(type(roots[0][i]).__name__ for i in shared)
     formats = [{m.id for m in r.values() if type(m).__name__ == "CustomJSTickFormatter"}
                for r in roots]
-    assert len(formats[0]) == len(formats[1]) == 4  # Ioff and three dopings, one per page
+    # Ioff and three dopings in the sidebar, the what-if bar's doping entry: one per page
+    assert len(formats[0]) == len(formats[1]) == 5
 
 
 def test_design_message_goes_when_the_combination_is_fixed():
