@@ -22,10 +22,13 @@ from sub60.app.compare_panes import SnapshotControls
 from sub60.app.messages import (
     MessageBoard,
     eot_html,
+    refused_power_message,
     refused_sweep_message,
     refused_value_message,
 )
 from sub60.app.nonideal_view import NONIDEAL_STEPS, nonideal_card
+from sub60.app.number_rules import InputError, parse_number
+from sub60.app.sharing import format_number
 from sub60.app.state import DESIGN_PARAMETERS, ExplorerState
 
 SIDEBAR_WIDTH = 330
@@ -53,6 +56,11 @@ EDITABLE_STEPS: tuple[tuple[str, float], ...] = (
     ("source_composition_x", 0.01), ("heterointerface_nm", 0.5))
 EDITABLE_STEPS += NONIDEAL_STEPS  # the non-idealities card (app.nonideal_view)
 DOPINGS = ("source_doping_log10_cm3", "channel_doping_log10_cm3", "drain_doping_log10_cm3")
+#: Log sliders with an entry box for the plain number (4e19, 1e-3): setting, entry unit.
+POWER_ENTRIES: tuple[tuple[str, str], ...] = tuple(
+    (name, "cm⁻³") for name in DOPINGS) + (("ioff_log10_uA_per_um", "µA/µm"),)
+#: Width of those entry boxes [px] (the slider beside takes the rest of the row).
+POWER_ENTRY_WIDTH = 84
 #: Widget name -> derived state parameter that enables it.
 ENABLE_RULES = {"oxide_permittivity": "custom_permittivity_enabled",
                 "buried_oxide_thickness_nm": "buried_oxide_enabled",
@@ -211,6 +219,73 @@ class _CheckedRangeSlider(pn.widgets.EditableRangeSlider):
             self.on_accepted()
 
 
+class PowerEntry:
+    """An entry box beside a log slider: the setting as a plain number in its unit
+    (``4e19`` cm⁻³, ``1e-3`` µA/µm), typed and confirmed with Enter, checked here by the
+    shared number rules (`app.number_rules`). A value outside the slider's range or not a
+    number is refused with a message naming the control and its range (``on_refused``),
+    the box shows the kept value again and nothing is recomputed; an accepted value sets
+    the setting exactly (not rounded to the slider's 0.05-decade steps) and calls
+    ``on_accepted``. The box follows the setting when the slider or a file moves it."""
+
+    def __init__(self, state: ExplorerState, name: str, unit: str,
+                 on_refused: Callable[[str], None] | None = None,
+                 on_accepted: Callable[[], None] | None = None) -> None:
+        self.state, self.name, self.unit = state, name, unit
+        self.on_refused, self.on_accepted = on_refused, on_accepted
+        self._restoring = False
+        self.box = pn.widgets.TextInput(name=unit, value=self.text(), width=POWER_ENTRY_WIDTH,
+                                        margin=(4, 10, 4, 0), css_classes=[f"entry-{name}"])
+        self.box.param.watch(self._typed, "value")
+        # Enter on an unchanged box (the kept value typed again after a refusal) sends no
+        # new value; it is taken as confirming that value
+        self.box.param.watch(self._entered, "enter_pressed")
+        state.param.watch(self._follow, name)
+
+    def text(self) -> str:
+        """The setting as entry text (4 significant digits, as in the page address)."""
+        return format_number(10.0 ** getattr(self.state, self.name), 4)
+
+    def _show(self, text: str) -> None:
+        self._restoring = True
+        try:
+            self.box.value = text
+        finally:
+            self._restoring = False
+
+    def _follow(self, _event: Any) -> None:
+        self._show(self.text())
+
+    def _entered(self, _event: Any) -> None:
+        if self.box.value_input == self.box.value:
+            self._take(self.box.value)
+
+    def _typed(self, event: Any) -> None:
+        if not self._restoring:
+            self._take(event.new)
+
+    def _take(self, typed: Any) -> None:
+        lo, hi = self.state.param[self.name].bounds
+        low, high = 10.0 ** lo, 10.0 ** hi
+        label = self.state.param[self.name].label.split(" (")[0] + f" ({self.unit})"
+        try:  # the ends as shown in the message are allowed (rounding of 10**log10)
+            value = parse_number(str(typed), label, low * (1 - 1e-9), high * (1 + 1e-9))
+        except InputError:
+            kept = self.text()
+            self._show(kept)
+            if self.on_refused is not None:
+                self.on_refused(refused_power_message(
+                    label, str(typed), format_number(low, 3), format_number(high, 3),
+                    self.unit, kept))
+            return
+        new = min(max(math.log10(value), lo), hi)
+        if new != getattr(self.state, self.name):
+            setattr(self.state, self.name, new)
+        self._follow(None)
+        if self.on_accepted is not None:
+            self.on_accepted()
+
+
 def log_cm3_formatter() -> CustomJSTickFormatter:
     """A new formatter of doping sliders (log10 cm^-3 shown as 4.0e19)."""
     return CustomJSTickFormatter(code=LOG_CM3_JS)
@@ -261,6 +336,11 @@ class Controls:
         self.messages = messages
         self._css = list(css)
         self.widgets = self._make_widgets()
+        on_refused = (lambda text: messages.set("input", text)) if messages else None
+        on_accepted = (lambda: messages.clear("input")) if messages else None
+        #: Entry boxes of the dopings and the Ioff target, beside their log sliders.
+        self.entries = {name: PowerEntry(state, name, unit, on_refused, on_accepted)
+                        for name, unit in POWER_ENTRIES}
         if messages is not None:
             for name in [n for n, _ in EDITABLE_STEPS] + ["vg_sweep_V"]:
                 self.widgets[name].on_refused = lambda text: messages.set("input", text)
@@ -345,9 +425,10 @@ class Controls:
                                                   css_classes=["ctl-vg_points"])
         log_sliders = [("ioff_log10_uA_per_um", log_current_formatter())]
         log_sliders += [(name, log_cm3_formatter()) for name in DOPINGS]
-        for name, formatter in log_sliders:
+        for name, formatter in log_sliders:  # an entry box beside each (`PowerEntry`)
             w[name] = _NowFloatSlider.from_param(s[name], throttled=True, format=formatter,
-                                                 width=WIDGET_WIDTH, margin=(4, 10),
+                                                 width=WIDGET_WIDTH - POWER_ENTRY_WIDTH - 10,
+                                                 margin=(4, 10),
                                                  css_classes=[f"ctl-{name}"])
         for name in ("material", "source_material", "oxide"):
             w[name] = pn.widgets.Select.from_param(s[name], width=WIDGET_WIDTH,
@@ -369,8 +450,13 @@ class Controls:
                             stylesheets=self._css, margin=(4, 10, 0, 10))
         return pn.Column(head, self.widgets[name], margin=0)
 
+    def _with_entry(self, name: str) -> pn.Row:
+        """A log slider and its entry box in one row."""
+        return pn.Row(self.widgets[name], self.entries[name].box, margin=0)
+
     def _make_cards(self, snapshots: SnapshotControls) -> list[pn.Card]:
         w = self.widgets
+        entry = self._with_entry
 
         def card(title: str, *items, collapsed: bool = False) -> pn.Card:
             return folded_card(title, items, collapsed)
@@ -395,13 +481,14 @@ class Controls:
             card("Demo designs and snapshots", *snapshots.items),
             card("Bias", w["vg_V"], w["vd_V"], w["vg_sweep_V"], w["vg_points"], self.sweep_step,
                  w["vdd_V"],
-                 w["ioff_log10_uA_per_um"], ioff_note),
+                 entry("ioff_log10_uA_per_um"), ioff_note),
             card("Structure", w["body_thickness_nm"], w["gate_length_nm"],
                  w["source_length_nm"], w["drain_length_nm"], self._labelled("gate_layout"),
                  w["gate_source_offset_nm"], w["buried_oxide_thickness_nm"]),
-            card("Doping", self._labelled("source_type"), w["source_doping_log10_cm3"],
-                 self._labelled("channel_dopant"), w["channel_doping_log10_cm3"],
-                 w["drain_doping_log10_cm3"], w["doping_gradient_nm_per_dec"], collapsed=True),
+            card("Doping", self._labelled("source_type"), entry("source_doping_log10_cm3"),
+                 self._labelled("channel_dopant"), entry("channel_doping_log10_cm3"),
+                 entry("drain_doping_log10_cm3"), w["doping_gradient_nm_per_dec"],
+                 collapsed=True),
             card("Gate stack", w["oxide"], w["oxide_thickness_nm"], self.eot,
                  w["oxide_permittivity"], w["gate_workfunction_eV"], collapsed=True),
             card("Material and temperature", w["material"], w["composition_x"],

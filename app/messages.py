@@ -72,6 +72,18 @@ def refused_value_message(label: str, value: float | None, low: float | None,
             f"{kept_text}")
 
 
+def refused_power_message(label: str, text: str, low: str, high: str, unit: str,
+                          kept: str) -> str:
+    """The message of a typed doping or current that was refused: the control, the text
+    typed, the allowed range (as written in the entry, e.g. '1e18' to '1e21') and the value
+    kept (the plots are not recomputed)."""
+    typed = ("An empty entry" if not text.strip() else
+             f"{html_escape(text.strip()[:40])}")
+    return (f"**{html_escape(label)}**: {typed} is not allowed; allowed is a number "
+            f"from {low} to {high} {unit} (e.g. 4e19). The last valid value, {kept} {unit}, "
+            "is kept.")
+
+
 def refused_sweep_message(label: str, end: str, value: float | None, low: float,
                           high: float, kept: tuple[float, float]) -> str:
     """The message of a typed sweep end that was refused ('first' or 'last' ``end``): the
