@@ -12,7 +12,21 @@ from collections.abc import Sequence
 
 import numpy as np
 from bokeh.core.properties import value
-from bokeh.models import ColumnDataSource, HoverTool, Label, Legend, LegendItem, Range1d, Span
+from bokeh.models import (
+    BasicTicker,
+    BasicTickFormatter,
+    ColumnDataSource,
+    HoverTool,
+    Label,
+    Legend,
+    LegendItem,
+    LinearScale,
+    LogScale,
+    LogTicker,
+    LogTickFormatter,
+    Range1d,
+    Span,
+)
 from bokeh.plotting import figure
 
 from sub60.app.plot_style import COLOURS, ID_FLOOR_UA_PER_UM, TOOLS, positive_or_nan
@@ -76,6 +90,30 @@ class TransferPlot:
         #: other sources with an "id" column the current axis makes room for (measured)
         self.extra_sources: list[ColumnDataSource] = []
         self.figure = f
+        self.limit_line = lim
+        self.linear = False  # the current axis: log (default) or linear
+
+    def set_linear(self, linear: bool) -> None:
+        """The current axis linear (from 0, on-currents readable) or logarithmic (from the
+        lowest drawn current). The thermionic-limit slope is a line only on the log axis,
+        so it is hidden on the linear one."""
+        if linear == self.linear:
+            return
+        self.linear = linear
+        f = self.figure
+        axis = f.yaxis[0]
+        if linear:
+            f.y_scale = LinearScale()
+            axis.ticker = BasicTicker()
+            axis.formatter = BasicTickFormatter(precision=1, power_limit_low=-3)
+        else:
+            f.y_scale = LogScale()
+            axis.ticker = LogTicker()
+            axis.formatter = LogTickFormatter()
+        f.y_range.only_visible = linear
+        self.limit_line.visible = not linear
+        self.limit_item.visible = not linear
+        self._floor_axis()
 
     def show(self, key: str, vg: np.ndarray, ids: np.ndarray, btbt: np.ndarray | None,
              therm: np.ndarray | None, ss: np.ndarray) -> None:
@@ -89,7 +127,11 @@ class TransferPlot:
 
     def _floor_axis(self) -> None:
         """The current axis starts at the lowest drawn current (model curves and the
-        measured points), not below `ID_FLOOR_UA_PER_UM` (its end follows the data)."""
+        measured points), not below `ID_FLOOR_UA_PER_UM` (its end follows the data); a
+        linear axis starts at 0."""
+        if self.linear:
+            self.figure.y_range.start = 0.0
+            return
         sources = [*self.transfer_sources.values(), *self.extra_sources]
         lows = [np.nanmin(v) for src in sources
                 if (v := np.asarray(src.data["id"], float)).size and np.isfinite(v).any()]

@@ -69,9 +69,22 @@ class ResultsView:
         self.plot_panes = {k: pn.pane.Bokeh(fig, margin=(2, 6, 2, 2) if k == "map" else (2, 2))
                            for k, fig in self.figures.figures.items()}
         p = self.plot_panes
+        # the transfer plot's current axis: log (default) or linear
+        self.transfer_axis = pn.widgets.RadioButtonGroup(
+            name="Current axis", options={"log current axis": "log",
+                                          "linear current axis": "linear"},
+            value="log", color="light", width=250, height=28, margin=(0, 4, 2, 66),
+            css_classes=["transfer-axis"])
+        self.transfer_axis.param.watch(
+            lambda e: self.figures.transfer_plot.set_linear(e.new == "linear"), "value")
         self.plots = pn.Column(
-            pn.Row(p["band"], p["spectrum"], p["transmission"], p["transfer"],
+            pn.Row(p["band"], p["spectrum"], p["transmission"],
+                   p["transfer"],
                    sizing_mode="stretch_width", margin=0, styles={"flex-wrap": "wrap"}),
+            # the plots' own options, in one line between the rows (the rows' figures
+            # stretch over their widths: nothing is stacked under a single figure)
+            pn.Row(pn.layout.HSpacer(), self.transfer_axis, sizing_mode="stretch_width",
+                   margin=0, css_classes=["plot-options"]),
             pn.Row(p["map"], p["output"], p["swing"], sizing_mode="stretch_width", margin=0,
                    styles={"flex-wrap": "wrap"}),
             sizing_mode="stretch_width", margin=(0, 4), css_classes=["sub60-plots"],
