@@ -189,8 +189,37 @@ class ComparisonPanel:
                                if text else "")
 
 
+#: Browser side of the "Copy link" button: the page's address (kept equal to the
+#: present settings by the page, `app.sharing.updated_search`) to the clipboard, by the
+#: Clipboard API where the page is a secure context (https, 127.0.0.1) and by a selected
+#: text box otherwise; the note under the button says what happened.
+COPY_LINK_JS = """
+const url = window.location.href;
+const say = (text, cls) => { note.text = '<div class="note ' + cls + '">' + text + '</div>'; };
+const fallback = () => {
+  const t = document.createElement('textarea');
+  t.value = url; t.setAttribute('readonly', ''); t.style.position = 'fixed';
+  t.style.opacity = '0'; document.body.appendChild(t); t.select();
+  let ok = false;
+  try { ok = document.execCommand('copy'); } catch (e) { ok = false; }
+  document.body.removeChild(t);
+  if (ok) { say('Link copied. ' + LEFT_OUT, 'copy-done'); }
+  else { say('Copying is blocked here: copy the address bar instead. ' + LEFT_OUT, 'copy-failed'); }
+};
+window.sub60CopiedLink = url;
+if (navigator.clipboard && window.isSecureContext) {
+  navigator.clipboard.writeText(url).then(() => say('Link copied. ' + LEFT_OUT, 'copy-done'),
+                                          fallback);
+} else { fallback(); }
+"""
+#: What the link leaves out (said under the button before and after a copy).
+LINK_LEAVES_OUT = ("It holds the design, bias, sweep and Ion/Ioff settings; pinned "
+                   "designs are not in it (a snapshot keeps them).")
+
+
 class SnapshotControls:
-    """The sidebar card: demo designs, snapshot download and snapshot upload."""
+    """The sidebar card: demo designs, the copy-link button, snapshot download and
+    snapshot upload."""
 
     def __init__(self, css: list[str], width: int, presets: dict[str, str],
                  download_callback: Callable) -> None:
@@ -198,6 +227,14 @@ class SnapshotControls:
         options.update({label: name for name, label in presets.items()})
         self.presets = pn.widgets.Select(label="Load a demo design", options=options, value="",
                                          width=width, margin=(4, 10), css_classes=["ctl-preset"])
+        self.copy_link = pn.widgets.Button(label="Copy link to this design", width=width,
+                                           margin=(8, 10, 2, 10), button_type="default",
+                                           css_classes=["copy-link"])
+        self.link_note = pn.pane.HTML(f'<div class="note">{LINK_LEAVES_OUT}</div>',
+                                      stylesheets=css, margin=(0, 12), css_classes=["link-note"])
+        self.copy_link.js_on_click(
+            args={"note": self.link_note},
+            code=COPY_LINK_JS.replace("LEFT_OUT", repr(LINK_LEAVES_OUT)))
         self.download = pn.widgets.FileDownload(
             callback=download_callback, filename="sub60-snapshot.zip",
             label="Download snapshot (.zip)", width=width, margin=(8, 10, 2, 10),
@@ -215,7 +252,8 @@ class SnapshotControls:
         install_upload_guard()
         self.report = pn.pane.HTML("", stylesheets=css, margin=(2, 12, 6, 12), visible=False,
                                    css_classes=["snapshot-report"])
-        self.items = (self.presets, self.download, self.export_note, self.upload_label,
+        self.items = (self.presets, self.copy_link, self.link_note, self.download,
+                      self.export_note, self.upload_label,
                       self.upload, self.report)
 
     def show_report(self, kind: str, heading: str, lines: Sequence[str] = (),

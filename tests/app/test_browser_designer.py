@@ -1,0 +1,145 @@
+"""Browser tests of what a designer reaches for: number entries of the dopings and the
+Ioff target, the transfer plot's linear axis, the copy-link button, the reference band
+diagram, the Ion–Ioff trade-off and the pinned designs on the swing plot.
+
+Allowed ranges are the design's own field ranges (`physics.FIELD_RANGES`) and the
+state's bounds; expected values come from the physics package or the page address.
+"""
+
+from __future__ import annotations
+
+import math
+from urllib.parse import parse_qs, urlsplit
+
+import pytest
+from playwright.sync_api import expect
+
+from sub60.physics import FIELD_RANGES
+from tests.app.conftest import open_app, open_cards
+
+pytestmark = pytest.mark.browser
+
+ERROR_TEXT = "() => { const a = sub60.byClass('sub60-error'); return a.visible ? a.text : ''; }"
+
+
+def _enter(page, css: str, text: str) -> None:
+    """Type into a box as a user does and confirm with Enter."""
+    entry = page.locator(f".{css} input")
+    entry.click()
+    entry.press("Control+a")
+    entry.type(text)
+    entry.press("Enter")
+
+
+def _query(page) -> dict[str, str]:
+    return {k: v[0] for k, v in parse_qs(urlsplit(page.url).query).items()}
+
+
+def test_doping_and_ioff_entries_take_typed_numbers(browser, app_url):
+    page, _, errors = open_app(browser, app_url)
+    try:
+        open_cards(page)
+        # 4.2e19 is not on the slider's 0.05-decade steps (10**19.6 = 3.98e19, 10**19.65)
+        _enter(page, "entry-source_doping_log10_cm3", "4.2e19")
+        page.wait_for_function(
+            "() => new URLSearchParams(location.search).get('src_cm3') === '4.2e19'",
+            timeout=30_000)
+        slider = page.evaluate("() => sub60.sliderOf('ctl-source_doping_log10_cm3').value")
+        assert slider == pytest.approx(math.log10(4.2e19), abs=1e-9)
+        _enter(page, "entry-ioff_log10_uA_per_um", "2e-4")
+        page.wait_for_function(
+            "() => new URLSearchParams(location.search).get('ioff_uA_um') === '0.0002'",
+            timeout=30_000)
+        # the Ioff target line on the transfer plot follows (2e-4 uA/um)
+        page.wait_for_function("() => sub60.doc()._all_models && [...sub60.doc()."
+                               "_all_models.values()].some(m => m.type === 'Span' && "
+                               "Math.abs(m.location - 2e-4) < 1e-12)", timeout=60_000)
+        # a slider move shows in the box
+        page.evaluate("() => { const s = sub60.sliderOf('ctl-drain_doping_log10_cm3');"
+                      " s.value = 19; s.value_throttled = 19; }")
+        expect(page.locator(".entry-drain_doping_log10_cm3 input")).to_have_value(
+            "1e19", timeout=20_000)
+        assert not errors, errors
+    finally:
+        page.close()
+
+
+@pytest.mark.parametrize(("css", "text", "label", "low", "high"), [
+    ("entry-source_doping_log10_cm3", "5e22", "Source doping (cm⁻³)",
+     FIELD_RANGES["source_doping_cm3"].low, FIELD_RANGES["source_doping_cm3"].high),
+    ("entry-ioff_log10_uA_per_um", "abc", "Ioff target (µA/µm)", 1e-8, 1.0),
+])
+def test_typed_doping_or_ioff_out_of_range_is_refused(browser, app_url, css, text, label,
+                                                      low, high):
+    page, _, errors = open_app(browser, app_url)
+    try:
+        open_cards(page)
+        before = _query(page)
+        box_before = page.locator(f".{css} input").input_value()
+        _enter(page, css, text)
+        page.wait_for_function(f"() => ({ERROR_TEXT})().includes('not allowed')",
+                               timeout=20_000)
+        message = page.evaluate(ERROR_TEXT)
+        assert label in message, message
+        low_t = f"{low:g}".replace("e+", "e").replace("e-0", "e-").replace("e0", "e")
+        high_t = f"{high:g}".replace("e+", "e").replace("e-0", "e-").replace("e0", "e")
+        assert f"from {low_t} to {high_t}" in message, message
+        expect(page.locator(f".{css} input")).to_have_value(box_before, timeout=10_000)
+        assert _query(page) == before
+        _enter(page, css, box_before)  # a valid value takes the message away
+        page.wait_for_function(f"() => ({ERROR_TEXT})() === ''", timeout=20_000)
+        assert not errors, errors
+    finally:
+        page.close()
+
+
+def test_transfer_current_axis_switches_to_linear_and_back(browser, app_url):
+    page, _, errors = open_app(browser, app_url)
+    try:
+        scale = "() => sub60.model('transfer_plot').y_scale.type"
+        assert page.evaluate(scale) == "LogScale"
+        page.locator(".transfer-axis button", has_text="linear current axis").click()
+        # a linear axis starts at zero; the thermionic-limit slope (a line only on a log
+        # axis) is hidden
+        page.wait_for_function(f"() => ({scale})() === 'LinearScale' && "
+                               "sub60.model('transfer_plot').y_range.start === 0 && "
+                               "!sub60.model('limit_line').visible", timeout=20_000)
+        page.locator(".transfer-axis button", has_text="log current axis").click()
+        page.wait_for_function(f"() => ({scale})() === 'LogScale' && "
+                               "sub60.model('transfer_plot').y_range.start > 0 && "
+                               "sub60.model('limit_line').visible", timeout=20_000)
+        assert not errors, errors
+    finally:
+        page.close()
+
+
+class _Context:
+    """A browser context as `open_app` uses a browser (``new_page(viewport=...)``)."""
+
+    def __init__(self, context) -> None:
+        self.context = context
+
+    def new_page(self, viewport):
+        page = self.context.new_page()
+        page.set_viewport_size(viewport)
+        return page
+
+
+def test_copy_link_writes_the_page_link_and_says_pins_are_left_out(browser, app_url):
+    context = browser.new_context(permissions=["clipboard-read", "clipboard-write"])
+    try:
+        page, _, errors = open_app(_Context(context), app_url)
+        note = page.locator(".link-note")
+        expect(note).to_contain_text("pinned designs are not in it")
+        _enter(page, "ctl-vg_V", "0.1")
+        page.wait_for_function("() => new URLSearchParams(location.search).get('vg') === '0.1'",
+                               timeout=30_000)
+        page.locator(".copy-link button").click()
+        expect(note).to_contain_text("Link copied", timeout=10_000)
+        copied = page.evaluate("() => navigator.clipboard.readText()")
+        assert copied == page.url
+        # the link reproduces the design: a new page opened on it has the same settings
+        assert _query(page)["vg"] == "0.1" and "src_cm3" in _query(page)
+        assert not errors, errors
+    finally:
+        context.close()
