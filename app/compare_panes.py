@@ -213,7 +213,7 @@ if (navigator.clipboard && window.isSecureContext) {
 } else { fallback(); }
 """
 #: What the link leaves out (said under the button before and after a copy).
-LINK_LEAVES_OUT = ("It holds the design, bias, sweep and Ion/Ioff settings; pinned "
+LINK_LEAVES_OUT = ("The link holds the design, bias, sweep and Ion/Ioff settings; pinned "
                    "designs are not in it (a snapshot keeps them).")
 
 
@@ -228,7 +228,7 @@ class SnapshotControls:
         self.presets = pn.widgets.Select(label="Load a demo design", options=options, value="",
                                          width=width, margin=(4, 10), css_classes=["ctl-preset"])
         self.copy_link = pn.widgets.Button(label="Copy link to this design", width=width,
-                                           margin=(8, 10, 2, 10), button_type="default",
+                                           margin=(8, 10, 2, 10),
                                            css_classes=["copy-link"])
         self.link_note = pn.pane.HTML(f'<div class="note">{LINK_LEAVES_OUT}</div>',
                                       stylesheets=css, margin=(0, 12), css_classes=["link-note"])

@@ -426,7 +426,9 @@ class Controls:
         log_sliders = [("ioff_log10_uA_per_um", log_current_formatter())]
         log_sliders += [(name, log_cm3_formatter()) for name in DOPINGS]
         for name, formatter in log_sliders:  # an entry box beside each (`PowerEntry`)
+            # a short title: the unit is the entry box's title beside it
             w[name] = _NowFloatSlider.from_param(s[name], throttled=True, format=formatter,
+                                                 name=s[name].label.split(" (")[0],
                                                  width=WIDGET_WIDTH - POWER_ENTRY_WIDTH - 10,
                                                  margin=(4, 10),
                                                  css_classes=[f"ctl-{name}"])

@@ -69,6 +69,9 @@ class PinView:
         self.compare.name.value = ""
         bias, curve = self.work.adopt_present(pin)  # up-to-date results: no new solve
         self.figures.show_pin(pin.slot, pin.name, bias=bias, curve=curve)
+        output = self.work.adopt_present_output(pin)
+        if output is not None:
+            self.figures.show_pin_output(pin.slot, pin.name, output)
         self.changed()
         self.work.request()
         return pin
@@ -146,6 +149,9 @@ class PinView:
     def pin_curve_solved(self, pin: Pin, tc: Any) -> None:
         self.figures.show_pin(pin.slot, pin.name, curve=tc)
         self.refresh()
+
+    def pin_output_solved(self, pin: Pin, oc: Any) -> None:
+        self.figures.show_pin_output(pin.slot, pin.name, oc)
 
     def pin_failed(self, pin: Pin, exc: Exception) -> None:
         self.compare.say(f"{pin.name}: not solved ({short_error(exc)})")

@@ -14,7 +14,8 @@ Test hooks: figures are named ``band_plot``, ``spectrum_plot``, ``transmission_p
 ``window_source``, ``transfer_tfet_source``,
 ``transfer_twin_source``, ``vg_marker_source``, ``limit_source``, ``swing_tfet_source``,
 ``swing_twin_source``, ``map_source``, ``output_source_0`` ... ; pinned designs
-(slot k = 0 ... 7): ``pin_band_source_k``, ``pin_transfer_source_k``, renderers
+(slot k = 0 ... 7): ``pin_band_source_k``, ``pin_transfer_source_k`` and, once drawn,
+``pin_swing_source_k``, ``pin_output_source_k``; renderers
 ``pin_band_ec_k``, ``pin_band_ev_k``, ``pin_transfer_k``, legends ``pin_band_legend``,
 ``pin_transfer_legend``; a measured file: ``measured_transfer_source``,
 ``measured_output_source`` (renderers ``measured_transfer``, ``measured_output``).
@@ -123,7 +124,7 @@ class ExplorerFigures:
         self.swing = self.swing_plot.figure
         self.map = self.map_plot.figure
         self.output = self.output_plot.figure
-        self.pins = PinOverlays(self.band, self.transfer)
+        self.pins = PinOverlays(self.band, self.transfer, self.swing, self.output)
         self.nonideal = IdealOverlay(self)  # ideal curves, band-tail fringes
         self.measured = MeasuredOverlay(self.transfer_plot, self.output_plot)  # a file's points
         for builder, names in self._SHARED.items():
@@ -206,6 +207,10 @@ class ExplorerFigures:
         the present bias (`physics.simulate.BiasPoint`) and its transfer curve
         (`physics.simulate.TransferCurve`); what is not given stays as it was."""
         self.pins.show(slot, name, bias, curve)
+
+    def show_pin_output(self, slot: int, name: str, curve) -> None:
+        """A pinned design's output curve (`physics.simulate.OutputCurve`)."""
+        self.pins.show_output(slot, name, curve)
 
     def clear_pin(self, slot: int) -> None:
         """Empty a pinned-design slot."""

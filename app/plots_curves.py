@@ -165,6 +165,20 @@ class TransferPlot:
         _rename_device(self.figure, name)
 
 
+def rising_branch(vg: np.ndarray, ids: np.ndarray, ss: np.ndarray, ss_top: float
+                  ) -> dict[str, np.ndarray]:
+    """Columns (id, ss, vg) of a curve's rising branch for the swing plot: the points
+    above its current minimum (the swing diverges at the minimum and is negative on the
+    ambipolar side) with a current above `ID_FLOOR_UA_PER_UM`; a swing above ``ss_top``
+    [mV/dec] is a gap in the line, not a vertical spike."""
+    vg, ids, ss = (np.asarray(a, float) for a in (vg, ids, ss))
+    ok = np.isfinite(ids) & np.isfinite(ss) & (ss > 0) & (ids >= ID_FLOOR_UA_PER_UM)
+    if np.isfinite(ids).any():
+        ok &= np.arange(ids.size) > int(np.nanargmin(ids))
+    ss = np.where(ss <= ss_top, ss, np.nan)
+    return {"id": ids[ok], "ss": ss[ok], "vg": vg[ok]}
+
+
 class SwingPlot:
     """Point swing against current for both devices, with the thermionic limit and the
     Ioff target."""
@@ -200,13 +214,7 @@ class SwingPlot:
         diverges at the minimum and is negative on the ambipolar side), with a current
         above `ID_FLOOR_UA_PER_UM`; a swing beyond the axis is a gap in the line, not a
         vertical spike."""
-        ids = np.asarray(ids, float)
-        ss = np.asarray(ss, float)
-        ok = np.isfinite(ids) & np.isfinite(ss) & (ss > 0) & (ids >= ID_FLOOR_UA_PER_UM)
-        if np.isfinite(ids).any():
-            ok &= np.arange(ids.size) > int(np.nanargmin(ids))
-        ss = np.where(ss <= self.figure.y_range.end, ss, np.nan)
-        self.swing_sources[key].data = {"id": ids[ok], "ss": ss[ok], "vg": vg[ok]}
+        self.swing_sources[key].data = rising_branch(vg, ids, ss, self.figure.y_range.end)
 
     def show_limits(self, limit_mV_per_dec: float, text: str, ioff_uA_per_um: float) -> None:
         """The thermionic limit [mV/dec] (the axis reaches 2.5 times it) and Ioff target."""
@@ -264,11 +272,18 @@ class OutputPlot:
 
 class PinOverlays:
     """Overlay slots of the pinned designs: conduction and valence edges on the band
-    diagram (thin dashed), the tunnel-FET curve on the transfer plot; each slot has its
-    colour (`PIN_COLOURS`) and one legend entry (click to hide), in a legend of its own."""
+    diagram (thin dashed), the tunnel-FET curve on the transfer plot, its point swing on
+    the swing plot and its output curve at the present Vg (dashed) on the output plot;
+    each slot has its colour (`PIN_COLOURS`) and one legend entry (click to hide) on the
+    band and transfer plots."""
 
-    def __init__(self, band, transfer) -> None:
+    def __init__(self, band, transfer, swing=None, output=None) -> None:
         self.pin_band_sources, self.pin_transfer_sources = [], []
+        # swing and output plots: the slot's lines are made when first drawn (a page opens
+        # without the 16 lines, sources and tools nobody may need)
+        self.pin_swing_sources: dict[int, ColumnDataSource] = {}
+        self.pin_output_sources: dict[int, ColumnDataSource] = {}
+        self.swing, self.output = swing, output
         self.pin_band_items, self.pin_transfer_items = [], []
         for k, colour in enumerate(PIN_COLOURS):
             src_band = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []},
@@ -320,17 +335,66 @@ class PinOverlays:
             src.data = {**src.data, "name": [name] * len(src.data["x_nm"])}
         if curve is not None:
             vg = np.asarray(curve.vg_V, float)
-            self.pin_transfer_sources[slot].data = {
-                "vg": vg, "id": positive_or_nan(curve.id_uA_per_um), "name": [name] * vg.size}
+            ids = positive_or_nan(curve.id_uA_per_um)
+            self.pin_transfer_sources[slot].data = {"vg": vg, "id": ids,
+                                                    "name": [name] * vg.size}
+            if self.swing is not None:
+                cols = rising_branch(vg, ids, curve.ss_mV_per_dec, self.swing.y_range.end)
+                self._swing_source(slot).data = {**cols, "name": [name] * cols["id"].size}
         else:
             src = self.pin_transfer_sources[slot]
             src.data = {**src.data, "name": [name] * len(src.data["vg"])}
+        for src in (self.pin_swing_sources.get(slot), self.pin_output_sources.get(slot)):
+            if src is not None:
+                n = len(next(iter(src.data.values())))
+                src.data = {**src.data, "name": [name] * n}
         self._update_legends()
+
+    def _swing_source(self, slot: int) -> ColumnDataSource:
+        """The slot's source on the swing plot (its line made on first use)."""
+        if slot not in self.pin_swing_sources:
+            src = ColumnDataSource({"id": [], "ss": [], "vg": [], "name": []},
+                                   name=f"pin_swing_source_{slot}")
+            r = self.swing.line("id", "ss", source=src, line_color=PIN_COLOURS[slot],
+                                line_width=1.6, name=f"pin_swing_{slot}")
+            r.nonselection_glyph = r.muted_glyph = "auto"  # as `plot_style.slim_renderers`
+            self.swing.add_tools(HoverTool(renderers=[r], tooltips=[
+                ("pinned", "@name"), ("Id", "@id{0.00e+0} µA/µm"), ("SS", "@ss{0.0} mV/dec"),
+                ("Vg", "@vg{0.000} V")]))
+            self.pin_swing_sources[slot] = src
+        return self.pin_swing_sources[slot]
+
+    def _output_source(self, slot: int) -> ColumnDataSource:
+        """The slot's source on the output plot (its line made on first use)."""
+        if slot not in self.pin_output_sources:
+            src = ColumnDataSource({"vd": [], "id": [], "vg": [], "name": []},
+                                   name=f"pin_output_source_{slot}")
+            r = self.output.line("vd", "id", source=src, line_color=PIN_COLOURS[slot],
+                                 line_width=1.6, line_dash="dashed", name=f"pin_output_{slot}")
+            r.nonselection_glyph = r.muted_glyph = "auto"
+            self.output.add_tools(HoverTool(renderers=[r], tooltips=[
+                ("pinned", "@name"), ("Vg", "@vg{0.00} V"), ("Vd", "@vd{0.000} V"),
+                ("Id", "@id{0.000e+0} µA/µm")]))
+            self.pin_output_sources[slot] = src
+        return self.pin_output_sources[slot]
+
+    def show_output(self, slot: int, name: str, curve) -> None:
+        """A pinned design's output curve (`physics.simulate.OutputCurve`) on the output
+        plot (dashed, in the slot's colour)."""
+        if self.output is None:
+            return
+        vd = np.asarray(curve.vd_V, float)
+        self._output_source(slot).data = {
+            "vd": vd, "id": np.asarray(curve.id_uA_per_um, float),
+            "vg": np.full_like(vd, curve.vg_V), "name": [name] * vd.size}
 
     def clear(self, slot: int) -> None:
         """Empty a slot."""
         self.pin_band_sources[slot].data = {"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []}
         self.pin_transfer_sources[slot].data = {"vg": [], "id": [], "name": []}
+        for src in (self.pin_swing_sources.get(slot), self.pin_output_sources.get(slot)):
+            if src is not None:
+                src.data = {k: [] for k in src.data}
         for item in (self.pin_band_items[slot], self.pin_transfer_items[slot]):
             item.visible = False
             for r in item.renderers:  # a slot used again starts shown

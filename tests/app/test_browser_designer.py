@@ -143,3 +143,41 @@ def test_copy_link_writes_the_page_link_and_says_pins_are_left_out(browser, app_
         assert not errors, errors
     finally:
         context.close()
+
+
+def _pinned_source(page, what: str, slot: int) -> dict | None:
+    return page.evaluate(
+        "([w, k]) => { const m = sub60.model('pin_' + w + '_source_' + k);"
+        " return m ? sub60.data('pin_' + w + '_source_' + k) : null; }", [what, slot])
+
+
+def test_pinned_design_on_swing_and_output_plots(browser, app_url):
+    page, _, errors = open_app(browser, app_url)
+    try:
+        # nothing pinned: no pinned lines on the swing and output plots yet
+        assert _pinned_source(page, "swing", 0) is None
+        page.locator(".pin-button button").click()
+        page.wait_for_function(
+            "() => { const s = sub60.model('pin_swing_source_0'); "
+            "const o = sub60.model('pin_output_source_0'); "
+            "return s && o && s.data.id.length > 0 && o.data.vd.length > 0; }",
+            timeout=60_000)
+        # the pinned design is the present one: its swing is the tunnel FET's, its output
+        # curve the present output curve at the present Vg (the last listed)
+        swing = _pinned_source(page, "swing", 0)
+        tfet = page.evaluate("() => sub60.data('swing_tfet_source')")
+        assert swing["id"] == pytest.approx(tfet["id"], rel=1e-12)
+        assert swing["ss"] == pytest.approx(tfet["ss"], rel=1e-12, nan_ok=True)
+        n = len(page.evaluate("() => sub60.model('output_legend').items.filter(i => i.visible)"))
+        last = page.evaluate(f"() => sub60.data('output_source_{n - 1}')")
+        out = _pinned_source(page, "output", 0)
+        assert out["vg"][0] == pytest.approx(0.3) and last["vg"][0] == pytest.approx(0.3)
+        assert out["id"] == pytest.approx(last["id"], rel=1e-9)
+        # a new gate voltage: the pinned output curve follows (solved for the pin)
+        _enter(page, "ctl-vg_V", "0.2")
+        page.wait_for_function(
+            "() => Math.abs(sub60.data('pin_output_source_0').vg[0] - 0.2) < 1e-9",
+            timeout=60_000)
+        assert not errors, errors
+    finally:
+        page.close()
