@@ -158,6 +158,8 @@ class Explorer(pn.viewable.Viewer):
         self.pins: PinBoard = PinBoard()
         self.pin_jobs = PinJobs(self.jobs, self.pins, self.pin_view)
         self.pin_view.work = self.pin_jobs
+        self.results.pins = self.pin_jobs  # pinned curves on the Ion–Ioff trade-off
+        self.pin_view.on_curves = self.results.refresh_tradeoff
         self.pin_view.changed()
         self.snapshot_view = SnapshotView(self.jobs, self.pins, self.messages, css, self._post,
                                           self.apply_settings,

@@ -37,6 +37,8 @@ class PinView:
         self.state = state
         self.figures = figures
         self.work: PinJobs | None = None  # set by the page once the jobs exist
+        #: Called when the pinned curves change (e.g. the Ion–Ioff trade-off redraws).
+        self.on_curves: Callable[[], None] = lambda: None
         self.design_valid = True
         self.compare = ComparisonPanel(
             list(css), lambda name: post(self.pin_present, name),
@@ -69,6 +71,8 @@ class PinView:
         self.compare.name.value = ""
         bias, curve = self.work.adopt_present(pin)  # up-to-date results: no new solve
         self.figures.show_pin(pin.slot, pin.name, bias=bias, curve=curve)
+        if curve is not None:
+            self.on_curves()
         output = self.work.adopt_present_output(pin)
         if output is not None:
             self.figures.show_pin_output(pin.slot, pin.name, output)
@@ -91,6 +95,7 @@ class PinView:
         self.compare.say("")
         self.figures.show_pin(slot, pin.name)
         self.changed()
+        self.on_curves()
         return pin
 
     def unpin(self, slot: int) -> None:
@@ -101,6 +106,7 @@ class PinView:
         self.figures.clear_pin(slot)
         self.compare.say("")
         self.changed()
+        self.on_curves()
 
     def load_pin(self, slot: int) -> None:
         """Put a pinned design and its sweep into the controls (one update)."""
@@ -124,6 +130,7 @@ class PinView:
             self.figures.show_pin(p.slot, p.name)
         self.compare.say("")
         self.changed()
+        self.on_curves()
 
     # ------------------------------------------------------------------ table
     def enable(self, design_valid: bool) -> None:
@@ -149,6 +156,7 @@ class PinView:
     def pin_curve_solved(self, pin: Pin, tc: Any) -> None:
         self.figures.show_pin(pin.slot, pin.name, curve=tc)
         self.refresh()
+        self.on_curves()
 
     def pin_output_solved(self, pin: Pin, oc: Any) -> None:
         self.figures.show_pin_output(pin.slot, pin.name, oc)

@@ -473,3 +473,70 @@ class MeasuredOverlay:
     def clear(self) -> None:
         """No measured curve."""
         self.show("", (), ())
+
+
+class TradeoffPlot:
+    """Ion against the Ioff target (log–log) of the design, its MOSFET twin and the
+    pinned designs, each from its computed transfer curve (`app.tables.tradeoff_table`),
+    with the present Ioff target marked. Made when its section is first opened."""
+
+    def __init__(self) -> None:
+        f = figure(name="tradeoff_plot", title="Ion against the Ioff target",
+                   x_axis_type="log", y_axis_type="log", tools=TOOLS,
+                   x_axis_label="Ioff target (µA/µm)",
+                   y_axis_label="Ion at Voff + Vdd (µA/µm)")
+        self.sources: dict[str, ColumnDataSource] = {}
+        renderers = []
+        lines = [(key, label, colour, dash, 2.4) for key, label, colour, dash in _DEVICES]
+        lines += [(f"pin_{k}", "", colour, "solid", 1.8) for k, colour in enumerate(PIN_COLOURS)]
+        items = []
+        for key, label, colour, dash, width in lines:
+            src = ColumnDataSource({"ioff": [], "ion": [], "voff": [], "name": []},
+                                   name=f"tradeoff_{key}_source")
+            r = f.line("ioff", "ion", source=src, line_color=colour, line_width=width,
+                       line_dash=dash, name=f"tradeoff_{key}")
+            r.nonselection_glyph = r.muted_glyph = "auto"
+            renderers.append(r)
+            items.append(LegendItem(label=value(label or " "), renderers=[r],
+                                    visible=bool(label)))
+            self.sources[key] = src
+        f.add_tools(HoverTool(renderers=renderers, tooltips=[
+            ("", "@name"), ("Ioff target", "@ioff{0.00e+0} µA/µm"), ("Voff", "@voff{0.000} V"),
+            ("Ion", "@ion{0.00e+0} µA/µm")]))
+        self.items = dict(zip([key for key, *_ in lines], items, strict=True))
+        self.legend = Legend(items=items, location="top_left", click_policy="hide",
+                             label_text_font_size="11px", background_fill_alpha=0.8,
+                             name="tradeoff_legend")
+        f.add_layout(self.legend)
+        self.ioff_span = Span(location=1e-3, dimension="height", line_color=COLOURS["target"],
+                              line_dash="dashdot", line_width=1)
+        f.add_layout(self.ioff_span)
+        self.ioff_label = Label(x=1e-3, y=6, y_units="screen", text="present Ioff target",
+                                text_font_size="10px", text_color=COLOURS["target_text"],
+                                x_offset=3)
+        f.add_layout(self.ioff_label)
+        f.frame_width, f.frame_height = 420, 260
+        self.figure = f
+
+    def show(self, key: str, name: str | None, table: dict | None) -> None:
+        """One line ('tfet', 'twin' or 'pin_<slot>'): its legend name (None: keep) and its
+        `app.tables.tradeoff_table` (None: empty, hidden from the legend)."""
+        item = self.items[key]
+        if table is None:
+            self.sources[key].data = {"ioff": [], "ion": [], "voff": [], "name": []}
+            item.visible = False
+            return
+        label = name or item.label.value
+        n = len(table["ioff_uA_per_um"])
+        self.sources[key].data = {"ioff": np.asarray(table["ioff_uA_per_um"], float),
+                                  "ion": positive_or_nan(table["ion_uA_per_um"]),
+                                  "voff": np.asarray(table["voff_V"], float),
+                                  "name": [label] * n}
+        if name is not None:
+            item.label = value(name)
+        item.visible = True
+
+    def show_target(self, ioff_uA_per_um: float) -> None:
+        """The present Ioff target [uA/um]."""
+        self.ioff_span.location = ioff_uA_per_um
+        self.ioff_label.x = ioff_uA_per_um

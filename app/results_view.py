@@ -24,8 +24,11 @@ from sub60.app.messages import (
     value_message,
 )
 from sub60.app.nonideal_view import breakdown_html, breakdown_pane
+from sub60.app.plot_style import style_figure
 from sub60.app.plots import ExplorerFigures, metrics_html
+from sub60.app.plots_curves import DEVICE_NAMES, TradeoffPlot
 from sub60.app.state import ExplorerState, vg_step_text
+from sub60.app.tables import tradeoff_table
 from sub60.physics import SolverError, check_tunnelling_material
 
 
@@ -77,6 +80,16 @@ class ResultsView:
             css_classes=["transfer-axis"])
         self.transfer_axis.param.watch(
             lambda e: self.figures.transfer_plot.set_linear(e.new == "linear"), "value")
+        # Ion against the Ioff target: its figure is made and filled when the section is
+        # first opened (a page opens without it)
+        self.pins: Any = None  # the page's `app.pin_jobs.PinJobs`: pinned curves
+        self.tradeoff: TradeoffPlot | None = None
+        self._css = css
+        self.tradeoff_card = pn.Card(
+            title="Ion–Ioff trade-off: Ion against the Ioff target", collapsed=True,
+            sizing_mode="stretch_width", margin=(4, 8), header_background="#eef2f5",
+            css_classes=["tradeoff-card"])
+        self.tradeoff_card.param.watch(self._open_tradeoff, "collapsed")
         self.plots = pn.Column(
             pn.Row(p["band"], p["spectrum"], p["transmission"],
                    p["transfer"],
@@ -87,9 +100,57 @@ class ResultsView:
                    margin=0, css_classes=["plot-options"]),
             pn.Row(p["map"], p["output"], p["swing"], sizing_mode="stretch_width", margin=0,
                    styles={"flex-wrap": "wrap"}),
+            self.tradeoff_card,
             sizing_mode="stretch_width", margin=(0, 4), css_classes=["sub60-plots"],
             stylesheets=css)
         self.show_metrics(stale=True)
+
+    # ------------------------------------------------------------------ trade-off
+    def _open_tradeoff(self, event: Any) -> None:
+        if event.new or self.tradeoff is not None:
+            if not event.new:
+                self.refresh_tradeoff()
+            return
+        self.tradeoff = TradeoffPlot()
+        style_figure(self.tradeoff.figure)
+        note = pn.pane.HTML(
+            '<div class="note">For each I<sub>off</sub> target, V<sub>off</sub> is where the '
+            "computed transfer curve crosses it and I<sub>on</sub> is the current at "
+            "V<sub>off</sub> + V<sub>dd</sub>, interpolated between the curve's points (no new "
+            "solve); a gap: the curve does not reach that target, or V<sub>off</sub> + "
+            "V<sub>dd</sub> lies beyond the gate sweep. Pinned designs in their colours."
+            "</div>", stylesheets=self._css, width=300, margin=(8, 12))
+        self.tradeoff_card.objects = [pn.Row(pn.pane.Bokeh(self.tradeoff.figure, margin=(2, 2)),
+                                             note, margin=0)]
+        self.refresh_tradeoff()
+
+    def refresh_tradeoff(self) -> None:
+        """Fill the trade-off plot from the present and pinned curves (only once opened)."""
+        plot = self.tradeoff
+        if plot is None or self.jobs is None:
+            return
+        vdd = float(self.state.vdd_V)
+        curves = self.jobs.curves
+        p_source = self.state.source_type == "p"
+        for key in ("tfet", "twin"):
+            tc = curves.get(key)
+            if tc is None or (key == "twin" and not p_source):
+                plot.show(key, None, None)
+            else:
+                name = (DEVICE_NAMES[0] if p_source else DEVICE_NAMES[1]) if key == "tfet" \
+                    else "MOSFET twin"
+                plot.show(key, name, tradeoff_table(tc, vdd))
+        shown = set()
+        if self.pins is not None:
+            for pin in self.pins.board.pins:
+                tc = self.pins.fresh_curve(pin)
+                if tc is not None:
+                    plot.show(f"pin_{pin.slot}", f"pinned: {pin.name}", tradeoff_table(tc, vdd))
+                    shown.add(pin.slot)
+        for slot in range(len(plot.items) - 2):
+            if slot not in shown:
+                plot.show(f"pin_{slot}", None, None)
+        plot.show_target(self.state.ioff_target_uA_per_um)
 
     # ------------------------------------------------------------------ texts
     def show_metrics(self, stale: bool) -> None:
@@ -187,6 +248,7 @@ class ResultsView:
             anchor_vg, anchor_id = self.jobs.limit_anchor(request.ioff_uA_per_um)
             self.figures.show_limits(request.design.temperature_K, request.ioff_uA_per_um,
                                      anchor_vg, anchor_id, float(request.vg_V[-1]))
+            self.refresh_tradeoff()
 
     def nonideal_solved(self, ideal: Any, breakdown: dict | None) -> None:
         """The ideal device's curve (dashed) and the off-state breakdown, or neither."""

@@ -10,7 +10,9 @@ column names are those of the snapshot files (a stored format, see `app.snapshot
 - `transfer_table` ``vg_V``, ``design_id_uA_per_um``, ``design_ss_mV_per_dec`` and, with a
   twin, ``twin_id_uA_per_um``, ``twin_ss_mV_per_dec``;
 - `pinned_table`   long format ``pin_index_1``, ``vg_V``, ``id_uA_per_um``, ``ss_mV_per_dec``;
-- `output_table`   ``vd_V`` and one ``id_uA_per_um_at_vg_<Vg>_V`` column per gate voltage.
+- `output_table`   ``vd_V`` and one ``id_uA_per_um_at_vg_<Vg>_V`` column per gate voltage;
+- `tradeoff_table` ``ioff_uA_per_um``, ``voff_V``, ``ion_uA_per_um``: Ion against the Ioff
+  target, from one computed transfer curve (no new solve).
 
 `csv_text` (the physics' one writer) writes any such mapping: optional ``# name = value``
 comment lines, one header row, then rows with 10 significant digits; a non-finite value
@@ -25,7 +27,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 from numpy.typing import ArrayLike
 
-from sub60.physics import csv_text, output_columns
+from sub60.physics import csv_text, figures_of_merit, output_columns
 
 if TYPE_CHECKING:
     from sub60.physics import BiasPoint, OutputCurve, TransferCurve
@@ -86,3 +88,30 @@ def output_table(curves: Sequence[OutputCurve]) -> Table:
     """Drain voltage [V] and one current column [uA/um] per gate voltage
     (`sub60.physics.output_columns`); ValueError when two gate voltages print alike."""
     return output_columns(curves)
+
+
+#: Off-current targets of the Ion–Ioff trade-off [uA/um]: 1e-8 to 1, four per decade
+#: (the range of the page's Ioff control).
+TRADEOFF_IOFF_UA_PER_UM = 10.0 ** np.arange(-8.0, 0.001, 0.25)
+
+
+def tradeoff_table(curve: TransferCurve, vdd_V: float,
+                   targets_uA_per_um: ArrayLike = TRADEOFF_IOFF_UA_PER_UM) -> Table:
+    """Ion against the Ioff target of one computed transfer curve: for each target
+    [uA/um], Voff [V] where the forward branch crosses it and Ion = Id(Voff + Vdd) [uA/um]
+    by the figure-of-merit rules of `sub60.physics.figures_of_merit` (log-linear
+    interpolation between the curve's samples, refined ones included); NaN where the
+    curve does not reach the target or Voff + Vdd lies beyond the sweep. No new solve."""
+    vg = curve.vg_refined_V if curve.vg_refined_V is not None else curve.vg_V
+    ids = curve.id_refined_uA_per_um if curve.id_refined_uA_per_um is not None \
+        else curve.id_uA_per_um
+    targets = np.asarray(targets_uA_per_um, float)
+    voff, ion = np.full(targets.shape, np.nan), np.full(targets.shape, np.nan)
+    for k, target in enumerate(targets):
+        m = figures_of_merit(vg, ids, temperature_K=curve.design.temperature_K,
+                             ioff_target_uA_per_um=float(target), vdd_V=float(vdd_V))
+        if m.voff_V.value is not None:
+            voff[k] = m.voff_V.value
+        if m.ion_uA_per_um.value is not None:
+            ion[k] = m.ion_uA_per_um.value
+    return {"ioff_uA_per_um": targets, "voff_V": voff, "ion_uA_per_um": ion}

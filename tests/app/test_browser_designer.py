@@ -11,6 +11,7 @@ from __future__ import annotations
 import math
 from urllib.parse import parse_qs, urlsplit
 
+import numpy as np
 import pytest
 from playwright.sync_api import expect
 
@@ -178,6 +179,37 @@ def test_pinned_design_on_swing_and_output_plots(browser, app_url):
         page.wait_for_function(
             "() => Math.abs(sub60.data('pin_output_source_0').vg[0] - 0.2) < 1e-9",
             timeout=60_000)
+        assert not errors, errors
+    finally:
+        page.close()
+
+
+def test_ion_ioff_tradeoff_opens_on_demand_and_matches_the_metrics(browser, app_url):
+    page, _, errors = open_app(browser, app_url)
+    try:
+        # a page opens without the trade-off figure (made when its section is opened)
+        assert page.evaluate("() => sub60.model('tradeoff_plot') === null")
+        page.locator(".tradeoff-card .card-header").first.click()
+        page.wait_for_function(
+            "() => { const s = sub60.model('tradeoff_tfet_source'); const t = "
+            "sub60.model('tradeoff_twin_source'); return s && t && s.data.ioff.length > 0 "
+            "&& t.data.ioff.length > 0; }", timeout=60_000)
+        metrics = page.evaluate("() => sub60.metrics()")
+        for key in ("tfet", "twin"):
+            data = page.evaluate(f"() => sub60.data('tradeoff_{key}_source')")
+            ioff = np.asarray(data["ioff"])
+            ion = np.asarray(data["ion"])
+            k = int(np.argmin(abs(np.log10(ioff) - math.log10(1e-3))))  # the present target
+            assert ioff[k] == pytest.approx(1e-3)
+            # the metrics strip's Ion at the present target (same curve, same definition)
+            assert ion[k] == pytest.approx(metrics[key]["ion_uA_per_um"], rel=1e-3)
+            # Ion grows with the Ioff target where both are defined (a rising curve)
+            ok = np.isfinite(ion)
+            assert ok.sum() >= 5 and np.all(np.diff(ion[ok]) > 0)
+        # a pinned design joins the plot
+        page.locator(".pin-button button").click()
+        page.wait_for_function("() => sub60.data('tradeoff_pin_0_source').ioff.length > 0",
+                               timeout=60_000)
         assert not errors, errors
     finally:
         page.close()

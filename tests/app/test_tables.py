@@ -66,3 +66,27 @@ def test_cli_and_snapshot_write_the_same_bands_and_transfer_columns(capsys):
     # two independent sweeps: equal to the Newton tolerance (as in test_cli)
     np.testing.assert_allclose(numbers(cli_transfer), numbers(snap_transfer), rtol=1e-5,
                                equal_nan=True)
+
+
+def test_tradeoff_table_of_an_exponential_curve():
+    """Id = I0 10^(Vg/S) with S = 60 mV/dec: Voff = S log10(Ioff/I0) and Ion = Id(Voff + Vdd)
+    = Ioff 10^(Vdd/S) for every target the sweep holds (the definitions of Voff and Ion in
+    `physics.figures_of_merit`; worked by hand)."""
+    from types import SimpleNamespace
+
+    from sub60.app.tables import tradeoff_table
+    from sub60.physics.design import Design
+
+    s_V, i0 = 0.060, 1e-9
+    vg = np.linspace(-0.2, 0.8, 201)
+    ids = i0 * 10.0 ** (vg / s_V)
+    curve = SimpleNamespace(vg_V=vg, id_uA_per_um=ids, vg_refined_V=None,
+                            id_refined_uA_per_um=None, design=Design())
+    targets = np.array([1e-14, 1e-6, 1e-3, 1e-2, 1.0])
+    table = tradeoff_table(curve, 0.3, targets)
+    # 1e-14 is below the lowest current of the sweep (4.6e-13); 1.0 needs Voff + Vdd = 0.84 V > 0.8 V
+    assert np.isnan(table["ion_uA_per_um"][[0, 4]]).all()
+    np.testing.assert_allclose(table["voff_V"][1:4], s_V * np.log10(targets[1:4] / i0),
+                               atol=1e-9)
+    np.testing.assert_allclose(table["ion_uA_per_um"][1:4], targets[1:4] * 10 ** (0.3 / s_V),
+                               rtol=1e-6)
