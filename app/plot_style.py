@@ -30,6 +30,7 @@ COLOURS: dict[str, str] = {
     "marker": PALETTE["marker"],
     "text": PALETTE["text"],
     "muted_text": PALETTE["muted_text"],
+    "reference": "#6f7a85",  # the reference band diagram: a quiet grey
     "grid": PALETTE["grid"],
     "target": PALETTE["target"],
     "target_text": PALETTE["target_text"],

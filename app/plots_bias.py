@@ -43,11 +43,13 @@ class BandPlot:
     """Band diagram along the channel: subband edges, Fermi levels, the tunnel window, the
     gate and region labels. Subband lines are made when a label first appears."""
 
+    TITLE = "Band diagram along the channel"
+
     def __init__(self, x_range: Range1d, energy_range: Range1d) -> None:
         self.energy_range = energy_range
         #: Subband label -> its line renderer.
         self.renderers: dict[str, object] = {}
-        f = figure(name="band_plot", title="Band diagram along the channel",
+        f = figure(name="band_plot", title=self.TITLE,
                    x_axis_label="Position along transport x (nm)",
                    y_axis_label="Energy (eV), source Fermi level at 0",
                    x_range=x_range, y_range=energy_range, tools=TOOLS)
@@ -109,6 +111,13 @@ class BandPlot:
         leg = f.legend[0]
         leg.items = [*leg.items, self.band_items["c"], self.band_items["v"]]
         self.figure = f
+        # the reference band diagram (`show_reference`); made with the figure: lines added
+        # to the band diagram once in the browser left its legends undrawn
+        self.reference_source: ColumnDataSource | None = None
+        self.reference_window_source: ColumnDataSource | None = None
+        self._reference_renderers()
+        self.present_extent: tuple[float, float] = (-1.0, 0.6)  # energies drawn [eV]
+        self.reference_extent: tuple[float, float] | None = None
 
     @property
     def labels(self) -> list[Label]:
@@ -179,15 +188,12 @@ class BandPlot:
         self.fermi_labels["efs"].update(x=float(x[0]) + 0.5, y=bp.efs_eV)
         self.fermi_labels["efd"].update(x=d.drain_junction_nm + 0.5, y=bp.efd_eV)
         self.show_windows(bp, data["ec_eV"], data["ev_eV"])
-        lo = min(float(np.nanmin(data["ev_eV"])), bp.efs_eV, bp.efd_eV)
-        hi = max(float(np.nanmax(data["ec_eV"])), bp.efs_eV, bp.efd_eV)
-        pad = 0.06 * (hi - lo) + 0.02
-        self.energy_range.start, self.energy_range.end = lo - pad, hi + 2.5 * pad
-        for lab in self.region_labels.values():
-            lab.y = hi + 2.5 * pad
-        self.window_closed.update(x=self.region_labels["gate"].x, y=hi + 2.5 * pad)
-        self.show_interface(d, hi + 2.5 * pad)
-        return hi + 2.5 * pad
+        self.present_extent = (min(float(np.nanmin(data["ev_eV"])), bp.efs_eV, bp.efd_eV),
+                               max(float(np.nanmax(data["ec_eV"])), bp.efs_eV, bp.efd_eV))
+        self.window_closed.x = self.region_labels["gate"].x
+        self.show_interface(d, 0.0)
+        self._fit_energy()
+        return float(self.energy_range.end)
 
     def show_interface(self, design, top_eV: float) -> None:
         """The heterointerface as a dotted line, labelled with its band offsets (body minus
@@ -210,23 +216,7 @@ class BandPlot:
     def show_windows(self, bp, ec_eV: np.ndarray, ev_eV: np.ndarray) -> None:
         """The source-side tunnel window (the physics' own) and the drain-side (ambipolar)
         one, each drawn where it is open; the label says which are closed."""
-        d = bp.design
-        x = np.asarray(bp.x_nm, float)
-        drain = drain_side_window(x, ec_eV, ev_eV, (d.gate_start_nm, d.gate_end_nm),
-                                  d.drain_junction_nm, bp.efs_eV, bp.efd_eV)
-        cols: dict[str, list] = {k: [] for k in ("xs", "ys", "e_min", "e_max", "width_meV",
-                                                 "side")}
-        shown = {}
-        for side, window, mask in (("source side", bp.window_eV, x <= d.gate_end_nm),
-                                   ("drain side (ambipolar)", drain, x >= d.gate_start_nm)):
-            # each outline is traced over its own junction (source + channel, channel + drain)
-            xs, ys = window_outline(x[mask], ec_eV[mask], ev_eV[mask], window)
-            shown[side] = bool(window is not None and xs)
-            if shown[side]:
-                lo, hi = window
-                for k, v in (("xs", xs), ("ys", ys), ("e_min", lo), ("e_max", hi),
-                             ("width_meV", 1e3 * (hi - lo)), ("side", side)):
-                    cols[k].append(v)
+        cols, shown = window_columns(bp, ec_eV, ev_eV)
         self.window_source.data = cols
         if not any(shown.values()):
             self.window_closed.text = "tunnel windows closed"
@@ -234,6 +224,93 @@ class BandPlot:
             self.window_closed.text = "source-side window closed · drain-side window open"
         else:
             self.window_closed.text = ""
+
+    # ------------------------------------------------------------ reference bias
+    def _reference_renderers(self) -> None:
+        """The reference band diagram's lines and window outlines (empty until shown)."""
+        f = self.figure
+        self.reference_source = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": []},
+                                                 name="reference_band_source")
+        self.reference_window_source = ColumnDataSource(
+            {"xs": [], "ys": [], "e_min": [], "e_max": [], "width_meV": [], "side": []},
+            name="reference_window_source")
+        win = f.patches("xs", "ys", source=self.reference_window_source, fill_alpha=0,
+                        line_color=COLOURS["reference"], line_dash="dashed", line_width=1.2,
+                        name="reference_windows")
+        lines = [f.line("x_nm", edge, source=self.reference_source,
+                        line_color=COLOURS["reference"], line_width=1.6, line_dash="dotted",
+                        name=f"reference_{edge}") for edge in ("ec_eV", "ev_eV")]
+        for r in (win, *lines):
+            r.nonselection_glyph = r.muted_glyph = "auto"  # as `plot_style.slim_renderers`
+        f.add_tools(HoverTool(renderers=lines, tooltips=[
+            ("reference", "@x_nm{0.0} nm"), ("Ec", "@ec_eV{0.000} eV"),
+            ("Ev", "@ev_eV{0.000} eV")]))
+
+    def show_reference(self, bp) -> None:
+        """A band diagram at a reference gate voltage (`physics.simulate.BiasPoint`,
+        None: hidden), in a quieter style: first subband edges dotted grey, its open
+        tunnel windows (source and drain side) as dashed outlines; the energy axis
+        covers it too."""
+        if bp is None:
+            if len(self.reference_source.data["x_nm"]):
+                self.reference_source.data = {"x_nm": [], "ec_eV": [], "ev_eV": []}
+                self.reference_window_source.data = {k: [] for k in
+                                                     self.reference_window_source.data}
+                self.figure.title.text = self.TITLE
+            self.reference_extent = None
+            return
+        ec = np.asarray(bp.subband_ec_eV, float)
+        ev = np.asarray(bp.subband_ev_eV, float)
+        self.reference_source.data = {"x_nm": np.asarray(bp.x_nm, float), "ec_eV": ec,
+                                      "ev_eV": ev}
+        cols, shown = window_columns(bp, ec, ev)
+        self.reference_window_source.data = cols
+        sides = [side.split(" ")[0] for side, on in shown.items() if on]
+        windows = {0: "windows closed", 1: f"{sides[0] if sides else ''} window open",
+                   2: "both windows open"}[len(sides)]
+        # named in the title (the legend below the plot is laid out once, when the page
+        # opens)
+        self.figure.title.text = (f"Band diagram · grey dotted: reference Vg = "
+                                  f"{bp.vg_V + 0.0:.2f} V, {windows}")
+        self.reference_extent = (min(float(np.nanmin(ev)), bp.efs_eV, bp.efd_eV),
+                                 max(float(np.nanmax(ec)), bp.efs_eV, bp.efd_eV))
+        self._fit_energy()
+
+    def _fit_energy(self) -> None:
+        """The energy axis over the present band diagram and the reference (if shown)."""
+        lo, hi = self.present_extent
+        if self.reference_extent is not None:
+            lo, hi = min(lo, self.reference_extent[0]), max(hi, self.reference_extent[1])
+        pad = 0.06 * (hi - lo) + 0.02
+        self.energy_range.start, self.energy_range.end = lo - pad, hi + 2.5 * pad
+        top = hi + 2.5 * pad
+        for lab in self.region_labels.values():
+            lab.y = top
+        self.window_closed.y = top
+        self.interface_label.y = top
+
+
+def window_columns(bp, ec_eV: np.ndarray, ev_eV: np.ndarray) -> tuple[dict, dict]:
+    """Outlines of a bias point's source-side tunnel window (the physics' own) and its
+    drain-side (ambipolar) one, each where it is open: (patch columns, {side: open})."""
+    d = bp.design
+    x = np.asarray(bp.x_nm, float)
+    drain = drain_side_window(x, ec_eV, ev_eV, (d.gate_start_nm, d.gate_end_nm),
+                              d.drain_junction_nm, bp.efs_eV, bp.efd_eV)
+    cols: dict[str, list] = {k: [] for k in ("xs", "ys", "e_min", "e_max", "width_meV",
+                                             "side")}
+    shown = {}
+    for side, window, mask in (("source side", bp.window_eV, x <= d.gate_end_nm),
+                               ("drain side (ambipolar)", drain, x >= d.gate_start_nm)):
+        # each outline is traced over its own junction (source + channel, channel + drain)
+        xs, ys = window_outline(x[mask], ec_eV[mask], ev_eV[mask], window)
+        shown[side] = bool(window is not None and xs)
+        if shown[side]:
+            lo, hi = window
+            for k, v in (("xs", xs), ("ys", ys), ("e_min", lo), ("e_max", hi),
+                         ("width_meV", 1e3 * (hi - lo)), ("side", side)):
+                cols[k].append(v)
+    return cols, shown
 
 
 class SpectrumPlots:

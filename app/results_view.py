@@ -15,21 +15,23 @@ from typing import Any
 import numpy as np
 import panel as pn
 
-from sub60.app.jobs import SessionJobs, SweepRequest
+from sub60.app.jobs import PriorityGate, SessionJobs, SweepRequest
 from sub60.app.messages import (
     MessageBoard,
     html_escape,
+    refused_value_message,
     solver_message,
     validity_notes_html,
     value_message,
 )
 from sub60.app.nonideal_view import breakdown_html, breakdown_pane
+from sub60.app.number_rules import InputError, parse_number
 from sub60.app.plot_style import style_figure
 from sub60.app.plots import ExplorerFigures, metrics_html
 from sub60.app.plots_curves import DEVICE_NAMES, TradeoffPlot
 from sub60.app.state import ExplorerState, vg_step_text
 from sub60.app.tables import tradeoff_table
-from sub60.physics import SolverError, check_tunnelling_material
+from sub60.physics import VG_RANGE_V, SolverError, check_tunnelling_material
 
 
 class ResultsView:
@@ -90,13 +92,33 @@ class ResultsView:
             sizing_mode="stretch_width", margin=(4, 8), header_background="#eef2f5",
             css_classes=["tradeoff-card"])
         self.tradeoff_card.param.watch(self._open_tradeoff, "collapsed")
+        # a reference band diagram at a second gate voltage, drawn quietly under the present
+        self.reference_on = pn.widgets.Checkbox(name="Reference band diagram at Vg =",
+                                                value=False, margin=(6, 4, 0, 66),
+                                                css_classes=["reference-on"])
+        self.reference_vg = pn.widgets.TextInput(value="0", width=62, height=28,
+                                                 margin=(2, 2), css_classes=["reference-vg"])
+        self.reference_unit = pn.pane.HTML('<div class="ctl-label">V</div>', stylesheets=css,
+                                           margin=(8, 2, 0, 0))
+        self.reference_voff = pn.widgets.Button(label="set to Voff (off state)",
+                                                color="light", height=28, margin=(2, 4),
+                                                css_classes=["reference-voff"])
+        self._reference_value = 0.0
+        self._reference_restoring = False
+        self._reference_key: tuple | None = None
+        self.reference_on.param.watch(lambda _e: self.request_reference(), "value")
+        self.reference_vg.param.watch(self._reference_typed, "value")
+        self.reference_voff.on_click(lambda _e: self._reference_at_voff())
+        reference_row = pn.Row(self.reference_on, self.reference_vg, self.reference_unit,
+                               self.reference_voff, margin=0)
         self.plots = pn.Column(
             pn.Row(p["band"], p["spectrum"], p["transmission"],
                    p["transfer"],
                    sizing_mode="stretch_width", margin=0, styles={"flex-wrap": "wrap"}),
             # the plots' own options, in one line between the rows (the rows' figures
             # stretch over their widths: nothing is stacked under a single figure)
-            pn.Row(pn.layout.HSpacer(), self.transfer_axis, sizing_mode="stretch_width",
+            pn.Row(reference_row, pn.layout.HSpacer(), self.transfer_axis,
+                   sizing_mode="stretch_width",
                    margin=0, css_classes=["plot-options"]),
             pn.Row(p["map"], p["output"], p["swing"], sizing_mode="stretch_width", margin=0,
                    styles={"flex-wrap": "wrap"}),
@@ -104,6 +126,79 @@ class ResultsView:
             sizing_mode="stretch_width", margin=(0, 4), css_classes=["sub60-plots"],
             stylesheets=css)
         self.show_metrics(stale=True)
+
+    # ------------------------------------------------------------------ reference bias
+    def _reference_typed(self, event: Any) -> None:
+        if self._reference_restoring:
+            return
+        label = "Reference gate voltage (V)"
+        lo, hi = VG_RANGE_V
+        try:
+            value = parse_number(str(event.new), label, lo, hi)
+        except InputError:
+            try:
+                typed = float(event.new)
+            except (TypeError, ValueError):
+                typed = float("nan")
+            self.messages.set("input", refused_value_message(label, typed, lo, hi,
+                                                             self._reference_value))
+            self._reference_restoring = True  # the box shows the kept value again
+            try:
+                self.reference_vg.value = f"{self._reference_value:g}"
+            finally:
+                self._reference_restoring = False
+            return
+        self.messages.clear("input")
+        self._reference_value = value
+        self.request_reference()
+
+    def _reference_at_voff(self) -> None:
+        """The reference at the design's Voff (the off state), when its curve has one."""
+        tc = self.jobs.present_curve() if self.jobs is not None else None
+        voff = tc.metrics.voff_V.value if tc is not None else None
+        if voff is None:
+            self.messages.set("input", "**Reference gate voltage (V)**: the present transfer "
+                              "curve has no V<sub>off</sub> yet (it does not cross the "
+                              "I<sub>off</sub> target, or it is computing).")
+            return
+        self.reference_vg.value = f"{voff:.3f}"
+        self.reference_on.value = True
+
+    def request_reference(self) -> None:
+        """Solve the reference band diagram of the present design and Vd when it is on and
+        not yet drawn (on the bias worker, after the present band diagram)."""
+        bp = self.jobs.last_bias if self.jobs is not None else None
+        if not self.reference_on.value or bp is None:
+            self._reference_key = None
+            self.figures.band_plot.show_reference(None)
+            return
+        key = (bp.design, self._reference_value, float(bp.vd_V))
+        if key == self._reference_key:
+            return
+        self._reference_key = key
+        self.jobs.submit("bias", self._reference_job, key)
+
+    def _reference_job(self, key: tuple) -> None:
+        design, vg, vd = key
+        jobs = self.jobs
+        try:
+            with jobs.gate.hold(PriorityGate.PINNED):
+                bp = jobs.simulator.solve_bias(design, vg, vd)
+        except (ValueError, SolverError) as exc:
+            jobs.post(self._reference_failed, key, exc)
+            return
+        jobs.post(self._reference_solved, key, bp)
+
+    def _reference_solved(self, key: tuple, bp: Any) -> None:
+        if key == self._reference_key and self.reference_on.value:
+            self.figures.band_plot.show_reference(bp)
+
+    def _reference_failed(self, key: tuple, exc: Exception) -> None:
+        if key == self._reference_key:
+            self._reference_key = None
+            self.figures.band_plot.show_reference(None)
+            self.messages.set("input", "**Reference gate voltage (V)**: not solved ("
+                              + self._failure_message(exc, "reference band diagram") + ")")
 
     # ------------------------------------------------------------------ trade-off
     def _open_tradeoff(self, event: Any) -> None:
@@ -196,6 +291,7 @@ class ResultsView:
     # ------------------------------------------------------------------ bias point
     def bias_solved(self, bp: Any, transmissions: Any = None) -> None:
         self.figures.show_bias(bp, transmissions)
+        self.request_reference()  # the reference follows the design and Vd
         self.messages.clear("bias")
         self.show_notes(getattr(bp, "warnings", ()))
 

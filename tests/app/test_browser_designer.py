@@ -15,7 +15,9 @@ import numpy as np
 import pytest
 from playwright.sync_api import expect
 
-from sub60.physics import FIELD_RANGES
+from sub60.physics import FIELD_RANGES, VG_RANGE_V
+from sub60.physics.design import Design
+from sub60.physics.simulate import Simulator
 from tests.app.conftest import open_app, open_cards
 
 pytestmark = pytest.mark.browser
@@ -210,6 +212,44 @@ def test_ion_ioff_tradeoff_opens_on_demand_and_matches_the_metrics(browser, app_
         page.locator(".pin-button button").click()
         page.wait_for_function("() => sub60.data('tradeoff_pin_0_source').ioff.length > 0",
                                timeout=60_000)
+        assert not errors, errors
+    finally:
+        page.close()
+
+
+def test_reference_band_diagram_with_both_tunnel_windows(browser, app_url):
+    page, _, errors = open_app(browser, app_url)
+    try:
+        assert page.evaluate("() => sub60.data('reference_band_source').x_nm.length") == 0
+        page.locator(".reference-on input").check()
+        _enter(page, "reference-vg", "-0.3")
+        # the reference at Vg = -0.3 V (present bias 0.3 V): the physics' own band edges
+        # (`physics.simulate.Simulator.solve_bias`), and its drain-side (ambipolar) window
+        page.wait_for_function(
+            "() => { const m = sub60.model('reference_window_source'); return m && "
+            "m.data.side.includes('drain side (ambipolar)'); }", timeout=60_000)
+        ref = page.evaluate("() => sub60.data('reference_band_source')")
+        bp = Simulator().solve_bias(Design(), -0.3, 0.3)
+        np.testing.assert_allclose(ref["x_nm"], bp.x_nm, atol=1e-9)
+        np.testing.assert_allclose(ref["ec_eV"], bp.subband_ec_eV, atol=2e-3)
+        np.testing.assert_allclose(ref["ev_eV"], bp.subband_ev_eV, atol=2e-3)
+        # the present band diagram is still the present bias's (source-side window open)
+        present = page.evaluate("() => sub60.data('window_source')")
+        assert "source side" in present["side"]
+        # the title names the reference and its open window
+        title = page.evaluate("() => sub60.model('band_plot').title.text")
+        assert "reference Vg = -0.30 V" in title and "drain" in title, title
+        # an out-of-range reference is refused with a message naming it and its range
+        _enter(page, "reference-vg", "5")
+        page.wait_for_function(f"() => ({ERROR_TEXT})().includes('Reference gate voltage')",
+                               timeout=20_000)
+        low, high = VG_RANGE_V
+        assert f"from {low:g} to {high:g}" in page.evaluate(ERROR_TEXT)
+        # switched off: the reference is taken away
+        page.locator(".reference-on input").uncheck()
+        page.wait_for_function("() => sub60.data('reference_band_source').x_nm.length === 0",
+                               timeout=20_000)
+        assert "reference" not in page.evaluate("() => sub60.model('band_plot').title.text")
         assert not errors, errors
     finally:
         page.close()
