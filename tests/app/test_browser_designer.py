@@ -226,8 +226,9 @@ def test_reference_band_diagram_with_both_tunnel_windows(browser, app_url):
         # the reference at Vg = -0.3 V (present bias 0.3 V): the physics' own band edges
         # (`physics.simulate.Simulator.solve_bias`), and its drain-side (ambipolar) window
         page.wait_for_function(
-            "() => { const m = sub60.model('reference_window_source'); return m && "
-            "m.data.side.includes('drain side (ambipolar)'); }", timeout=60_000)
+            "() => sub60.model('band_plot').title.text.includes('reference Vg = -0.30 V') && "
+            "sub60.data('reference_window_source').side.includes('drain side (ambipolar)')",
+            timeout=60_000)
         ref = page.evaluate("() => sub60.data('reference_band_source')")
         bp = Simulator().solve_bias(Design(), -0.3, 0.3)
         np.testing.assert_allclose(ref["x_nm"], bp.x_nm, atol=1e-9)
