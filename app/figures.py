@@ -7,7 +7,11 @@ gate length, EOT, source doping, drain voltage, temperature) and the model cauti
 - ``spectrum`` band-to-band spectral current J(E) and transmission T(E);
 - ``transfer`` Id-Vg on a log axis, the design and its MOSFET twin (and pinned designs),
   with a reference slope of (ln 10)kT/q per decade;
-- ``output``   Id-Vd, one curve per gate voltage.
+- ``output``   Id-Vd, one curve per gate voltage;
+- ``swing``    point swing against current (the rising branch of each transfer curve),
+  with the thermionic limit and the Ioff target;
+- ``metrics``  the figures of merit of the design, its twin and the pinned designs as a
+  table (the page's metrics strip and comparison, in one figure).
 
 Static figures are exactly `FIGURE_SIZE_PX` pixels (PNG) and scalable (SVG); the same
 plots as one interactive offline page are in `app.figures_page`. This is the export
@@ -18,12 +22,13 @@ snapshot writer or the explorer's UI modules; colours come from `app.theme`.
 from __future__ import annotations
 
 import io
+import re
 from collections.abc import Sequence
 from typing import TYPE_CHECKING
 
 import numpy as np
 
-from sub60.app.theme import PALETTE, output_ramp
+from sub60.app.theme import METRIC_HEADINGS, PALETTE, STRIP_METRICS, format_metric, output_ramp
 from sub60.physics import (
     BiasPoint,
     Design,
@@ -42,7 +47,7 @@ if TYPE_CHECKING:
 FIGURE_SIZE_IN = (8.0, 5.0)
 FIGURE_DPI = 120
 FIGURE_SIZE_PX = (round(FIGURE_SIZE_IN[0] * FIGURE_DPI), round(FIGURE_SIZE_IN[1] * FIGURE_DPI))
-FIGURE_NAMES = ("bands", "spectrum", "transfer", "output")
+FIGURE_NAMES = ("bands", "spectrum", "transfer", "output", "swing", "metrics")
 FORMATS = ("png", "svg")
 
 #: The palette of the explorer (`app.theme.PALETTE`), by its historical name here.
@@ -264,6 +269,106 @@ def output_figure(curves: Sequence[OutputCurve], caption: str) -> Figure:
     return fig
 
 
+#: Lowest current of the swing figure [uA/um] (as the page's swing plot; engineering
+#: choice, no source).
+SWING_FLOOR_UA_PER_UM = 1e-10
+
+
+def rising_swing(c: TransferCurve, ss_top: float = np.inf) -> tuple[np.ndarray, np.ndarray]:
+    """(Id [uA/um], SS [mV/dec]) of a curve's rising branch: the points above its current
+    minimum with Id >= `SWING_FLOOR_UA_PER_UM` and a positive swing; a swing above
+    ``ss_top`` is NaN (a gap, not a spike)."""
+    ids = np.asarray(c.id_uA_per_um, float)
+    ss = np.asarray(c.ss_mV_per_dec, float)
+    ok = np.isfinite(ids) & np.isfinite(ss) & (ss > 0) & (ids >= SWING_FLOOR_UA_PER_UM)
+    if np.isfinite(ids).any():
+        ok &= np.arange(ids.size) > int(np.nanargmin(ids))
+    return ids[ok], np.where(ss[ok] <= ss_top, ss[ok], np.nan)
+
+
+def swing_figure(curves: Sequence[tuple[str, TransferCurve]], caption: str) -> Figure:
+    """Point swing against current (log) of each curve's rising branch, with the
+    thermionic limit (ln 10)kT/q and the Ioff target."""
+    fig, ax = _figure(caption)
+    main = curves[0][1]
+    temperature = main.design.temperature_K
+    limit = thermionic_limit_mV_per_dec(temperature)
+    top = max(200.0, 2.5 * limit)
+    styles = [("-", COLOURS["design"], 2.0), ("--", COLOURS["twin"], 1.8)]
+    styles += [(":", c, 1.6) for c in COLOURS["pinned"]]
+    for (label, c), (ls, colour, lw) in zip(curves, styles, strict=False):
+        ids, ss = rising_swing(c, top)
+        ax.semilogx(ids, ss, linestyle=ls, color=colour, linewidth=lw, marker=".",
+                    markersize=3, label=_safe(label))
+    ax.axhline(limit, color=COLOURS["limit"], linestyle=(0, (1, 2)), linewidth=1.0,
+               label=f"(ln 10)kT/q = {limit:.1f} mV/dec at {temperature:g} K")
+    m = main.metrics
+    ax.axvline(m.ioff_target_uA_per_um, color=COLOURS["junction"], linewidth=0.8,
+               label=f"Ioff target {m.ioff_target_uA_per_um:.3g} \u00b5A/\u00b5m")
+    ax.set_ylim(0, top)
+    ax.set_xlabel("drain current Id (\u00b5A/\u00b5m)")
+    ax.set_ylabel("point swing SS (mV/dec)")
+    ax.set_title(f"Point swing against current at Vd = {main.vd_V:g} V", fontsize=10)
+    ax.legend(fontsize=7, loc="upper left", framealpha=0.9)
+    return fig
+
+
+def plain_heading(name: str) -> str:
+    """A metric's column heading without markup (SS<sub>min</sub> -> SSmin)."""
+    return re.sub(r"<[^>]+>", "", METRIC_HEADINGS[name])
+
+
+def metrics_rows(curves: Sequence[tuple[str, TransferCurve]]
+                 ) -> tuple[list[str], list[tuple[str, list[str]]]]:
+    """The figures of merit as text: (column headings, [(row label, cells)]), with the
+    page's number formats (`app.theme.format_metric`); a missing value is '—'."""
+    heads = [plain_heading(n) + (" (target)" if n == "ioff_uA_per_um" else "")
+             for n in STRIP_METRICS]
+    rows = []
+    for label, c in curves:
+        cells = []
+        for name in STRIP_METRICS:
+            v = getattr(c.metrics, name).value
+            cells.append("—" if v is None else format_metric(name, v))
+        rows.append((label, cells))
+    return heads, rows
+
+
+def metrics_figure(curves: Sequence[tuple[str, TransferCurve]], caption: str) -> Figure:
+    """The figures of merit of each curve as a table, with the settings they are taken at
+    (Ioff target, Vdd, the thermionic limit)."""
+    fig, _ = _figure(caption)
+    fig.axes[0].remove()
+    ax = fig.add_axes((0.02, 0.22, 0.96, 0.70))  # the table takes the whole width
+    ax.axis("off")
+    heads, rows = metrics_rows(curves)
+    text = [[_safe(label), *(_safe(c) for c in cells)] for label, cells in rows]
+    n = len(heads)
+    first = 0.25  # width of the label column [axes fraction]
+    table = ax.table(cellText=text, colLabels=["", *heads], loc="upper center",
+                     cellLoc="center", colWidths=[first] + [(1 - first) / n] * n,
+                     bbox=(0.0, 0.3, 1.0, 0.62))
+    table.auto_set_font_size(False)
+    table.set_fontsize(8)
+    for (row, col), cell in table.get_celld().items():
+        cell.set_edgecolor(COLOURS["frame"])
+        if row == 0:
+            cell.set_text_props(weight="bold")
+        if col == 0:
+            cell.set_text_props(ha="left", weight="bold")
+            cell.PAD = 0.02
+    main = curves[0][1]
+    m = main.metrics
+    limit = thermionic_limit_mV_per_dec(main.design.temperature_K)
+    ax.text(0.0, 0.12, f"Ion at Vg = Voff + {m.vdd_V:g} V; Voff where Id = the Ioff target "
+            f"{m.ioff_target_uA_per_um:.3g} \u00b5A/\u00b5m; thermionic limit (ln 10)kT/q = "
+            f"{limit:.1f} mV/dec at {main.design.temperature_K:g} K; — = not defined for "
+            "that curve.", fontsize=7.5, transform=ax.transAxes, color=COLOURS["text"],
+            wrap=True)
+    ax.set_title(f"Figures of merit at Vd = {main.vd_V:g} V", fontsize=10)
+    return fig
+
+
 def labelled_curves(results: SnapshotResults) -> list[tuple[str, TransferCurve]]:
     """The transfer curves of a snapshot with their legend labels: design, twin, pins."""
     s = results.settings
@@ -275,7 +380,8 @@ def labelled_curves(results: SnapshotResults) -> list[tuple[str, TransferCurve]]
 
 
 def figures_of(results: SnapshotResults) -> dict[str, Figure]:
-    """The four matplotlib figures of a snapshot, by name (`FIGURE_NAMES`)."""
+    """The matplotlib figures of a snapshot, by name (`FIGURE_NAMES`; no output figure
+    without output curves)."""
     s = results.settings
     bp = results.bias_point
     v = s.sub60_version
@@ -285,6 +391,10 @@ def figures_of(results: SnapshotResults) -> dict[str, Figure]:
         "transfer": transfer_figure(labelled_curves(results),
                                     caption_text(s.design, s.transfer_sweep.vd_V, None, v)),
     }
+    curves = labelled_curves(results)
+    sweep_caption = caption_text(s.design, s.transfer_sweep.vd_V, None, v)
+    out["swing"] = swing_figure(curves, sweep_caption)
+    out["metrics"] = metrics_figure(curves, sweep_caption)
     if results.output:
         out["output"] = output_figure(
             results.output, caption_text(s.design, float(results.output[0].vd_V[-1]),

@@ -1,9 +1,10 @@
-"""The offline page of a snapshot: its plots, interactive, in one HTML file.
+"""The offline page of a snapshot: the figures of merit as a table and its plots,
+interactive, in one HTML file.
 
-The band diagram, the tunnelling spectrum, the transfer and output curves, and the
-transmission T(E, k = 0) of the main subband pair by WKB and by the exact two-band
-solver side by side, as the explorer's Transmission plot draws them
-(`physics.compare_transmissions`).
+The band diagram, the tunnelling spectrum, the transfer and output curves, the point
+swing against current, and the transmission T(E, k = 0) of the main subband pair by WKB
+and by the exact two-band solver side by side, as the explorer's Transmission plot draws
+them (`physics.compare_transmissions`).
 
 `bokeh.embed.file_html` with the Bokeh library inlined, so the page opens without a
 network. Export-figures layer, beside `app.figures` (captions, curve labels and the
@@ -18,7 +19,14 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from sub60.app.figures import caption_text, labelled_curves, positive_only, reference_anchor
+from sub60.app.figures import (
+    caption_text,
+    labelled_curves,
+    metrics_rows,
+    positive_only,
+    reference_anchor,
+    rising_swing,
+)
 from sub60.app.theme import PALETTE as COLOURS
 from sub60.app.theme import output_ramp
 from sub60.physics import compare_transmissions, thermionic_limit_mV_per_dec
@@ -28,7 +36,8 @@ if TYPE_CHECKING:
 
 
 def interactive_page(results: SnapshotResults) -> str:
-    """One standalone HTML page of the four plots; Bokeh inlined, no network needed."""
+    """One standalone HTML page: the figures-of-merit table and the five plots; Bokeh
+    inlined, no network needed."""
     from bokeh.embed import file_html
     from bokeh.layouts import column, gridplot
     from bokeh.models import BoxAnnotation, Div, HoverTool, Span
@@ -101,8 +110,24 @@ def interactive_page(results: SnapshotResults) -> str:
     if results.output:
         out.legend.location = "top_left"
 
+    limit = thermionic_limit_mV_per_dec(d.temperature_K)
+    top = max(200.0, 2.5 * limit)
+    swing = figure(title=f"Point swing against current at Vd = {s.transfer_sweep.vd_V:g} V",
+                   x_axis_label="Id (µA/µm)", y_axis_label="SS (mV/dec)", x_axis_type="log",
+                   y_range=(0, top), **size)
+    for (label, c), colour, dash in zip(curves, colours, dashes, strict=False):
+        ids, ss = rising_swing(c, top)
+        if ids.size:
+            swing.line(ids, ss, color=colour, line_dash=dash, line_width=2, legend_label=label)
+    swing.add_layout(Span(location=limit, dimension="width", line_color=COLOURS["limit"],
+                          line_dash="dotted", line_width=1.5))
+    swing.add_layout(Span(location=m.ioff_target_uA_per_um, dimension="height",
+                          line_color=COLOURS["junction"], line_width=1))
+    if swing.legend:
+        swing.legend.location = "top_left"
+
     tfig = transmission_figure(results, size)
-    for p in (bands, spec, trans, out, tfig):
+    for p in (bands, spec, trans, out, tfig, swing):
         p.add_tools(HoverTool(tooltips=[("x", "$x{0.000}"), ("y", "$y{0.000e}")]))
         p.legend.label_text_font_size = "8pt"
         p.legend.click_policy = "hide"
@@ -113,8 +138,22 @@ def interactive_page(results: SnapshotResults) -> str:
                        f"{html.escape(caption[1])}</p>"
                        f"<p><b>Caution:</b> {html.escape(caption[2])}. Created "
                        f"{html.escape(str(s.created_utc))}.</p>"), width=1140)
-    page = column(header, gridplot([[bands, spec], [trans, out], [tfig, None]],
-                                   toolbar_location="right"))
+    heads, rows = metrics_rows(curves)
+    th = "".join(f"<th style='padding:2px 10px'>{html.escape(h)}</th>" for h in heads)
+    trs = "".join(
+        f"<tr><th style='text-align:left;padding:2px 10px'>{html.escape(label)}</th>"
+        + "".join(f"<td style='padding:2px 10px;text-align:right'>{html.escape(c)}</td>"
+                  for c in cells) + "</tr>" for label, cells in rows)
+    table = Div(text=(
+        f"<h3>Figures of merit at Vd = {s.transfer_sweep.vd_V:g} V</h3>"
+        f"<table class='metrics' style='border-collapse:collapse;font-size:13px'>"
+        f"<tr><th></th>{th}</tr>{trs}</table>"
+        f"<p style='font-size:12px'>Ion at Vg = Voff + {m.vdd_V:g} V; Voff where Id = the Ioff "
+        f"target {m.ioff_target_uA_per_um:.3g} µA/µm; thermionic limit (ln 10)kT/q = "
+        f"{limit:.1f} mV/dec at {d.temperature_K:g} K; — = not defined for that curve.</p>"),
+        width=1140)
+    page = column(header, table, gridplot([[bands, spec], [trans, out], [tfig, swing]],
+                                          toolbar_location="right"))
     return file_html(page, INLINE, title="sub60 snapshot")
 
 

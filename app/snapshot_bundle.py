@@ -105,8 +105,10 @@ def readme_text(settings: SnapshotSettings, members: list[str]) -> str:
     lines += [
         "figures/*.png, .svg static figures: band diagram with the tunnel window shaded,",
         "                    spectrum, transfer curves with the (ln 10)kT/q reference, output",
-        "                    curves; each caption states the key settings.",
-        "plots.html          the same plots, interactive; opens offline in a browser.",
+        "                    curves, point swing against current, and the figures of merit",
+        "                    as a table; each caption states the key settings.",
+        "plots.html          the figures of merit and the same plots, interactive; opens",
+        "                    offline in a browser.",
         "",
         "Voltages [V], energies [eV] with the source Fermi level at 0 eV, currents per",
         "micrometre of width [uA/um].",

@@ -254,3 +254,41 @@ def test_reference_band_diagram_with_both_tunnel_windows(browser, app_url):
         assert not errors, errors
     finally:
         page.close()
+
+
+def test_snapshot_page_and_figures_carry_the_metrics_and_the_swing(browser, tmp_path):
+    import io
+    import json
+    import zipfile
+
+    from sub60.app import figures
+    from sub60.app.snapshot_bundle import export_snapshot
+    from sub60.app.theme import format_metric
+    from tests.app.test_snapshot import small_settings
+
+    data = export_snapshot(small_settings(), created_utc="2024-05-01T12:00:00Z")
+    with zipfile.ZipFile(io.BytesIO(data)) as zf:
+        names = set(zf.namelist())
+        (tmp_path / "plots.html").write_bytes(zf.read("plots.html"))
+        settings = zf.read("settings.json").decode()
+    assert {"figures/swing.png", "figures/metrics.png", "figures/swing.svg",
+            "figures/metrics.svg"} <= names
+    assert {"swing", "metrics"} <= set(figures.FIGURE_NAMES)
+    page = browser.new_page()
+    errors: list[str] = []
+    page.on("pageerror", lambda e: errors.append(str(e)))
+    try:
+        page.goto((tmp_path / "plots.html").as_uri())
+        page.wait_for_function("() => window.Bokeh && Bokeh.documents.length > 0")
+        table = page.locator("table.metrics")
+        expect(table).to_contain_text("SSmin")
+        expect(table).to_contain_text("pinned: thin oxide")
+        # the stored SSmin of the design (settings.json) in the page's number format
+        stored = json.loads(settings)["stored"]["design"]["metrics"]["ss_min_mV_per_dec"]
+        expect(table).to_contain_text(format_metric("ss_min_mV_per_dec", stored))
+        titles = page.evaluate("() => [...Bokeh.documents[0]._all_models.values()]"
+                               ".filter(m => m.type === 'Title').map(t => t.text)")
+        assert any(t.startswith("Point swing against current") for t in titles), titles
+        assert not errors, errors
+    finally:
+        page.close()

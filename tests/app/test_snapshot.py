@@ -166,7 +166,7 @@ def test_a_changed_stored_metric_is_reported(exported):
 # ---------------------------------------------------------------------- contents
 EXPECTED_MEMBERS = [
     "settings.json", "README.txt", "bands.csv",
-    *(f"figures/{n}.{f}" for n in ("bands", "output", "spectrum", "transfer")
+    *(f"figures/{n}.{f}" for n in ("bands", "metrics", "output", "spectrum", "swing", "transfer")
       for f in ("png", "svg")),
     "output.csv", "pinned.csv", "plots.html", "spectrum.csv", "transfer.csv",
 ]
@@ -378,7 +378,7 @@ def test_presets_fall_back_gracefully(monkeypatch, tmp_path):
 def test_offline_page_renders_with_the_network_blocked(exported, tmp_path, browser):
     """plots.html opened from disk in headless Chromium (the shared session browser of
     tests/app/conftest.py): every request other than the file itself is blocked and
-    recorded; the five plots must appear without any."""
+    recorded; the six plots must appear without any."""
     page_file = tmp_path / "plots.html"
     page_file.write_bytes(members(exported[1])["plots.html"])
     requests, errors = [], []
@@ -401,5 +401,6 @@ def test_offline_page_renders_with_the_network_blocked(exported, tmp_path, brows
     finally:
         page.close()
     assert requests == [] and errors == []
-    assert len(titles) == 5 and any(t.startswith("Band diagram") for t in titles)
+    assert len(titles) == 6 and any(t.startswith("Band diagram") for t in titles)
     assert any(t.startswith("Transmission") for t in titles)
+    assert any(t.startswith("Point swing against current") for t in titles)
