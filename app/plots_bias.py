@@ -270,7 +270,7 @@ class BandPlot:
                    2: "both windows open"}[len(sides)]
         # named in the title (the legend below the plot is laid out once, when the page
         # opens)
-        self.figure.title.text = (f"Band diagram · grey dotted: reference Vg = "
+        self.figure.title.text = (f"Band diagram · grey: reference Vg = "
                                   f"{bp.vg_V + 0.0:.2f} V, {windows}")
         self.reference_extent = (min(float(np.nanmin(ev)), bp.efs_eV, bp.efd_eV),
                                  max(float(np.nanmax(ec)), bp.efs_eV, bp.efd_eV))
