@@ -115,8 +115,25 @@ for (const pane of [page, header, metrics, status]) {
   pane.css_classes = on ? [...rest, 'presenting'] : rest;
 }
 """
-#: The page row's own stylesheet: in presentation the controls are not shown.
-PAGE_CSS = ":host(.presenting) .sub60-sidebar { display: none !important; }"
+#: The page row's own stylesheet: in presentation the controls are not shown and the
+#: figures' rows take their heights from the window's (CSS variables inherited by every
+#: figure below: `ExplorerFigures.DESK_ROW_HEIGHTS` at the desk). A window under 900 px
+#: tall (1280x720) shows the first row under the header, what-if row and metrics, and the
+#: second row a screen of its own under the what-if row when scrolled; a taller one
+#: (1920x1080) shows both rows on the first screen.
+PAGE_CSS = """
+:host(.presenting) .sub60-sidebar { display: none !important; }
+:host(.presenting) {
+  --sub60-row1-h: max(300px, calc(100vh - 366px));
+  --sub60-row2-h: max(300px, calc(100vh - 75px));
+}
+@media (min-height: 900px) {
+  :host(.presenting) {
+    --sub60-row1-h: max(300px, calc((100vh - 350px) / 2));
+    --sub60-row2-h: max(300px, calc((100vh - 350px) / 2));
+  }
+}
+"""
 
 
 class Explorer(pn.viewable.Viewer):

@@ -18,6 +18,9 @@ import param
 
 from sub60.app.state import ExplorerState, label_of, plain_words
 
+#: The caution in one line, shown instead of `CAUTION` in presentation (style.css).
+CAUTION_SHORT = ("Design-exploration model with stated approximations (see the desk view) "
+                 "— not calibrated TCAD.")
 CAUTION = ("Design-exploration model with stated approximations (semiclassical charge with "
            "confinement-shifted band edges or, as chosen, from the 2D subbands, two-band "
            "tunnelling by WKB or exact transmission, "
@@ -145,7 +148,8 @@ def header_html(state: ExplorerState) -> str:
         summary = "invalid design — see the message below"
     return (f'<div class="title">{TITLE}</div>'
             f'<div class="summary">{summary}</div>'
-            f'<div class="caution">{CAUTION}</div>')
+            f'<div class="caution">{CAUTION}</div>'
+            f'<div class="caution short">{CAUTION_SHORT}</div>')
 
 
 def eot_html(state: ExplorerState) -> str:

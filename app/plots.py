@@ -75,10 +75,24 @@ class ExplorerFigures:
     ``band_source``, ``transfer_sources``, ``pin_legends`` ...).
     """
 
-    #: Plot-frame heights [px]: the band diagram, J(E) and T(E) share one frame height
-    #: (common energy axis). Widths follow the window (`_size_and_fonts`).
+    #: Rows of the figures: the band diagram, J(E), T(E) and the transfer curve on the
+    #: first, the map, output and swing on the second.
+    ROWS = {"band": 1, "spectrum": 1, "transmission": 1, "transfer": 1,
+            "map": 2, "output": 2, "swing": 2}
+    #: Plot-frame heights at the desk [px]: the band diagram, J(E) and T(E) share one frame
+    #: height (common energy axis).
     FRAME_HEIGHTS = {"band": 345, "spectrum": 345, "transmission": 345, "transfer": 345,
                      "map": 195, "output": 195, "swing": 195}
+    #: Bottom border of every figure of a row [px] (its x axis and the legend below: the
+    #: largest of the row fits; one border for the whole row gives its figures one frame
+    #: height, the energy axis of the band diagram, J(E) and T(E) included).
+    ROW_BORDER_BOTTOM = {1: 118, 2: 116}
+    TITLE_HEIGHT = 27  # the title's band above the frames [px] (15 px font)
+    #: The figures' heights [px] are those of their rows, CSS variables set on the page
+    #: (``--sub60-row1-h``, ``--sub60-row2-h``: `app.layout.PAGE_CSS`): at the desk these
+    #: heights (the frame heights above), in presentation the window's height shared out.
+    DESK_ROW_HEIGHTS = {1: TITLE_HEIGHT + FRAME_HEIGHTS["band"] + ROW_BORDER_BOTTOM[1],
+                        2: TITLE_HEIGHT + FRAME_HEIGHTS["map"] + ROW_BORDER_BOTTOM[2]}
     #: Share of its row's width of each figure [-] (rows: band, J(E), T(E), transfer; map,
     #: output, swing; each row's shares add up to 1132, so the band diagram and the 2D map
     #: under it get the same width and, with the same borders, the same frame: common x
@@ -219,18 +233,23 @@ class ExplorerFigures:
     # ------------------------------------------------------------------ sizes
     def _size_and_fonts(self) -> None:
         """Sizes, borders and fonts of every figure. Each figure stretches over its share of
-        its row (`WIDTH_SHARES`, as CSS flex-grow with a zero basis) at a fixed frame
-        height: the browser lays the figures out again when the window or the page changes
-        (the presentation mode hides the controls; no figure property changes then, and
-        one reflow of the page resizes them all)."""
+        its row (`WIDTH_SHARES`, as CSS flex-grow with a zero basis) and over its row's
+        height, a CSS variable of the page (`DESK_ROW_HEIGHTS`; in presentation the
+        window's height shared out, `app.layout.PAGE_CSS`): the browser lays the figures
+        out again when the window or the page changes (the presentation mode hides the
+        controls and sets the heights by a class of the page; no figure property changes
+        then, and one reflow of the page resizes them all)."""
         for key, fig in self.figures.items():
-            fig.frame_width, fig.width = None, None
-            fig.frame_height = self.FRAME_HEIGHTS[key]
+            row = self.ROWS[key]
+            fig.frame_width, fig.width, fig.frame_height = None, None, None
+            fig.height = self.DESK_ROW_HEIGHTS[row]  # the layout's; CSS sets the drawn one
             fig.sizing_mode = "stretch_width"
             # CSS only (a model min_width would be summed by Panel into the page's own
             # minimum width, the hidden sidebar's included, and the page would overflow)
             fig.styles = {"flex": f"{self.WIDTH_SHARES[key]} 1 0px",
-                          "min-width": f"{self.MIN_WIDTHS[key]}px"}
+                          "min-width": f"{self.MIN_WIDTHS[key]}px",
+                          "height": f"var(--sub60-row{row}-h, {self.DESK_ROW_HEIGHTS[row]}px)"}
+            fig.min_border_bottom = self.ROW_BORDER_BOTTOM[row]
             fig.min_border_left = self.LEFT_BORDER.get(key, 58)
             fig.min_border_right = 12
             fig.title.text_font_size = PLOT_FONTS["title"]
@@ -243,8 +262,15 @@ class ExplorerFigures:
                 if not str(leg.name or "").startswith("pin_"):  # pinned: a small inset
                     leg.label_text_font_size = PLOT_FONTS["legend"]
         for lab in (*self.band_plot.labels, *self.spectrum_plots.labels,
-                    self.swing_limit_label, self.transfer_plot.ioff_label):
+                    self.swing_limit_label):
             lab.text_font_size = PLOT_FONTS["label"]
+        # drawn on the canvas (no stylesheet reaches them): sized for a projector in both
+        # looks, the Ioff target's label as large as the axis labels, the map's colour bar
+        # thicker with its labels at the ticks' size
+        ioff = self.transfer_plot.ioff_label
+        ioff.text_font_size = PLOT_FONTS["axis_label"]
+        ioff.text_font_style = "bold"
         bar = self.map_plot.colour_bar
-        bar.title_text_font_size = PLOT_FONTS["label"]
-        bar.major_label_text_font_size = PLOT_FONTS["small"]
+        bar.height = 14
+        bar.title_text_font_size = PLOT_FONTS["axis_label"]
+        bar.major_label_text_font_size = PLOT_FONTS["tick"]

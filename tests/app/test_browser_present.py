@@ -52,8 +52,9 @@ BOXES_JS = """(names) => names.map((name) => {
   parts.push({what: 'title text', x0: tv.bbox.x0,
               x1: tv.bbox.x0 + t.offset + ctx.measureText(t.text).width, y0: tv.bbox.y0,
               y1: tv.bbox.y1});
-  return {name, left: r.left, right: r.right, width: view.bbox.width,
-          height: view.bbox.height, parts};
+  return {name, left: r.left, right: r.right, top: r.top, bottom: r.bottom,
+          width: view.bbox.width, height: view.bbox.height,
+          frame_height: view.frame.bbox.height, parts};
 })"""
 
 #: Resolves once every figure's width has stayed the same over three frames.
@@ -69,6 +70,26 @@ SETTLED_JS = """async (names) => {
   }
   return same >= 3;
 }"""
+
+
+#: The figures wholly in view on the first screen in presentation, by window height: at
+#: 720 px the first row (the second, a window's height tall, is reached by scrolling), at
+#: 1080 px both rows.
+FIRST_SCREEN = {720: FIGURES[:4], 1080: FIGURES}
+#: The frame heights at the desk (1600x1000) [px], as they were before the figures' heights
+#: followed their rows (`ExplorerFigures.FRAME_HEIGHTS`).
+DESK_FRAMES = {"band_plot": 345, "spectrum_plot": 345, "transmission_plot": 345,
+               "transfer_plot": 345, "map_plot": 195, "output_plot": 195, "swing_plot": 195}
+
+
+def _in_view(page, names, top: float, height: int) -> list[dict]:
+    """Every named figure lies between ``top`` and the window's bottom edge (its whole box,
+    so its title, frame, axes and legend, which stay inside it: `_check_layout`)."""
+    boxes = page.evaluate(BOXES_JS, list(names))
+    for b in boxes:
+        assert b["top"] >= top - 0.5 and b["bottom"] <= height + 0.5, (b["name"], b["top"],
+                                                                         b["bottom"], height)
+    return boxes
 
 
 def _shot_dir(tmp_path: Path) -> Path:
@@ -104,6 +125,14 @@ def test_presentation_fills_the_window_and_takes_a_typed_vg(browser, app_url, tm
     shots = _shot_dir(tmp_path)
     page, _, errors = open_app(browser, app_url)
     try:
+        page.set_viewport_size({"width": 1600, "height": 1000})
+        _settle(page)
+        # the desk view keeps its frames (one height per row: common energy axis of the band
+        # diagram, J(E) and T(E)) and its figures inside their canvases
+        desk = page.evaluate(BOXES_JS, list(FIGURES))
+        for b in desk:
+            assert abs(b["frame_height"] - DESK_FRAMES[b["name"]]) <= 3, b
+        _check_layout(page, 1600)
         page.set_viewport_size({"width": width, "height": height})
         _settle(page)
         page.screenshot(path=str(shots / f"desk-{width}x{height}.png"))
@@ -117,6 +146,12 @@ def test_presentation_fills_the_window_and_takes_a_typed_vg(browser, app_url, tm
         page.screenshot(path=str(shots / f"presentation-{width}x{height}-page.png"),
                         full_page=True)
         _check_layout(page, width)
+        # the figures fill the screen: those of the first screen are wholly in view, as
+        # tall as the window leaves them (frames of at least 200 px, no empty band below)
+        first = FIRST_SCREEN[height]
+        boxes = _in_view(page, first, 0, height)
+        assert min(b["frame_height"] for b in boxes) >= 200, boxes
+        assert height - max(b["bottom"] for b in boxes) < 40  # no empty band below
         # the figures took the controls' place: the first starts at the window's left edge
         assert page.evaluate("() => Bokeh.index.find_one(sub60.model('band_plot'))"
                              ".el.getBoundingClientRect().left") < 12
