@@ -16,8 +16,8 @@ thread) and stops it at the end. In headless Chromium it then
 
 3. clicks "Presentation mode" on and off and times, from just before the click, until the
    controls are hidden (shown), the header has its presentation class, and every figure's
-   drawn width has stayed the same over three animation frames (the time is that of the
-   first of those frames);
+   drawn width and height have stayed the same over three animation frames (the time is
+   that of the first of those frames);
 4. opens the page afresh (new browser page, new session) and times until the first
    band diagram, both transfer curves with their metrics, and the output curves are
    complete (`open_app`), with the server's CPU seconds per open.
@@ -56,13 +56,15 @@ window.sub60bench = {
       step();
     });
   },
-  widths() {                         // every live figure's drawn width [px]
+  widths() {                         // every live figure's drawn width and height [px]
     return ['band_plot', 'spectrum_plot', 'transmission_plot', 'transfer_plot', 'map_plot',
-            'output_plot', 'swing_plot'].map(n => Bokeh.index.find_one(sub60.model(n)).bbox.width);
+            'output_plot', 'swing_plot'].map(n => {
+      const b = Bokeh.index.find_one(sub60.model(n)).bbox; return [b.width, b.height]; });
   },
   async looks(on) {                  // resolves at the first frame of the toggle's settled
-    // looks: controls hidden or shown, header class, and every figure's width unchanged
-    // over three frames (figures that follow the window are re-laid out by the browser)
+    // looks: controls hidden or shown, header class, and every figure's width and height
+    // unchanged over three frames (figures that follow the window are re-laid out by the
+    // browser)
     await this.poll(() => (on ? sub60.presenting() : sub60.desk()));
     let t = await this.frame();
     let last = JSON.stringify(this.widths());

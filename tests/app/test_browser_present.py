@@ -57,11 +57,11 @@ BOXES_JS = """(names) => names.map((name) => {
           frame_height: view.frame.bbox.height, parts};
 })"""
 
-#: Resolves once every figure's width has stayed the same over three frames.
+#: Resolves once every figure's width and height have stayed the same over three frames.
 SETTLED_JS = """async (names) => {
   const frame = () => new Promise((r) => requestAnimationFrame(r));
-  const widths = () => JSON.stringify(names.map(
-    (n) => Bokeh.index.find_one(sub60.model(n)).bbox.width));
+  const widths = () => JSON.stringify(names.map((n) => {
+    const b = Bokeh.index.find_one(sub60.model(n)).bbox; return [b.width, b.height]; }));
   let last = widths(); let same = 0;
   for (let k = 0; k < 600 && same < 3; k++) {
     await frame();

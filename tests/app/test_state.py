@@ -15,6 +15,7 @@ import pytest
 import scipy.constants as sc
 
 from sub60.app.layout import CAUTION, Explorer
+from sub60.app.messages import CAUTION_SHORT
 from sub60.app.plots import format_current, metrics_html, uniform_map, window_outline
 from sub60.app.server import allowed_origins, is_loopback, loopback_warning
 from sub60.app.state import (
@@ -230,13 +231,15 @@ def test_presentation_mode_hides_controls_and_leaves_the_figures_alone(explorer)
     figure property changes (each change of a figure's size re-laid the page out)."""
     e = _fresh()
     f = e.figures
-    before = {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
+    before = {k: (fig.frame_width, fig.frame_height, fig.height, fig.sizing_mode,
+                  dict(fig.styles), fig.title.text_font_size)
               for k, fig in f.figures.items()}
     e.state.presentation = True
     assert e.presenting  # the page's class hides the sidebar (its stylesheet)
     assert all("presenting" in p.css_classes
                for p in (e.header, e.results.metrics, e.results.status))
-    assert {k: (fig.frame_width, fig.frame_height, fig.title.text_font_size)
+    assert {k: (fig.frame_width, fig.frame_height, fig.height, fig.sizing_mode,
+                dict(fig.styles), fig.title.text_font_size)
             for k, fig in f.figures.items()} == before
     e.state.presentation = False
     assert not e.presenting and "presenting" not in e.header.css_classes
@@ -245,6 +248,8 @@ def test_presentation_mode_hides_controls_and_leaves_the_figures_alone(explorer)
 def test_caution_and_metrics_are_in_the_page(explorer):
     assert "not calibrated TCAD" in CAUTION
     assert CAUTION in explorer.header.object
+    # its one-line form, shown instead in presentation (style.css), says the same at the end
+    assert CAUTION_SHORT.endswith("not calibrated TCAD.") and CAUTION_SHORT in explorer.header.object
     assert "SS<sub>min</sub>" in explorer.metrics.object
 
 
