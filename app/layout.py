@@ -120,7 +120,7 @@ for (const pane of [page, header, metrics, status]) {
 #: figure below: `ExplorerFigures.DESK_ROW_HEIGHTS` at the desk). A window under 900 px
 #: tall (1280x720) shows the first row under the header, what-if row and metrics, and the
 #: second row a screen of its own under the what-if row when scrolled; a taller one
-#: (1920x1080) shows both rows on the first screen.
+#: (1920x1080) shows both rows, and the plot options between them, on the first screen.
 PAGE_CSS = """
 :host(.presenting) .sub60-sidebar { display: none !important; }
 :host(.presenting) {
@@ -129,8 +129,8 @@ PAGE_CSS = """
 }
 @media (min-height: 900px) {
   :host(.presenting) {
-    --sub60-row1-h: max(300px, calc((100vh - 350px) / 2));
-    --sub60-row2-h: max(300px, calc((100vh - 350px) / 2));
+    --sub60-row1-h: max(300px, calc((100vh - 385px) / 2));
+    --sub60-row2-h: max(300px, calc((100vh - 385px) / 2));
   }
 }
 """
