@@ -32,12 +32,12 @@ from pathlib import Path
 from typing import Any
 
 from sub60.app.sweep_engine import (
-    LOCAL_CLUSTER_OPTIONS,
     METRICS,
     Progress,
     SweepResult,
     evaluate_design,
     evaluate_design_in_background,
+    local_cluster,
     run_sweep,
     sensitivity,
 )
@@ -224,7 +224,7 @@ class SweepSession:
                     workers: int | None,
                     on_start: Callable[[str], None] | None) -> tuple[Any, Callable[..., Any]]:
         """The client of the target (made once, kept for the next runs), and the task."""
-        from distributed import Client, LocalCluster
+        from distributed import Client
 
         target: tuple[str, Any] = (("scheduler", check_scheduler_address(scheduler)) if scheduler
                                    else ("local", check_local_workers(
@@ -245,8 +245,7 @@ class SweepSession:
                                    "local clusters already; wait until one is closed, or give a "
                                    "Dask scheduler address")
             try:
-                cluster = LocalCluster(n_workers=target[1], threads_per_worker=1, processes=True,
-                                       **LOCAL_CLUSTER_OPTIONS)
+                cluster = local_cluster(target[1])
             except BaseException:
                 _local_clusters.release()
                 raise

@@ -19,7 +19,8 @@ Prints, from one run (medians over the repeats; 1- and 2-worker runs interleaved
   cores, overhead <= 5 % of a task), with the load average before and after: on a shared
   machine the figures are loaded, and the CPU share tells by how much.
 
-Every sweep writes into a fresh temporary folder (no cache hits). Worker start-up (process
+Every sweep writes into a fresh temporary folder (no cache hits), on a cluster of its own
+started with the engine's settings (only one cluster runs at a time). Worker start-up (process
 spawn, imports, the compiled kernels' first call) is excluded by a warm-up task per worker
 and reported separately. The machine may be shared: the figures are then noisy.
 """
@@ -50,14 +51,13 @@ def _spec(n_body: int, n_wf: int, vg_points: int):
 
 
 def _cluster(n: int):
-    from distributed import Client, LocalCluster
+    from distributed import Client
 
-    from sub60.app.sweep_engine import LOCAL_CLUSTER_OPTIONS, evaluate_design, model_version, task_inputs
+    from sub60.app.sweep_engine import evaluate_design, local_cluster, model_version, task_inputs
     from sub60.physics import Design
 
     t0 = time.perf_counter()
-    cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
-                           **LOCAL_CLUSTER_OPTIONS)
+    cluster = local_cluster(n)  # the engine's own settings (`LOCAL_CLUSTER_CONFIG`)
     client = Client(cluster)
     started = time.perf_counter() - t0
     warm = task_inputs(Design(), _spec(2, 2, 5), model_version())
@@ -103,20 +103,31 @@ def main() -> None:
     print(f"cores: {os.cpu_count()}, load average before: {load_before:.2f}"
           + (" (quick run)" if a.quick else ""))
     spec = _spec(a.designs // 2, 2, a.vg_points)
-    c1, cl1, s1, w1 = _cluster(1)
-    c2, cl2, s2, w2 = _cluster(2)
-    print(f"cluster start: 1 worker {s1:.1f} s (+ warm-up {w1 - s1:.1f} s), "
-          f"2 workers {s2:.1f} s (+ warm-up {w2 - s2:.1f} s)")
+    # one cluster at a time: an idle second cluster would take CPU from the measured one
+    starts: dict[int, list[float]] = {1: [], 2: []}
+    warms: dict[int, list[float]] = {1: [], 2: []}
     walls: dict[int, list[float]] = {1: [], 2: []}
     tasks: dict[int, list[float]] = {1: [], 2: []}
     failed = 0
+    c2 = cl2 = None
     try:
         for _ in range(a.repeats):
-            for n, client in ((1, cl1), (2, cl2)):
-                wall, comp, f = _sweep(client, spec)
+            for n in (1, 2):
+                c, cl, s, w = _cluster(n)
+                starts[n].append(s)
+                warms[n].append(w - s)
+                try:
+                    wall, comp, f = _sweep(cl, spec)
+                finally:
+                    cl.close()
+                    c.close()
                 walls[n].append(wall)
                 tasks[n].extend(comp)
                 failed += f
+        print("cluster start (medians): " + ", ".join(
+            f"{n} worker{'s' if n > 1 else ''} {statistics.median(starts[n]):.1f} s (+ warm-up "
+            f"{statistics.median(warms[n]):.1f} s)" for n in (1, 2)))
+        c2, cl2, _, _ = _cluster(2)
         n_d = spec.size()
         rate = {n: n_d / statistics.median(w) for n, w in walls.items()}
         print(f"\nscaling sweep: {n_d} designs, {a.vg_points} gate voltages each, {a.repeats} "
@@ -177,7 +188,8 @@ def main() -> None:
         print(f"\nestimate, {n:,} designs on {w} workers: {n:,} x ({per_task:.3f} s task + "
               f"{max(over2, 0) * 1e3:.1f} ms overhead) / {w} = {est / 60:.1f} min "
               f"(scheduler floor {n:,} x {rt * 1e3:.2f} ms = {floor / 60:.1f} min; "
-              f"cluster start and the per-worker warm-up of ~{w1 - s1:.0f} s not included)")
+              f"cluster start and the per-worker warm-up of "
+              f"~{statistics.median(warms[1]):.0f} s not included)")
 
         load_after = os.getloadavg()[0]
         ratio = rate[2] / rate[1]
@@ -199,9 +211,9 @@ def main() -> None:
                                           if max(load_before, load_after) > (os.cpu_count() or 1)
                                           else ""))
     finally:
-        for cl, c in ((cl1, c1), (cl2, c2)):
-            cl.close()
-            c.close()
+        if cl2 is not None:
+            cl2.close()
+            c2.close()
     print(f"load average after: {os.getloadavg()[0]:.2f}")
 
 

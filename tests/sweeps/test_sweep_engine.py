@@ -20,10 +20,11 @@ import pyarrow.parquet as pq
 import pytest
 
 from sub60.app.sweep_engine import (
-    LOCAL_CLUSTER_OPTIONS,
+    LOCAL_CLUSTER_CONFIG,
     METRICS,
     best_designs,
     evaluate_design,
+    local_cluster,
     model_version,
     pareto_front,
     read_table,
@@ -42,10 +43,9 @@ PLAN = '[bias]\nvg_V = [-0.1, 0.6, 15]\nvd_V = 0.3\nioff_target_uA_per_um = 1e-3
 
 @pytest.fixture(scope="module")
 def client():
-    from distributed import Client, LocalCluster
+    from distributed import Client
 
-    cluster = LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
-                           **LOCAL_CLUSTER_OPTIONS)
+    cluster = local_cluster(1)
     c = Client(cluster)
     yield c
     c.close()
@@ -56,6 +56,20 @@ def _same(a, b) -> bool:
     if a is None or b is None:
         return a is None and b is None
     return abs(a - b) <= REL * max(abs(a), abs(b))
+
+
+def test_local_cluster_workers_run_with_the_quiet_settings(client) -> None:
+    """The settings reach the worker processes, not only this one (the nanny passes its
+    configuration on; Dask configuration reference, `distributed.worker.*` and
+    `distributed.admin.*` keys). The tick interval is 20 ms by Dask's default: the test
+    fails if the local cluster runs with the defaults."""
+    import dask
+
+    def settings() -> dict:
+        return {k: dask.config.get(k) for k in LOCAL_CLUSTER_CONFIG}
+
+    seen = client.run(settings)
+    assert seen and all(v == LOCAL_CLUSTER_CONFIG for v in seen.values()), seen
 
 
 def test_sweep_metrics_equal_transfer_curve_and_the_command_line(client, tmp_path: Path) -> None:
