@@ -60,13 +60,18 @@ def _open_card(page) -> None:
     page.locator(".measured-demo button").wait_for(state="visible", timeout=60_000)
 
 
+def _load_demo(page) -> None:
+    """Open the measured-curve card, load the demo curve, wait for its 41 points."""
+    _open_card(page)
+    page.locator(".measured-demo button").click()
+    page.wait_for_function("() => sub60.data('measured_transfer_source').vg.length === 41",
+                           timeout=60_000)
+
+
 def test_demo_overlay_and_a_one_knob_fit(browser, fit_url, tmp_path):
     page, _, errors = open_app(browser, fit_url)
     try:
-        _open_card(page)
-        page.locator(".measured-demo button").click()
-        page.wait_for_function("() => sub60.data('measured_transfer_source').vg.length === 41",
-                               timeout=60_000)
+        _load_demo(page)
         assert page.evaluate(LEGEND_ITEM, "measured (demo-tfet-transfer.csv)")
         glyph = page.evaluate("() => { const g = sub60.model('measured_transfer').glyph; "
                               "return [g.marker.value, g.fill_color.value]; }")
@@ -98,10 +103,7 @@ def test_demo_overlay_and_a_one_knob_fit(browser, fit_url, tmp_path):
 def test_bad_file_names_its_line_and_keeps_the_points(browser, fit_url, tmp_path):
     page, _, errors = open_app(browser, fit_url)
     try:
-        _open_card(page)
-        page.locator(".measured-demo button").click()
-        page.wait_for_function("() => sub60.data('measured_transfer_source').vg.length === 41",
-                               timeout=60_000)
+        _load_demo(page)
         bad = tmp_path / "bad-curve.csv"
         bad.write_text("Vg,Id [A/um]\n0,1e-9\n0.1,abc\n0.2,3e-9\n")
         page.locator(".measured-file input[type=file]").set_input_files(str(bad))
