@@ -46,6 +46,7 @@ from sub60.app.sweep_plots import (
     message_plot,
     metric_map,
     pareto_plot,
+    refresh_in_place,
     sensitivity_plot,
 )
 from sub60.app.sweep_session import (
@@ -604,15 +605,19 @@ class SweepView:
             return
         grid = self.spec.method == "grid"
         axes = {k.field: k.grid() for k in self.spec.knobs} if grid else None
-        self.map_pane.object = metric_map(self.rows, self.spec.knob_fields, self.map_x.value,
-                                          self.map_y.value, self.map_metric.value,
-                                          grid=grid, axes=axes)
+        fig = metric_map(self.rows, self.spec.knob_fields, self.map_x.value,
+                         self.map_y.value, self.map_metric.value, grid=grid, axes=axes)
+        if not refresh_in_place(self.map_pane.object, fig):  # same shape: only data is sent
+            self.map_pane.object = fig
 
     def _draw_pareto(self) -> None:
         if getattr(self, "_holding", False) or self.spec is None:
             return
         fig, source, _front = pareto_plot(self.rows, self.spec.knob_fields,
                                           self.pareto_against.value, self.colour_by.value)
+        if source is not None and self._pareto_source is not None and refresh_in_place(
+                self.pareto_pane.object, fig):
+            return  # the shown figure and its source (with its click callback) now hold the rows
         self._pareto_source = source
         if source is not None:
             source.selected.on_change("indices", self._picked)

@@ -285,3 +285,51 @@ def test_heterojunction_source_knobs_in_the_form() -> None:
     assert "Source alloy composition x (–)" in text and "source semiconductor" in text, text
     assert "source_material" not in text and "source_composition_x" not in text, text
     v.close()
+
+
+def _rows(spec, n: int) -> list[dict]:
+    """The first ``n`` designs of ``spec`` with made-up metrics (invented numbers for this
+    check of the drawing only; no physics is claimed)."""
+    from sub60.app.sweep_engine import METRICS
+
+    rows = []
+    for i, d in enumerate(spec.designs()[:n]):
+        row = {"index": i, "status": "ok", **{f: getattr(d, f) for f in spec.knob_fields}}
+        row.update({m: 1.0 + i + j for j, m in enumerate(METRICS)})
+        rows.append(row)
+    return rows
+
+
+def test_streamed_draws_pour_rows_into_the_shown_figures_until_their_shape_changes() -> None:
+    """While a sweep streams, each draw updates the shown map and Pareto front in place (the
+    same figure objects, so the browser is sent data, not new figures, and the front's click
+    callback stays); their sources, colour ranges and titles are those a fresh figure of all
+    the rows would have. A new metric is another figure."""
+    from bokeh.models import ColorBar
+
+    from sub60.app.sweep_plots import metric_map, pareto_plot
+
+    v = _view()
+    spec = v.read_spec()
+    v._show_rows(spec, _rows(spec, 3), new_selectors=True)
+    map_fig, front_fig, front_src = v.map_pane.object, v.pareto_pane.object, v._pareto_source
+    rows = _rows(spec, 9)
+    v._show_rows(spec, rows, new_selectors=False)
+    assert v.map_pane.object is map_fig and v.pareto_pane.object is front_fig
+    assert v._pareto_source is front_src and len(front_src.data["index"]) == 9
+    fresh = metric_map(rows, spec.knob_fields, v.map_x.value, v.map_y.value, v.map_metric.value,
+                       grid=True, axes={k.field: k.grid() for k in spec.knobs})
+    shown = map_fig.select_one({"name": "sweep_map_source"})
+    assert shown.data == fresh.select_one({"name": "sweep_map_source"}).data
+    bar, fresh_bar = map_fig.select_one(ColorBar), fresh.select_one(ColorBar)
+    assert (bar.color_mapper.low, bar.color_mapper.high) == (fresh_bar.color_mapper.low,
+                                                             fresh_bar.color_mapper.high)
+    fresh_front, _, _ = pareto_plot(rows, spec.knob_fields, v.pareto_against.value,
+                                    v.colour_by.value)
+    assert front_fig.title.text == fresh_front.title.text and "9 designs" in front_fig.title.text
+    assert (front_fig.y_range.start, front_fig.y_range.end) == (fresh_front.y_range.start,
+                                                                fresh_front.y_range.end)
+    other = next(m for m in v.map_metric.options.values() if m != v.map_metric.value)
+    v.map_metric.value = other  # another metric: another colour bar, a new figure
+    assert v.map_pane.object is not map_fig
+    v.close()
