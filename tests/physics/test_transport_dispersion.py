@@ -209,11 +209,11 @@ def test_transport_table_holds_the_charge_states():
         fermi = eta * KT  # hole Fermi level above the edge, into the band [eV]
         want = disp.sheet_cm2(0, np.array([disp.edge_eV[0] + fermi]), KT)[0][0]
 
-        def f(qq: float) -> float:
+        def f(qq: float, fermi: float = fermi) -> float:
             return 1.0 / (1.0 + math.exp((float(table.shift(qq)) - fermi) / KT))
 
         qmax = float(table.k2_at(fermi + 40 * KT))
-        got, _ = integrate.quad(f, 0.0, qmax, limit=400, epsrel=1e-10)
+        got, _ = integrate.quad(f, 0.0, qmax, limit=400, epsrel=1e-8)
         got = 2.0 * got / (4.0 * math.pi) * 1e14  # 2 branches, dk k/(2 pi) = dq/(4 pi); cm^-2
         assert got == pytest.approx(want, rel=0.02), eta
 
