@@ -17,6 +17,17 @@ no current. The weight multiplies the rate, as the squared interband matrix elem
 in a transfer-Hamiltonian (golden-rule) picture; the WKB exponent of each pair keeps the
 two-band kappa of its own masses.
 
+A valence subband may carry a tabulated in-plane dispersion (`InPlaneDispersion`; the
+coupled 4x4 k.p hole subbands of `physics.hole_subbands` with the 2D-subband charge):
+its transverse edge shift |E_v(k) - E_v(0)| then replaces hbar^2 k^2 / 2 m_m, in the
+range k_max(E) and in the contact condition of every (E, k) node of the WKB kernel
+(`tunneling.wkb_exponent_transverse`, ``down_shift_eV``). The tunnelling mass stays
+2 m_r of the band-edge masses (the two-band imaginary branch is the one the interband
+momentum matrix element couples; the heavy/light-hole mixing that makes the coupled
+subband heavy sets in tens of meV inside the band). The exact two-band model takes the
+same k range, but its contacts are the two-band ones: a node that only the heavier
+tabulated band offers gets T = 0 from it.
+
 Thermionic part (T = 1 above the barrier): electrons over the highest point of each
 conduction subband, holes under the lowest point of each valence subband. With the
 transverse integral done analytically (int du F_0(eta - u^2) = sqrt(pi) F_1/2(eta)):
