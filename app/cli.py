@@ -8,7 +8,10 @@
     sub60 fit DATA [--design FILE.json] --free knob,knob ...   (see `app.fit_cli`)
 
 ``bands``, ``transfer`` and ``output`` take ``--model`` (a tunnelling model of
-`sub60.physics.TUNNELLING_MODELS`; default two-band WKB).
+`sub60.physics.TUNNELLING_MODELS`; default two-band WKB). ``bands`` and ``transfer`` state
+the models that made their numbers: JSON key ``models`` (``charge``: the design's
+``charge_model`` with a ``charge_note``, ``tunnelling``), CSV lines ``# charge_model`` and
+``# tunnelling_model``.
 
 With ``--format csv`` the curves are written by the one table writer of sub60
 (`app.tables`), with the column names of the snapshot files: ``bands`` gives ``x_nm``, one
@@ -100,11 +103,26 @@ def _simulator(a):
     return Simulator(model=a.model)
 
 
+def _models(a, d) -> dict:
+    """Which models made the numbers: the carrier charge (`Design.charge_model`) and the
+    tunnelling model (`--model`), each with a few words on what it is."""
+    from sub60.physics import CHARGE_MODEL_NOTES
+
+    return {"charge": d.charge_model, "charge_note": CHARGE_MODEL_NOTES[d.charge_model],
+            "tunnelling": a.model}
+
+
+def _model_comments(a, d) -> dict:
+    """`_models` as the CSV's ``# name = value`` lines."""
+    return {"charge_model": d.charge_model, "tunnelling_model": a.model}
+
+
 def cmd_bands(a) -> str:
     d = load_design(a.design, a.set)
     bp = solve(_simulator(a).solve_bias, d, single_voltage(parse_sweep(a.vg, "vg"), "vg"),
                 single_voltage(parse_sweep(a.vd, "vd"), "vd"))
-    rec = {"design": d.to_dict(), **bands_record(bp), "warnings": warn_design(d)}
+    rec = {"design": d.to_dict(), **bands_record(bp), "models": _models(a, d),
+           "warnings": warn_design(d)}
     extra: dict = {}
     if not d.is_ideal:
         ideal = solve(_simulator(a).solve_bias, ideal_design(d), bp.vg_V, bp.vd_V)
@@ -118,7 +136,8 @@ def cmd_bands(a) -> str:
                         {"vg_V": bp.vg_V, "vd_V": bp.vd_V, "efs_eV": bp.efs_eV, "efd_eV": bp.efd_eV,
                          "window_e_min_eV": None if w is None else w["e_min_eV"],
                          "window_e_max_eV": None if w is None else w["e_max_eV"],
-                         "current_uA_per_um": rec["current_uA_per_um"], **extra})
+                         "current_uA_per_um": rec["current_uA_per_um"], **extra,
+                         **_model_comments(a, d)})
     return json.dumps(rec, indent=1)
 
 
@@ -129,12 +148,13 @@ def cmd_transfer(a) -> str:
     vd = single_voltage(parse_sweep(a.vd, "vd"), "vd")
     kw = {"ioff_target_uA_per_um": a.ioff, "vdd_V": a.vdd}
     tc = solve(lambda: transfer_curve(d, vg, vd, **kw))
-    rec = {"design": d.to_dict(), **transfer_record(tc), "warnings": warn_design(d)}
+    rec = {"design": d.to_dict(), **transfer_record(tc), "models": _models(a, d),
+           "warnings": warn_design(d)}
     twin = None
     if a.twin:
         twin = solve(lambda: transfer_curve(d.twin(), vg, vd, **kw))
         rec["twin"] = {"design": d.twin().to_dict(), **transfer_record(twin)}
-    comments = {"vd_V": vd, **rec["metrics"]}
+    comments = {"vd_V": vd, **_model_comments(a, d), **rec["metrics"]}
     table = transfer_table(tc, twin)
     if not d.is_ideal:
         sim = _simulator(a)

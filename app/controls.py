@@ -476,8 +476,9 @@ class Controls:
         charge_note = pn.pane.HTML(
             '<div class="note">The 2D subbands count the holes with the density of states '
             "of coupled heavy/light-hole subbands (4×4 k·p) and the electrons with the "
-            "in-plane masses transport uses; transport still moves holes with the uncoupled "
-            "masses. The bulk states stay the default; see the README.</div>",
+            "in-plane masses transport uses; transport then moves holes with the same "
+            "coupled dispersion. The bulk states stay the default (the subbands cost more "
+            "per design); the metrics strip names the model in use. See the README.</div>",
             stylesheets=self._css, margin=(0, 12))
         return [
             card("Demo designs and snapshots", *snapshots.items),

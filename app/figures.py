@@ -83,7 +83,7 @@ def caption_text(design: Design, vd_V: float, vg_V: float | Sequence[float] | No
               f"gate length {d.gate_length_nm:g} nm, EOT {eot:.2f} nm ({d.oxide} "
               f"{d.oxide_thickness_nm:g} nm), {d.source_type}+ source "
               f"{d.source_doping_cm3:.3g} cm\u207b\u00b3")
-    bias = f"{gate}Vd = {vd_V:g} V, T = {d.temperature_K:g} K"
+    bias = f"{gate}Vd = {vd_V:g} V, T = {d.temperature_K:g} K; carrier charge: {d.charge_model}"
     caution = ("sub60" + (f" {version}" if version else "")
                + " \u2014 design-exploration model, not calibrated TCAD")
     return "\n".join((device, bias, caution))

@@ -19,8 +19,11 @@ METRIC_COLUMNS: tuple[tuple[str, str], ...] = tuple(
 
 
 def metrics_html(rows: Sequence[tuple[str, str, object | None]], temperature_K: float,
-                 vdd_V: float) -> str:
+                 vdd_V: float, models: str = "") -> str:
     """The metrics strip as an HTML table.
+
+    models : which models made the numbers (e.g. `models_text`), a line under the
+    table (plain text, escaped here); empty: none.
 
     rows : (device key, heading, Metrics or None while computing). A missing metric shows
     a dash with a note number; the note gives its reason (also the cell's tooltip). Every
@@ -59,6 +62,16 @@ def metrics_html(rows: Sequence[tuple[str, str, object | None]], temperature_K: 
     note = (f"Thermionic limit (ln 10)·kT/q = {limit:.1f} mV/dec at {temperature_K:g} K; "
             f"I<sub>on</sub> at V<sub>g</sub> = V<sub>off</sub> + {vdd_V:g} V; "
             "— = not defined for this curve:")
+    used = (f'<div class="metrics-note metrics-models">{html.escape(models)}</div>'
+            if models else "")
     return (f'<table class="metrics"><thead><tr><th></th>{head}</tr></thead>'
             f'<tbody>{"".join(body)}</tbody></table>'
-            f'<div class="metrics-note">{note}{notes}</div>')
+            f'<div class="metrics-note">{note}{notes}</div>{used}')
+
+
+def models_text(charge_model: str, tunnelling_model: str) -> str:
+    """One line naming the carrier-charge and tunnelling models in use."""
+    from sub60.physics import CHARGE_MODEL_NOTES
+
+    return (f"Carrier charge: {charge_model} ({CHARGE_MODEL_NOTES[charge_model]}). "
+            f"Tunnelling: {tunnelling_model}.")

@@ -24,6 +24,7 @@ from sub60.app.messages import (
     validity_notes_html,
     value_message,
 )
+from sub60.app.metrics_strip import models_text
 from sub60.app.nonideal_view import breakdown_html, breakdown_pane
 from sub60.app.number_rules import InputError, parse_number
 from sub60.app.plot_style import style_figure
@@ -268,7 +269,8 @@ class ResultsView:
                 rows.append((f"measured-{k}", f"measured ({name}), V<sub>d</sub> = "
                              f"{c.vd_V:g} V", c.metrics(**settings)))
         self._stale = stale
-        body = metrics_html(rows, self.state.temperature_K, self.state.vdd_V)
+        body = metrics_html(rows, self.state.temperature_K, self.state.vdd_V,
+                            models_text(self.state.charge_model, self.state.tunnelling_model))
         self.metrics.object = f'<div class="{"stale" if stale else "fresh"}">{body}</div>'
 
     def show_measured(self, name: str, data: Any = None) -> None:

@@ -26,6 +26,7 @@ from sub60.app.snapshot_schema import (
     SETTINGS_MEMBER,
     SnapshotSettings,
     added_design_fields,
+    physics_notes,
     sub60_version,
 )
 from sub60.physics import Simulator
@@ -165,7 +166,9 @@ class ImportReport:
     has_stored : the file holds figures of merit to compare;
     added_fields : design fields this sub60 has that the file's schema version predates
     (read at their defaults: non-ideal physics off, materials as before);
-    verified : a recomputation was made; differences : what it found (empty = match).
+    verified : a recomputation was made; differences : what it found (empty = match);
+    physics_notes : physics revisions that concern the stored design
+    (`snapshot_schema.physics_notes`), shown with the differences they explain.
     """
 
     source: str
@@ -176,6 +179,7 @@ class ImportReport:
     added_fields: tuple[str, ...] = ()
     verified: bool = False
     differences: list[Difference] = field(default_factory=list)
+    physics_notes: tuple[str, ...] = ()
 
     @property
     def version_matches(self) -> bool:
@@ -213,6 +217,8 @@ class ImportReport:
         else:
             out.append(f"{len(self.differences)} recomputed value(s) differ from the stored ones:")
             out.extend(f"  {d}" for d in self.differences)
+        if self.physics_notes and not (self.verified and not self.differences):
+            out.extend(self.physics_notes)
         return out
 
 
@@ -269,7 +275,8 @@ def import_snapshot(data: bytes, max_bytes: int = MAX_SNAPSHOT_BYTES, *,
     report = ImportReport(source, members, settings.sub60_version, sub60_version(),
                           settings.stored is not None,
                           added_design_fields(settings.schema_version or SCHEMA_VERSION,
-                                              doc.get("design") if isinstance(doc, dict) else None))
+                                              doc.get("design") if isinstance(doc, dict) else None),
+                          physics_notes=physics_notes(settings.design))
     if verify:
         report.differences = verify_snapshot(settings, simulator)
         report.verified = True

@@ -297,6 +297,25 @@ def design_fields(schema_version: int) -> tuple[str, ...]:
     return tuple(f for f in FIELD_RANGES if f not in OPTIONAL_DESIGN_FIELDS)
 
 
+#: Physics revisions that change what a stored design recomputes to, each as (the
+#: design field and value it concerns, the note an import shows). Measured on the default
+#: design with the README table's sweep (-0.3...0.6 V in 46, Vd 0.3 V, Ioff 1 nA/um).
+PHYSICS_REVISIONS: tuple[tuple[str, str, str], ...] = (
+    ("charge_model", "subbands",
+     "physics revision: with charge_model 'subbands', transport now moves holes with the "
+     "coupled 4x4 k.p in-plane dispersion the charge uses (before: the parabolic band-edge "
+     "mass); snapshots written before it recompute slightly differently (default design: "
+     "I60 -1.4 %, SS_min -0.09 %, SS_avg +0.02 %, Ion +0.01 %, Voff -0.03 mV); "
+     "'semiclassical' designs are unchanged"),
+)
+
+
+def physics_notes(design: Design) -> tuple[str, ...]:
+    """The `PHYSICS_REVISIONS` notes that concern a stored design."""
+    return tuple(note for name, value, note in PHYSICS_REVISIONS
+                 if getattr(design, name, None) == value)
+
+
 def added_design_fields(schema_version: int, design: Any = None) -> tuple[str, ...]:
     """Design fields this sub60 has that a file of ``schema_version`` predates (they
     take their defaults when it is read); with the file's ``design`` object, the

@@ -13,6 +13,7 @@ import importlib as _importlib
 #: Public name -> submodule that defines it.
 _API: dict[str, str] = {
     "BiasPoint": "simulate",
+    "CHARGE_MODEL_NOTES": "design",
     "CURRENT_UNITS": "measured",
     "FIT_KNOBS": "fitting",
     "FitResult": "fitting",

@@ -48,45 +48,70 @@ def _segment_integral(c0, c1, v0, v1, h, two_band, gl_x, gl_w):  # pragma: no co
     return 0.5 * length * h * s
 
 
+@_nb.njit(cache=True, nogil=True, inline="always")
+def _node_exponent(x, ec, ev, e, kv, up, down, scale, two_band, gl_x, gl_w):  # pragma: no cover
+    """The exponent of one (k, E) node: +inf outside the contacts' states (the drain
+    conduction edge raised by ``up``, the source valence edge lowered by ``down`` [eV]),
+    else 2 int kappa dx (two-band: kappa^2 = kappa_0^2 + k^2; one-band: the edges
+    shifted rigidly)."""
+    nx = x.size
+    if e >= ev[0] - down or e <= ec[nx - 1] + up:
+        return np.inf
+    acc = 0.0
+    if two_band:  # kappa^2 = kappa_0^2 + k^2 on the k = 0 edges (tunneling eq. (3))
+        q = kv ** 2 / scale**2
+        for i in range(nx - 1):
+            acc += _segment_integral_transverse(
+                ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1], q,
+                x[i + 1] - x[i], gl_x, gl_w)
+    else:  # one band: the rigid edge shift is exact
+        for i in range(nx - 1):
+            c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
+            v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
+            acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], False, gl_x, gl_w)
+    return 2.0 * scale * acc
+
+
 @_nb.njit(cache=True, nogil=True)
 def wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
                           gl_x, gl_w):  # pragma: no cover
-    """(nk, nE) WKB exponents; see `wkb_exponent_transverse` for the arguments."""
+    """(nk, nE) WKB exponents, parabolic transverse shifts a k^2 (conduction) and b k^2
+    (valence); see `wkb_exponent_transverse` for the arguments."""
     nk, ne = kvals.shape
-    nx = x.size
     out = np.empty((nk, ne))
     scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
     for kk in range(nk):
         for ie in range(ne):
-            e = energies[ie]
-            up = a * kvals[kk, ie] ** 2
-            down = b * kvals[kk, ie] ** 2
-            if e >= ev[0] - down or e <= ec[nx - 1] + up:
-                out[kk, ie] = np.inf
-                continue
-            acc = 0.0
-            if two_band:  # kappa^2 = kappa_0^2 + k^2 on the k = 0 edges (tunneling eq. (3))
-                q = kvals[kk, ie] ** 2 / scale**2
-                for i in range(nx - 1):
-                    acc += _segment_integral_transverse(
-                        ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1], q,
-                        x[i + 1] - x[i], gl_x, gl_w)
-            else:  # one band: the rigid edge shift is exact
-                for i in range(nx - 1):
-                    c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
-                    v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
-                    acc += _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], False, gl_x, gl_w)
-            out[kk, ie] = 2.0 * scale * acc
+            kv = kvals[kk, ie]
+            out[kk, ie] = _node_exponent(x, ec, ev, energies[ie], kv, a * kv ** 2, b * kv ** 2,
+                                         scale, two_band, gl_x, gl_w)
     return out
 
 
 @_nb.njit(cache=True, nogil=True)
-def wkb_transverse_kernel_varying(x, ec, ev, a, b, kvals, energies, mass_seg, two_band,
+def wkb_transverse_kernel_shifts(x, ec, ev, up, down, kvals, energies, mass_rel, two_band,
+                                 gl_x, gl_w):  # pragma: no cover
+    """(nk, nE) WKB exponents with the transverse edge shifts of every node given,
+    ``up`` and ``down`` (nk, nE) [eV] (a tabulated in-plane dispersion); see
+    `wkb_exponent_transverse`."""
+    nk, ne = kvals.shape
+    out = np.empty((nk, ne))
+    scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
+    for kk in range(nk):
+        for ie in range(ne):
+            out[kk, ie] = _node_exponent(x, ec, ev, energies[ie], kvals[kk, ie], up[kk, ie],
+                                         down[kk, ie], scale, two_band, gl_x, gl_w)
+    return out
+
+
+@_nb.njit(cache=True, nogil=True)
+def wkb_transverse_kernel_varying(x, ec, ev, up, down, kvals, energies, mass_seg, two_band,
                                   gl_x, gl_w):  # pragma: no cover
     """(nk, nE) WKB exponents with one tunnelling mass per segment (a heterojunction);
     see `wkb_exponent_transverse`. The transverse k is conserved: on segment i,
-    kappa^2 = kappa_0^2(m_i) + k^2 (two-band); the one-band edge shift uses the contacts'
-    masses (a, b)."""
+    kappa^2 = kappa_0^2(m_i) + k^2 (two-band); ``up``, ``down`` (nk, nE) are the contacts'
+    transverse edge shifts of each node [eV] (parabolic: a k^2 and b k^2 with the
+    contacts' masses)."""
     nk, ne = kvals.shape
     nx = x.size
     out = np.empty((nk, ne))
@@ -95,9 +120,9 @@ def wkb_transverse_kernel_varying(x, ec, ev, a, b, kvals, energies, mass_seg, tw
         for ie in range(ne):
             e = energies[ie]
             k2 = kvals[kk, ie] ** 2
-            up = a * k2
-            down = b * k2
-            if e >= ev[0] - down or e <= ec[nx - 1] + up:
+            u = up[kk, ie]
+            dn = down[kk, ie]
+            if e >= ev[0] - dn or e <= ec[nx - 1] + u:
                 out[kk, ie] = np.inf
                 continue
             acc = 0.0
@@ -107,8 +132,8 @@ def wkb_transverse_kernel_varying(x, ec, ev, a, b, kvals, energies, mass_seg, tw
                         ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1], k2 / scale[i] ** 2,
                         x[i + 1] - x[i], gl_x, gl_w)
                 else:
-                    c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
-                    v0, v1 = e - ev[i] + down, e - ev[i + 1] + down
+                    c0, c1 = ec[i] + u - e, ec[i + 1] + u - e
+                    v0, v1 = e - ev[i] + dn, e - ev[i + 1] + dn
                     acc += scale[i] * _segment_integral(c0, c1, v0, v1, x[i + 1] - x[i], False,
                                                         gl_x, gl_w)
             out[kk, ie] = 2.0 * acc

@@ -160,10 +160,12 @@ def _estimate(
         e = 0.5 * (span[0] + span[1]) - 0.5 * (span[1] - span[0]) * np.cos(theta)
         m_t = tunnelling_mass(c, v, kappa_model)
         a, b = HBAR2_2M0_EV_NM2 / c.mass, HBAR2_2M0_EV_NM2 / v.mass
-        k_max = np.sqrt(np.clip(np.minimum((v.edge_eV[0] - e) / b, (e - c.edge_eV[-1]) / a),
-                                0.0, None))
+        disp = v.dispersion  # a tabulated valence dispersion (`transport.InPlaneDispersion`)
+        k2_v = (v.edge_eV[0] - e) / b if disp is None else disp.k2_at(v.edge_eV[0] - e)
+        k_max = np.sqrt(np.clip(np.minimum(k2_v, (e - c.edge_eV[-1]) / a), 0.0, None))
         k = np.vstack([np.zeros_like(e), 0.5 * k_max])
-        expo = wkb_exponent_transverse(x_nm, c.edge_eV, v.edge_eV, a, b, k, e, m_t, kappa_model)
+        expo = wkb_exponent_transverse(x_nm, c.edge_eV, v.edge_eV, a, b, k, e, m_t, kappa_model,
+                                       down_shift_eV=None if disp is None else disp.shift(k * k))
         with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
             t0 = np.where(np.isfinite(expo[0]), np.exp(-expo[0]), 0.0)
             beta = (expo[1] - expo[0]) / np.maximum(k[1] ** 2, 1e-30)  # [nm^2]

@@ -154,6 +154,15 @@ FIELD_RANGES: dict[str, FieldSpec] = {
              "of the confinement subbands; hole subbands from coupled 4x4 k.p)"),
 }
 
+#: What each carrier-charge model (`Design.charge_model`) is, in a few words (for the
+#: page, the command line and the figure captions to state which one made the numbers).
+CHARGE_MODEL_NOTES: dict[str, str] = {
+    "semiclassical": "bulk density of states, band edges shifted by the lowest subbands; "
+                     "parabolic in-plane hole masses in transport",
+    "subbands": "2D density of states of the confinement subbands (coupled 4x4 k.p holes); "
+                "transport takes the same hole dispersion",
+}
+
 #: The switches of the non-idealities and their "off" values (the ideal device);
 #: `Design.is_ideal`, `Design.ideal`. Their settings (trap levels, the D_it profile)
 #: do not count: with the switch off they change nothing.

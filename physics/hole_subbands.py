@@ -413,3 +413,26 @@ def interpolate_ratio(value: np.ndarray, slope: np.ndarray, eta: np.ndarray):
     dr = ((6 * s2 - 6 * s) * v0 + (3 * s2 - 4 * s + 1) * m0 + (-6 * s2 + 6 * s) * v1
           + (3 * s2 - 2 * s) * m1) / ETA_STEP
     return r, np.where(inside, dr, 0.0)
+
+
+@lru_cache(maxsize=64)
+def inplane_dispersions(design) -> dict:
+    """The valence subbands' coupled in-plane dispersions as transverse edge shifts for
+    transport: label -> `transport.InPlaneDispersion`, for every valence subband of
+    `subbands.charge_subbands(design)` (cached per design).
+
+    The shift of subband n at k is the mean of its two branches' hole energies (the U
+    and L blocks of eq. (1), degenerate in a symmetric well) less its k = 0 edge, on the
+    k grid of `hole_dos_ratio` — the same dispersion as the charge's density of states.
+    """
+    from sub60.physics.subbands import charge_subbands
+    from sub60.physics.transport import InPlaneDispersion
+
+    disp = hole_dos_ratio(design).dispersion
+    states = charge_subbands(design).valence
+    q = disp.k**2
+    out = {}
+    for n, s in enumerate(states):
+        mean = 0.5 * (disp.energy_eV[2 * n] + disp.energy_eV[2 * n + 1])
+        out[s.label] = InPlaneDispersion(q, mean - disp.edge_eV[n])
+    return out

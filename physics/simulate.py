@@ -429,9 +429,11 @@ def _transport_profiles(es: Electrostatics, sb, cond: np.ndarray, val: np.ndarra
     d = es.design
     x = es.x_nm
     if not d.is_heterojunction:
+        disp = _valence_dispersions(d)
         return (x, [BandProfile(s.label, cond[i], s.inplane_mass)
                     for i, s in enumerate(sb.conduction)],
-                [BandProfile(s.label, val[i], s.inplane_mass) for i, s in enumerate(sb.valence)])
+                [BandProfile(s.label, val[i], s.inplane_mass, dispersion=disp.get(s.label))
+                 for i, s in enumerate(sb.valence)])
     bands = es.frame.bands
     ih = int(np.argmin(np.abs(x - d.heterointerface_position_nm)))
     chi, eg = np.asarray(bands.chi_eV), np.asarray(bands.eg_eV)
@@ -455,9 +457,24 @@ def _hetero_band_profiles(design: Design, sb, x_nm: np.ndarray, cond: np.ndarray
 
     cprof = [BandProfile(b.label, cond[i], b.inplane_mass, seg(s, b))
              for i, (b, s) in enumerate(zip(sb.conduction, sb.source_conduction, strict=True))]
-    vprof = [BandProfile(b.label, val[i], s.inplane_mass, seg(s, b))
+    # the valence states at the source end are the source material's
+    disp = _valence_dispersions(design.source_body_design())
+    vprof = [BandProfile(b.label, val[i], s.inplane_mass, seg(s, b), disp.get(s.label))
              for i, (b, s) in enumerate(zip(sb.valence, sb.source_valence, strict=True))]
     return cprof, vprof
+
+
+def _valence_dispersions(design: Design) -> dict:
+    """Transport's in-plane valence dispersions: with the 2D-subband charge
+    (charge_model "subbands") the coupled 4x4 k.p dispersions its density of states
+    uses (`hole_subbands.inplane_dispersions`), so that charge and transport count the
+    same hole states; with the semiclassical charge none (parabolic with the band-edge
+    in-plane masses, as before)."""
+    if design.charge_model != "subbands":
+        return {}
+    from sub60.physics.hole_subbands import inplane_dispersions  # loaded when used
+
+    return inplane_dispersions(design)
 
 
 @dataclass(frozen=True)

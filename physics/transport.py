@@ -17,6 +17,17 @@ no current. The weight multiplies the rate, as the squared interband matrix elem
 in a transfer-Hamiltonian (golden-rule) picture; the WKB exponent of each pair keeps the
 two-band kappa of its own masses.
 
+A valence subband may carry a tabulated in-plane dispersion (`InPlaneDispersion`; the
+coupled 4x4 k.p hole subbands of `physics.hole_subbands` with the 2D-subband charge):
+its transverse edge shift |E_v(k) - E_v(0)| then replaces hbar^2 k^2 / 2 m_m, in the
+range k_max(E) and in the contact condition of every (E, k) node of the WKB kernel
+(`tunneling.wkb_exponent_transverse`, ``down_shift_eV``). The tunnelling mass stays
+2 m_r of the band-edge masses (the two-band imaginary branch is the one the interband
+momentum matrix element couples; the heavy/light-hole mixing that makes the coupled
+subband heavy sets in tens of meV inside the band). The exact two-band model takes the
+same k range, but its contacts are the two-band ones: a node that only the heavier
+tabulated band offers gets T = 0 from it.
+
 Thermionic part (T = 1 above the barrier): electrons over the highest point of each
 conduction subband, holes under the lowest point of each valence subband. With the
 transverse integral done analytically (int du F_0(eta - u^2) = sqrt(pi) F_1/2(eta)):
@@ -58,6 +69,58 @@ def fermi(energy_eV: np.ndarray, fermi_level_eV: float, kT_eV: float) -> np.ndar
     return 0.5 * (1.0 - np.tanh(0.5 * (np.asarray(energy_eV) - fermi_level_eV) / kT_eV))
 
 
+@dataclass(frozen=True, eq=False)
+class InPlaneDispersion:
+    """A subband's tabulated in-plane dispersion as a transverse edge shift.
+
+    q_nm2 : (nq,) k^2 of the table, ascending from 0 [1/nm^2]; shift_eV : (nq,) how far
+    the state of that k lies from the k = 0 edge, into the band, |E(k) - E(0)| [eV].
+    The shift is made non-decreasing (its running maximum, clipped at 0: a branch that
+    first moves into the gap, as a light-hole subband can, is given no states there), so
+    that the states a contact offers at depth d below its edge are exactly k^2 <=
+    `k2_at`(d), an interval; linear in k^2 between the table's points (exact for a
+    parabolic band) and beyond its end.
+    """
+
+    q_nm2: np.ndarray
+    shift_eV: np.ndarray
+
+    def __post_init__(self) -> None:
+        q = np.asarray(self.q_nm2, float)
+        sh = np.maximum.accumulate(np.maximum(np.asarray(self.shift_eV, float), 0.0))
+        if q.ndim != 1 or q.size < 2 or q[0] != 0.0 or np.any(np.diff(q) <= 0):
+            raise ValueError("q_nm2: k^2 values ascending from 0 (at least two)")
+        if sh.shape != q.shape or sh[-1] <= 0.0:
+            raise ValueError("shift_eV: one shift per k^2, not all zero")
+        object.__setattr__(self, "q_nm2", q)
+        object.__setattr__(self, "shift_eV", sh)
+        # slope of the linear continuation beyond the table [eV nm^2]
+        object.__setattr__(self, "_tail", max(float((sh[-1] - sh[-2]) / (q[-1] - q[-2])), 1e-12))
+
+    def shift(self, k2_nm2: np.ndarray) -> np.ndarray:
+        """|E(k) - E(0)| at k^2 [eV]."""
+        k2 = np.asarray(k2_nm2, float)
+        q, sh = self.q_nm2, self.shift_eV
+        return np.where(k2 <= q[-1], np.interp(k2, q, sh), sh[-1] + self._tail * (k2 - q[-1]))
+
+    def k2_at(self, depth_eV: np.ndarray) -> np.ndarray:
+        """The largest k^2 whose state lies within ``depth_eV`` of the edge [1/nm^2]
+        (0 for depth <= 0): the inverse of `shift`."""
+        d = np.asarray(depth_eV, float)
+        q, sh = self.q_nm2, self.shift_eV
+        # on a flat stretch (the clipped start) np.interp takes its last point
+        inside = np.interp(d, sh, q)
+        return np.where(d <= 0.0, 0.0,
+                        np.where(d <= sh[-1], inside, q[-1] + (d - sh[-1]) / self._tail))
+
+    @classmethod
+    def parabolic(cls, mass_rel: float, k_max_per_nm: float = 2.5, n: int = 41
+                  ) -> InPlaneDispersion:
+        """The table of a parabolic band hbar^2 k^2 / 2m (for checks)."""
+        q = np.linspace(0.0, k_max_per_nm**2, n)
+        return cls(q, HBAR2_2M0_EV_NM2 / mass_rel * q)
+
+
 @dataclass(frozen=True)
 class BandProfile:
     """One subband edge along x.
@@ -65,13 +128,17 @@ class BandProfile:
     edge_eV : (nx,) [eV]; mass : in-plane mass at the contact the carriers come from or
     go to (the drain end for a conduction subband, the source end for a valence one)
     [m0]; segment_mass : (nx-1,) in-plane mass of each cell, or None when ``mass``
-    holds everywhere (a heterojunction: each region's own material) [m0].
+    holds everywhere (a heterojunction: each region's own material) [m0];
+    dispersion : the in-plane dispersion at that contact when it is not parabolic (a
+    valence subband from the coupled 4x4 k.p model, `physics.hole_subbands`); None:
+    parabolic with ``mass``.
     """
 
     label: str
     edge_eV: np.ndarray
     mass: float
     segment_mass: np.ndarray | None = None
+    dispersion: InPlaneDispersion | None = None
 
     def masses(self, n_segments: int) -> np.ndarray:
         """(n_segments,) in-plane mass of each cell [m0]."""
@@ -175,9 +242,12 @@ def _pair_transmission_integral(
     m_t = tunnelling_mass(cb, vb, model)
     # transverse kinetic energy closes the source-valence/drain-conduction overlap:
     # energy E stays connected for a k^2 < min((Ev_src - E)/b, (E - Ec_drn)/a),
-    # so each energy gets its own Gauss-Legendre nodes on [0, k_max(E)]
+    # so each energy gets its own Gauss-Legendre nodes on [0, k_max(E)]; a tabulated
+    # valence dispersion replaces (Ev_src - E)/b by its own k^2 at that depth
     a, b = HBAR2_2M0_EV_NM2 / cb.mass, HBAR2_2M0_EV_NM2 / vb.mass
-    k2 = np.minimum((vb.edge_eV[0] - e) / b, (e - cb.edge_eV[-1]) / a)
+    disp = vb.dispersion
+    k2_v = (vb.edge_eV[0] - e) / b if disp is None else disp.k2_at(vb.edge_eV[0] - e)
+    k2 = np.minimum(k2_v, (e - cb.edge_eV[-1]) / a)
     k_max = np.sqrt(np.clip(k2, 0.0, None))  # (nE,)
     xg, wg = _GL_K
     if k_integral:  # row 0: k = 0 (the reported transmission); then the nodes of each energy
@@ -189,7 +259,9 @@ def _pair_transmission_integral(
         trans = np.where(k_max[None, :] > 0,
                          two_band_transmission(x_nm, cb.edge_eV, vb.edge_eV, m_t, k, e), 0.0)
     else:
-        expo = wkb_exponent_transverse(x_nm, cb.edge_eV, vb.edge_eV, a, b, k, e, m_t, model)
+        down = None if disp is None else disp.shift(k * k)
+        expo = wkb_exponent_transverse(x_nm, cb.edge_eV, vb.edge_eV, a, b, k, e, m_t, model,
+                                       down_shift_eV=down)
         trans = np.where(k_max[None, :] > 0, np.exp(-expo), 0.0)
     # int dk/2pi over all k = (1/pi) int_0^inf dk ; k in 1/nm -> 1/m
     return (wk * trans).sum(axis=0) / np.pi * 1e9, trans[0]

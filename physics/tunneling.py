@@ -124,6 +124,7 @@ def wkb_exponent(
 def wkb_exponent_transverse(
     x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray, up_eV_nm2: float, down_eV_nm2: float,
     k_per_nm: np.ndarray, energy_eV: np.ndarray, mass_rel: float, model: str = "two-band",
+    down_shift_eV: np.ndarray | None = None,
 ) -> np.ndarray:
     """WKB exponent with a transverse wave-vector that may differ for every energy.
 
@@ -140,7 +141,10 @@ def wkb_exponent_transverse(
     k_per_nm : (nk, nE) transverse wave-vector of each (node, energy) [1/nm];
     energy_eV : (nE,) [eV]; mass_rel : tunnelling mass [m0], a number or (nx-1,) one per
     segment (a heterojunction: each segment's material; k is conserved, so
-    kappa^2 = kappa_0^2(m_t(x)) + k^2 segment by segment); model : kappa model.
+    kappa^2 = kappa_0^2(m_t(x)) + k^2 segment by segment); model : kappa model;
+    down_shift_eV : (nk, nE) the source valence edge's transverse shift E_v(0) - E_v(k) of
+    each node [eV] (a tabulated, non-parabolic in-plane hole dispersion), used instead of
+    ``down * k^2``; None (default): the parabolic shift, on the unchanged compiled path.
 
     Returns
     -------
@@ -152,10 +156,18 @@ def wkb_exponent_transverse(
     e = np.asarray(energy_eV, float)
     ec = np.asarray(ec_eV, float)
     ev = np.asarray(ev_eV, float)
+    if down_shift_eV is not None:
+        down_shift = np.ascontiguousarray(np.broadcast_to(np.asarray(down_shift_eV, float),
+                                                          kv.shape))
+    else:
+        down_shift = None
     if np.ndim(mass_rel) > 0:
         return _exponent_varying_mass(np.asarray(x_nm, float), ec, ev, float(up_eV_nm2),
                                       float(down_eV_nm2), kv, e, np.asarray(mass_rel, float),
-                                      model)
+                                      model, down_shift)
+    if down_shift is not None:
+        return _exponent_shifts(np.asarray(x_nm, float), ec, ev, float(up_eV_nm2) * kv**2,
+                                down_shift, kv, e, float(mass_rel), model)
     kernel = _compiled_kernel()
     if kernel is not None:
         return kernel(np.ascontiguousarray(x_nm, float), np.ascontiguousarray(ec),
@@ -182,18 +194,70 @@ def wkb_exponent_transverse(
     return out
 
 
-def _exponent_varying_mass(x, ec, ev, up, down, kv, e, mass_seg, model):
+def _exponent_varying_mass(x, ec, ev, up, down, kv, e, mass_seg, model, down_shift=None):
     """`wkb_exponent_transverse` with one tunnelling mass per segment [-]."""
     if mass_seg.shape != (x.size - 1,):
         raise ValueError(f"mass_rel: {mass_seg.shape} masses for {x.size - 1} segments")
     try:
         from sub60.physics._wkb_compiled import wkb_transverse_kernel_varying
     except ImportError:  # pragma: no cover - numba is a declared dependency
+        if down_shift is not None:
+            raise
         return wkb_exponent_varying_reference(x, ec, ev, up, down, kv, e, mass_seg, model)
+    k2 = kv**2
     return wkb_transverse_kernel_varying(
-        np.ascontiguousarray(x), np.ascontiguousarray(ec), np.ascontiguousarray(ev), up, down,
+        np.ascontiguousarray(x), np.ascontiguousarray(ec), np.ascontiguousarray(ev),
+        np.ascontiguousarray(up * k2),
+        np.ascontiguousarray(down * k2 if down_shift is None else down_shift),
         np.ascontiguousarray(kv), np.ascontiguousarray(e), np.ascontiguousarray(mass_seg),
         model == "two-band", _GL_X, _GL_W)
+
+
+def _exponent_shifts(x, ec, ev, up_shift, down_shift, kv, e, mass_rel, model):
+    """`wkb_exponent_transverse` with every node's transverse edge shifts given [-]:
+    the compiled kernel, or one node at a time in plain Python without numba."""
+    try:
+        from sub60.physics._wkb_compiled import wkb_transverse_kernel_shifts
+    except ImportError:  # pragma: no cover - numba is a declared dependency
+        return wkb_exponent_shifts_reference(x, ec, ev, up_shift, down_shift, kv, e, mass_rel,
+                                             model)
+    return wkb_transverse_kernel_shifts(
+        np.ascontiguousarray(x), np.ascontiguousarray(ec), np.ascontiguousarray(ev),
+        np.ascontiguousarray(up_shift), np.ascontiguousarray(down_shift),
+        np.ascontiguousarray(kv), np.ascontiguousarray(e), float(mass_rel),
+        model == "two-band", _GL_X, _GL_W)
+
+
+def wkb_exponent_shifts_reference(
+    x_nm: np.ndarray, ec_eV: np.ndarray, ev_eV: np.ndarray, up_shift_eV: np.ndarray,
+    down_shift_eV: np.ndarray, k_per_nm: np.ndarray, energy_eV: np.ndarray, mass_rel: float,
+    model: str = "two-band",
+) -> np.ndarray:
+    """Plain-Python reference of the exponent with given per-node transverse edge shifts
+    ``up_shift_eV``, ``down_shift_eV`` (nk, nE) [eV] (what the compiled kernel is tested
+    against); other arguments as `wkb_exponent_transverse` [-]."""
+    x = np.asarray(x_nm, float)
+    kv = np.atleast_2d(np.asarray(k_per_nm, float))
+    e = np.asarray(energy_eV, float)
+    ec, ev = np.asarray(ec_eV, float), np.asarray(ev_eV, float)
+    up = np.broadcast_to(np.asarray(up_shift_eV, float), kv.shape)
+    down = np.broadcast_to(np.asarray(down_shift_eV, float), kv.shape)
+    scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
+    out = np.empty(kv.shape)
+    for kk in range(kv.shape[0]):
+        for ie in range(e.size):
+            if e[ie] >= ev[0] - down[kk, ie] or e[ie] <= ec[-1] + up[kk, ie]:
+                out[kk, ie] = np.inf
+            elif model == "two-band":
+                q = kv[kk, ie] ** 2 / scale**2
+                out[kk, ie] = 2.0 * scale * sum(
+                    segment_integral_transverse(ec[i] - e[ie], ec[i + 1] - e[ie], e[ie] - ev[i],
+                                                e[ie] - ev[i + 1], q, x[i + 1] - x[i], _GL_X, _GL_W)
+                    for i in range(x.size - 1))
+            else:
+                out[kk, ie] = wkb_exponent(x, ec + up[kk, ie], ev - down[kk, ie], e[ie:ie + 1],
+                                           mass_rel, model)[0]
+    return out
 
 
 def wkb_exponent_varying_reference(

@@ -45,11 +45,12 @@ def main() -> None:
     steps: dict[str, dict[str, list[int]]] = {m: {"cold": [], "warm": []} for m in MODELS}
     for _ in range(args.repeats):
         for m, d in designs.items():
-            from sub60.physics.hole_subbands import hole_dos_ratio
+            from sub60.physics.hole_subbands import hole_dos_ratio, inplane_dispersions
             from sub60.physics.subbands import charge_subbands
 
             charge_subbands.cache_clear()
             hole_dos_ratio.cache_clear()
+            inplane_dispersions.cache_clear()
             t = time.perf_counter()
             _frame(d, 1.0, True)
             times[m]["frame"].append(time.perf_counter() - t)

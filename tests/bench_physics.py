@@ -1,6 +1,9 @@
 """Benchmark of the physics core (a script, not a test): prints medians measured in one run.
 
-    python tests/bench_physics.py [--repeats 15]
+    python tests/bench_physics.py [--repeats 15] [--charge-model subbands]
+
+(every figure on the default design with the charge model given, by default the
+design's default)
 
 1. Electrostatics on the default design and grid: cold solve (charge-neutral start,
    structure cached), warm solve (continuation after dVg = 20 mV), Newton steps,
@@ -34,8 +37,12 @@ def median_ms(samples: list[float]) -> float:
     return 1e3 * float(np.median(samples))
 
 
+#: the design every section measures (the default, or --charge-model)
+DESIGN = Design()
+
+
 def bench_electrostatics(repeats: int) -> None:
-    d = Design()
+    d = DESIGN
     build_frame(d.replace(gate_length_nm=31.0))  # one-time loads (Fermi-Dirac table, scipy)
     t0 = time.perf_counter()
     frame = build_frame(d)
@@ -82,7 +89,7 @@ def bench_electrostatics(repeats: int) -> None:
 
 
 def bench_pipeline(repeats: int) -> None:
-    d = Design()
+    d = DESIGN
     vg = np.linspace(-0.3, 0.5, 41)
     Simulator().transfer_curve(d, vg, 0.3)  # compile / warm the caches once
     totals, split = [], {"poisson": [], "confinement": [], "tunnelling": []}
@@ -136,7 +143,7 @@ def bench_thread_limit(repeats: int) -> None:
 
     scoped = cost(single_blas_thread)
     fresh = cost(lambda: threadpool_limits(1, "blas"))
-    d = Design()
+    d = DESIGN
     es0 = solve_electrostatics(d, 0.2, 0.3)
     warm = []
     for _ in range(repeats):
@@ -152,7 +159,13 @@ def bench_thread_limit(repeats: int) -> None:
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=15)
+    ap.add_argument("--charge-model", choices=("semiclassical", "subbands"), default=None,
+                    help="Design.charge_model of the measured design (default: the default's)")
     a = ap.parse_args()
+    global DESIGN
+    if a.charge_model is not None:
+        DESIGN = Design(charge_model=a.charge_model)
+    print(f"design: default, charge_model {DESIGN.charge_model}")
     bench_electrostatics(a.repeats)
     bench_pipeline(a.repeats)
     bench_thread_limit(a.repeats)

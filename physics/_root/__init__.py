@@ -25,7 +25,7 @@ except _metadata.PackageNotFoundError:  # pragma: no cover - run from a bare che
 
 #: Names re-exported from sub60.physics (loaded lazily, PEP 562); the same list as
 #: ``sub60.physics.__all__`` (a test keeps them in sync).
-_PHYSICS_API = ("BiasPoint", "Design", "Electrostatics", "FIELD_RANGES", "Metric",
+_PHYSICS_API = ("BiasPoint", "CHARGE_MODEL_NOTES", "Design", "Electrostatics", "FIELD_RANGES", "Metric",
                 "Metrics", "NON_IDEAL_OFF", "OutputCurve", "SeriesSolution", "Simulator",
                 "SolverError", "Spectrum", "TUNNELLING_MODELS", "TransferCurve",
                 "TransmissionComparison", "VD_RANGE_V", "VG_RANGE_V", "alloys", "band_alignment",

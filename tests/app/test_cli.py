@@ -132,6 +132,16 @@ def test_bands_csv_has_units_and_the_json_numbers(capsys):
     assert set(column("efs_eV")) == {rec["efs_eV"]} and set(column("efd_eV")) == {rec["efd_eV"]}
     assert float(comments["current_uA_per_um"]) == pytest.approx(rec["current_uA_per_um"],
                                                                    rel=1e-9)
+    # the models that made the numbers, in both formats
+    assert rec["models"]["charge"] == Design().charge_model == comments["charge_model"]
+    assert rec["models"]["tunnelling"] == "two-band" == comments["tunnelling_model"]
+
+
+def test_bands_name_the_subband_charge_model_when_set(capsys):
+    rec = json_of(capsys, "bands", "--vg", "0.2", "--vd", "0.3", "--set",
+                  "charge_model=subbands")
+    assert rec["models"]["charge"] == "subbands"
+    assert "2D density of states" in rec["models"]["charge_note"]
 
 
 # ----------------------------------------------------------------- transfer

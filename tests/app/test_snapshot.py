@@ -202,8 +202,11 @@ def test_captions_state_the_key_settings():
     text = figures.caption_text(d, 0.3, 0.25, "9.9")
     eot = d.oxide_thickness_nm * 3.9 / 22.0  # HfO2 permittivity of the project's record
     for part in ("InAs", "body 7 nm", "gate length 30 nm", f"EOT {eot:.2f} nm",
-                 "4e+19 cm", "Vg = 0.25 V", "Vd = 0.3 V", "T = 300 K", "not calibrated TCAD"):
+                 "4e+19 cm", "Vg = 0.25 V", "Vd = 0.3 V", "T = 300 K", "not calibrated TCAD",
+                 "carrier charge: semiclassical"):
         assert part in text, part
+    assert "carrier charge: subbands" in figures.caption_text(
+        d.replace(charge_model="subbands"), 0.3, 0.25)
 
 
 def test_transfer_reference_is_the_thermionic_limit():

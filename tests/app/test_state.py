@@ -299,6 +299,18 @@ def test_missing_metric_shows_its_reason():
     assert m.i60_uA_per_um.reason.split(" (")[0] in page
     assert 'data-metric="i60_uA_per_um" data-value=""' in page
     assert 'data-metric="ss_min_mV_per_dec" data-value="100' in page
+    assert "Carrier charge" not in page  # no models line unless given
+
+
+def test_metrics_strip_names_the_models_in_use():
+    from sub60.app.metrics_strip import models_text
+
+    vg = np.linspace(0.0, 0.6, 31)
+    m = figures_of_merit(vg, 1e-6 * 10 ** (vg / 0.1), 300.0, 1e-3, 0.3)
+    for charge in ("semiclassical", "subbands"):
+        page = metrics_html([("tfet", "Tunnel FET", m)], 300.0, 0.3,
+                            models_text(charge, "two-band"))
+        assert f"Carrier charge: {charge} (" in page and "Tunnelling: two-band." in page
 
 
 def test_current_format_picks_a_readable_unit():
