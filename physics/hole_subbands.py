@@ -106,24 +106,33 @@ class LuttingerWell:
     g3: np.ndarray
     coupling: bool = True
 
-    def _parts(self):
+    def _terms(self, k: float):
+        """The pieces of eq. (1) at k, unscaled: control volumes h (n,); flux couplings
+        t_hh, t_lh of each cell (n+1,); node diagonals diag_hh, diag_lh (n,); R at the
+        nodes (n,) and S between node i and i+1 (n-1,) (None without coupling) [eV, nm]."""
         d = np.diff(self.y_nm)
         h = 0.5 * (d[1:] + d[:-1])
         c = HBAR2_2M0_EV_NM2
-        return d, h, c
-
-    def blocks(self, k: float) -> tuple[np.ndarray, np.ndarray]:
-        """The symmetrised H of node i with itself (n, 4, 4) and with node i+1 (n-1, 4, 4)
-        [eV], B^(-1/2) H B^(-1/2) with B the control volumes."""
-        d, h, c = self._parts()
         g1, g2, g3 = self.g1, self.g2, self.g3
-        n = h.size
         k2 = k * k
         # kz g kz: flux couplings t_c = C g_c / d_c of each cell
         t_hh = c * (g1 - 2.0 * g2) / d
         t_lh = c * (g1 + 2.0 * g2) / d
         diag_hh = t_hh[1:] + t_hh[:-1] + _cells_to_nodes(self.v_cell + c * (g1 + g2) * k2, d)
         diag_lh = t_lh[1:] + t_lh[:-1] + _cells_to_nodes(self.v_cell + c * (g1 - g2) * k2, d)
+        r = s = None
+        if self.coupling:
+            r = _cells_to_nodes(-c * SQRT3 * 0.5 * (g2 + g3) * k2, d)
+            # S = 2 sqrt3 C k (g3 kz + kz g3)/2: element (i, i+1) of the first-derivative
+            # operator is -i g_c / 2 (module docstring); S(i+1, i) is its conjugate
+            s = 2.0 * SQRT3 * c * k * (-0.5j) * g3[1:-1]
+        return h, t_hh, t_lh, diag_hh, diag_lh, r, s
+
+    def blocks(self, k: float) -> tuple[np.ndarray, np.ndarray]:
+        """The symmetrised H of node i with itself (n, 4, 4) and with node i+1 (n-1, 4, 4)
+        [eV], B^(-1/2) H B^(-1/2) with B the control volumes."""
+        h, t_hh, t_lh, diag_hh, diag_lh, r, s = self._terms(k)
+        n = h.size
         A = np.zeros((n, 4, 4), complex)
         Bk = np.zeros((n - 1, 4, 4), complex)
         for a, dg in ((0, diag_hh), (1, diag_lh), (2, diag_lh), (3, diag_hh)):
@@ -131,12 +140,8 @@ class LuttingerWell:
         for a, t in ((0, t_hh), (1, t_lh), (2, t_lh), (3, t_hh)):
             Bk[:, a, a] = -t[1:-1]
         if self.coupling:
-            r = _cells_to_nodes(-c * SQRT3 * 0.5 * (g2 + g3) * k2, d)
             A[:, 0, 2] = A[:, 2, 0] = r
             A[:, 1, 3] = A[:, 3, 1] = r
-            # S = 2 sqrt3 C k (g3 kz + kz g3)/2: element (i, i+1) of the first-derivative
-            # operator is -i g_c / 2 (module docstring); S(i+1, i) is its conjugate
-            s = 2.0 * SQRT3 * c * k * (-0.5j) * g3[1:-1]  # (n-1,) S between node i and i+1
             # H[0,1] = -S, H[2,3] = +S, H[1,0] = -S^dagger, H[3,2] = +S^dagger
             Bk[:, 0, 1] = -s
             Bk[:, 2, 3] = s
@@ -173,23 +178,18 @@ class LuttingerWell:
         valid for any profile V(y), the two blocks degenerate in a symmetric well. The
         tests check that their eigenvalues together are those of the 4x4 matrix.
         """
-        d, h, c = self._parts()
-        g1, g2, g3 = self.g1, self.g2, self.g3
+        h, t_hh, t_lh, diag_hh, diag_lh, r, s = self._terms(k)
         n = h.size
-        k2 = k * k
-        t_hh = c * (g1 - 2.0 * g2) / d
-        t_lh = c * (g1 + 2.0 * g2) / d
         scale = 1.0 / h
         band = np.zeros((4, 2 * n), complex)  # upper form, u = 3: node-major, (HH, LH)
-        band[3, 0::2] = (t_hh[1:] + t_hh[:-1] + _cells_to_nodes(self.v_cell + c * (g1 + g2) * k2, d)) * scale
-        band[3, 1::2] = (t_lh[1:] + t_lh[:-1] + _cells_to_nodes(self.v_cell + c * (g1 - g2) * k2, d)) * scale
+        band[3, 0::2] = diag_hh * scale
+        band[3, 1::2] = diag_lh * scale
         off = 1.0 / np.sqrt(h[:-1] * h[1:])
         band[1, 2::2] = -t_hh[1:-1] * off  # HH_i with HH_i+1
         band[1, 3::2] = -t_lh[1:-1] * off  # LH_i with LH_i+1
         if self.coupling:
-            r = _cells_to_nodes(-c * SQRT3 * 0.5 * (g2 + g3) * k2, d) * scale
-            s_op = 2.0 * SQRT3 * c * k * (-0.5j) * g3[1:-1] * off  # S(i, i+1); S(i+1, i) = -s_op
-            band[2, 1::2] = r  # HH_i with LH_i: R
+            s_op = s * off  # S(i, i+1); S(i+1, i) = -s_op
+            band[2, 1::2] = r * scale  # HH_i with LH_i: R
             band[0, 3::2] = sign * 1j * s_op  # HH_i with LH_i+1: +s i S(i, i+1)
             band[2, 2::2] = np.conj(sign * 1j * -s_op)  # LH_i with HH_i+1: conj of (HH_i+1, LH_i)
         return eig_banded(band, lower=False, eigvals_only=True, select="i",
