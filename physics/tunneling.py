@@ -174,24 +174,9 @@ def wkb_exponent_transverse(
                       np.ascontiguousarray(ev), float(up_eV_nm2), float(down_eV_nm2),
                       np.ascontiguousarray(kv), np.ascontiguousarray(e), float(mass_rel),
                       model == "two-band", _GL_X, _GL_W)
-    out = np.empty(kv.shape)  # reference path: one energy at a time
-    x = np.asarray(x_nm, float)
-    scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
-    for kk in range(kv.shape[0]):
-        for ie in range(e.size):
-            ec_k = ec + up_eV_nm2 * kv[kk, ie] ** 2
-            ev_k = ev - down_eV_nm2 * kv[kk, ie] ** 2
-            if e[ie] >= ev_k[0] or e[ie] <= ec_k[-1]:
-                out[kk, ie] = np.inf
-            elif model == "two-band":
-                q = kv[kk, ie] ** 2 / scale**2
-                out[kk, ie] = 2.0 * scale * sum(
-                    segment_integral_transverse(ec[i] - e[ie], ec[i + 1] - e[ie], e[ie] - ev[i],
-                                                e[ie] - ev[i + 1], q, x[i + 1] - x[i], _GL_X, _GL_W)
-                    for i in range(x.size - 1))
-            else:
-                out[kk, ie] = wkb_exponent(x_nm, ec_k, ev_k, e[ie:ie + 1], mass_rel, model)[0]
-    return out
+    k2 = kv**2  # reference path: one energy at a time, the parabolic shifts per node
+    return wkb_exponent_shifts_reference(x_nm, ec, ev, float(up_eV_nm2) * k2,
+                                         float(down_eV_nm2) * k2, kv, e, float(mass_rel), model)
 
 
 def _exponent_varying_mass(x, ec, ev, up, down, kv, e, mass_seg, model, down_shift=None):

@@ -302,3 +302,23 @@ def test_two_band_transverse_kernel_against_quad(seed):
     ref = 2 * integrate.quad(kappa, x[0], x[-1], points=x[1:-1], limit=400,
                              epsabs=1e-10, epsrel=1e-10)[0]
     assert got == pytest.approx(ref, rel=1e-3)
+
+
+@pytest.mark.parametrize("model", WKB_MODELS)
+def test_plain_python_path_without_numba_equals_the_compiled_kernel_at_k_above_zero(
+        monkeypatch, model):
+    """Without numba the transverse exponent runs in plain Python (the per-node-shift
+    reference with parabolic shifts); on a uniform field at k > 0 it gives the compiled
+    kernel's exponent to 1e-10 (regression equivalence, no outside source)."""
+    from sub60.physics import tunneling
+
+    x = np.linspace(0.0, 12.0, 61)
+    ec, ev = uniform_field(x)
+    e = np.linspace(float(ec[-1]) + 0.02, float(ev[0]) - 0.02, 7)
+    k = np.array([[0.0] * e.size, [0.3] * e.size, [0.8] * e.size])
+    fast = wkb_exponent_transverse(x, ec, ev, 0.9, 1.1, k, e, 0.03, model)
+    monkeypatch.setattr(tunneling, "_KERNEL", False)  # as when numba is missing
+    slow = wkb_exponent_transverse(x, ec, ev, 0.9, 1.1, k, e, 0.03, model)
+    finite = np.isfinite(fast)
+    assert finite.sum() > e.size and np.array_equal(finite, np.isfinite(slow))
+    np.testing.assert_allclose(slow[finite], fast[finite], rtol=1e-10)
