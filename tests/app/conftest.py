@@ -217,6 +217,27 @@ def open_cards(page, timeout_ms: float = PAGE_TIMEOUT_MS) -> None:
     page.wait_for_function("() => sub60.cardsFilled()", timeout=timeout_ms)
 
 
+#: The page's error banner text ('' while hidden).
+ERROR_TEXT = "() => { const a = sub60.byClass('sub60-error'); return a.visible ? a.text : ''; }"
+
+
+def type_into(page, css: str, text: str) -> None:
+    """Type ``text`` into the box of the widget with CSS class ``css`` as a user does
+    (click, select all, type key by key) and confirm with Enter."""
+    entry = page.locator(f".{css} input")
+    entry.click()
+    entry.press("Control+a")
+    entry.type(text)
+    entry.press("Enter")
+
+
+def url_query(page) -> dict[str, str]:
+    """The page address's query fields (first value of each)."""
+    from urllib.parse import parse_qs, urlsplit
+
+    return {k: v[0] for k, v in parse_qs(urlsplit(page.url).query).items()}
+
+
 def browser_or_skip():
     """The Playwright Chromium launcher, or skip (fail with SUB60_REQUIRE_BROWSER=1)."""
     required = os.environ.get("SUB60_REQUIRE_BROWSER") == "1"

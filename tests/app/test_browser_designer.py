@@ -9,7 +9,6 @@ state's bounds; expected values come from the physics package or the page addres
 from __future__ import annotations
 
 import math
-from urllib.parse import parse_qs, urlsplit
 
 import numpy as np
 import pytest
@@ -18,24 +17,10 @@ from playwright.sync_api import expect
 from sub60.physics import FIELD_RANGES, VG_RANGE_V
 from sub60.physics.design import Design
 from sub60.physics.simulate import Simulator
-from tests.app.conftest import open_app, open_cards
+from tests.app.conftest import ERROR_TEXT, open_app, open_cards, type_into, url_query
 
 pytestmark = pytest.mark.browser
 
-ERROR_TEXT = "() => { const a = sub60.byClass('sub60-error'); return a.visible ? a.text : ''; }"
-
-
-def _enter(page, css: str, text: str) -> None:
-    """Type into a box as a user does and confirm with Enter."""
-    entry = page.locator(f".{css} input")
-    entry.click()
-    entry.press("Control+a")
-    entry.type(text)
-    entry.press("Enter")
-
-
-def _query(page) -> dict[str, str]:
-    return {k: v[0] for k, v in parse_qs(urlsplit(page.url).query).items()}
 
 
 def test_doping_and_ioff_entries_take_typed_numbers(browser, app_url):
@@ -43,13 +28,13 @@ def test_doping_and_ioff_entries_take_typed_numbers(browser, app_url):
     try:
         open_cards(page)
         # 4.2e19 is not on the slider's 0.05-decade steps (10**19.6 = 3.98e19, 10**19.65)
-        _enter(page, "entry-source_doping_log10_cm3", "4.2e19")
+        type_into(page, "entry-source_doping_log10_cm3", "4.2e19")
         page.wait_for_function(
             "() => new URLSearchParams(location.search).get('src_cm3') === '4.2e19'",
             timeout=30_000)
         slider = page.evaluate("() => sub60.sliderOf('ctl-source_doping_log10_cm3').value")
         assert slider == pytest.approx(math.log10(4.2e19), abs=1e-9)
-        _enter(page, "entry-ioff_log10_uA_per_um", "2e-4")
+        type_into(page, "entry-ioff_log10_uA_per_um", "2e-4")
         page.wait_for_function(
             "() => new URLSearchParams(location.search).get('ioff_uA_um') === '0.0002'",
             timeout=30_000)
@@ -77,9 +62,9 @@ def test_typed_doping_or_ioff_out_of_range_is_refused(browser, app_url, css, tex
     page, _, errors = open_app(browser, app_url)
     try:
         open_cards(page)
-        before = _query(page)
+        before = url_query(page)
         box_before = page.locator(f".{css} input").input_value()
-        _enter(page, css, text)
+        type_into(page, css, text)
         page.wait_for_function(f"() => ({ERROR_TEXT})().includes('not allowed')",
                                timeout=20_000)
         message = page.evaluate(ERROR_TEXT)
@@ -88,8 +73,8 @@ def test_typed_doping_or_ioff_out_of_range_is_refused(browser, app_url, css, tex
         high_t = f"{high:g}".replace("e+", "e").replace("e-0", "e-").replace("e0", "e")
         assert f"from {low_t} to {high_t}" in message, message
         expect(page.locator(f".{css} input")).to_have_value(box_before, timeout=10_000)
-        assert _query(page) == before
-        _enter(page, css, box_before)  # a valid value takes the message away
+        assert url_query(page) == before
+        type_into(page, css, box_before)  # a valid value takes the message away
         page.wait_for_function(f"() => ({ERROR_TEXT})() === ''", timeout=20_000)
         assert not errors, errors
     finally:
@@ -134,7 +119,7 @@ def test_copy_link_writes_the_page_link_and_says_pins_are_left_out(browser, app_
         page, _, errors = open_app(_Context(context), app_url)
         note = page.locator(".link-note")
         expect(note).to_contain_text("pinned designs are not in it")
-        _enter(page, "ctl-vg_V", "0.1")
+        type_into(page, "ctl-vg_V", "0.1")
         page.wait_for_function("() => new URLSearchParams(location.search).get('vg') === '0.1'",
                                timeout=30_000)
         page.locator(".copy-link button").click()
@@ -142,7 +127,7 @@ def test_copy_link_writes_the_page_link_and_says_pins_are_left_out(browser, app_
         copied = page.evaluate("() => navigator.clipboard.readText()")
         assert copied == page.url
         # the link reproduces the design: a new page opened on it has the same settings
-        assert _query(page)["vg"] == "0.1" and "src_cm3" in _query(page)
+        assert url_query(page)["vg"] == "0.1" and "src_cm3" in url_query(page)
         assert not errors, errors
     finally:
         context.close()
@@ -177,7 +162,7 @@ def test_pinned_design_on_swing_and_output_plots(browser, app_url):
         assert out["vg"][0] == pytest.approx(0.3) and last["vg"][0] == pytest.approx(0.3)
         assert out["id"] == pytest.approx(last["id"], rel=1e-9)
         # a new gate voltage: the pinned output curve follows (solved for the pin)
-        _enter(page, "ctl-vg_V", "0.2")
+        type_into(page, "ctl-vg_V", "0.2")
         page.wait_for_function(
             "() => Math.abs(sub60.data('pin_output_source_0').vg[0] - 0.2) < 1e-9",
             timeout=60_000)
@@ -222,7 +207,7 @@ def test_reference_band_diagram_with_both_tunnel_windows(browser, app_url):
     try:
         assert page.evaluate("() => sub60.data('reference_band_source').x_nm.length") == 0
         page.locator(".reference-on input").check()
-        _enter(page, "reference-vg", "-0.3")
+        type_into(page, "reference-vg", "-0.3")
         # the reference at Vg = -0.3 V (present bias 0.3 V): the physics' own band edges
         # (`physics.simulate.Simulator.solve_bias`), and its drain-side (ambipolar) window
         page.wait_for_function(
@@ -241,7 +226,7 @@ def test_reference_band_diagram_with_both_tunnel_windows(browser, app_url):
         title = page.evaluate("() => sub60.model('band_plot').title.text")
         assert "reference Vg = -0.30 V" in title and "drain" in title, title
         # an out-of-range reference is refused with a message naming it and its range
-        _enter(page, "reference-vg", "5")
+        type_into(page, "reference-vg", "5")
         page.wait_for_function(f"() => ({ERROR_TEXT})().includes('Reference gate voltage')",
                                timeout=20_000)
         low, high = VG_RANGE_V

@@ -10,33 +10,19 @@ physics package called directly (as in ``test_browser.py``).
 from __future__ import annotations
 
 import re
-from urllib.parse import parse_qs, urlsplit
 
 import pytest
 from playwright.sync_api import expect
 
 from sub60.physics import FIELD_RANGES, VD_RANGE_V, VG_RANGE_V
-from tests.app.conftest import open_app
+from tests.app.conftest import ERROR_TEXT, open_app, type_into, url_query
 
 pytestmark = pytest.mark.browser
 
-ERROR_TEXT = "() => { const a = sub60.byClass('sub60-error'); return a.visible ? a.text : ''; }"
 
 
 def _range(field: str) -> tuple[float, float]:
     return float(FIELD_RANGES[field].low), float(FIELD_RANGES[field].high)
-
-
-def _type(page, name: str, text: str) -> None:
-    entry = page.locator(f".ctl-{name} input")
-    entry.click()
-    entry.press("Control+a")
-    entry.type(text)
-    entry.press("Enter")
-
-
-def _query(page) -> dict[str, str]:
-    return {k: v[0] for k, v in parse_qs(urlsplit(page.url).query).items()}
 
 
 def _fill(page, name: str, text: str) -> None:
@@ -78,9 +64,9 @@ def test_out_of_range_typed_value_is_refused_with_a_message(browser, app_url, na
     page, _, errors = open_app(browser, app_url)
     try:
         band_before = page.evaluate("() => sub60.data('band_source')")
-        query_before = _query(page)
+        query_before = url_query(page)
         box_before = page.locator(f".ctl-{name} input").input_value()
-        _type(page, name, text)
+        type_into(page, f"ctl-{name}", text)
         page.wait_for_function(f"() => ({ERROR_TEXT})().includes('not allowed')",
                                timeout=20_000)
         message = page.evaluate(ERROR_TEXT)
@@ -89,9 +75,9 @@ def test_out_of_range_typed_value_is_refused_with_a_message(browser, app_url, na
         # the box shows the kept value, the plots and the link did not change
         expect(page.locator(f".ctl-{name} input")).to_have_value(box_before, timeout=10_000)
         assert page.evaluate("() => sub60.data('band_source')") == band_before
-        assert _query(page) == query_before
+        assert url_query(page) == query_before
         # a valid value afterwards takes the message away
-        _type(page, name, box_before)
+        type_into(page, f"ctl-{name}", box_before)
         page.wait_for_function(f"() => ({ERROR_TEXT})() === ''", timeout=20_000)
         assert not errors, errors
     finally:
@@ -111,7 +97,7 @@ def test_gate_voltage_by_arrow_keys_has_no_float_noise(browser, app_url):
                                                               timeout=10_000)
         box = page.locator(".ctl-vg_V input").input_value()
         assert re.fullmatch(r"-?\d+(\.\d{1,2})?", box), box  # a multiple of the 0.01 V step
-        assert re.fullmatch(r"-?\d+(\.\d{1,2})?", _query(page)["vg"]), _query(page)
+        assert re.fullmatch(r"-?\d+(\.\d{1,2})?", url_query(page)["vg"]), url_query(page)
         assert not errors, errors
     finally:
         page.close()

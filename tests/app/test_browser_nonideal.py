@@ -12,21 +12,12 @@ from __future__ import annotations
 import pytest
 
 from sub60.physics import FIELD_RANGES
-from tests.app.conftest import open_app
+from tests.app.conftest import ERROR_TEXT, open_app, type_into
 
 pytestmark = pytest.mark.browser
 
-ERROR_TEXT = "() => { const a = sub60.byClass('sub60-error'); return a.visible ? a.text : ''; }"
 BREAKDOWN = "() => sub60.byClass('ni-breakdown-pane').text"
 FIELD = "tail_energy_channel_meV"
-
-
-def _type(page, name: str, text: str) -> None:
-    entry = page.locator(f".ctl-{name} input")
-    entry.click()
-    entry.press("Control+a")
-    entry.type(text)
-    entry.press("Enter")
 
 
 def test_typed_tail_energy_shows_ideal_curve_and_breakdown(browser, app_url):
@@ -35,7 +26,7 @@ def test_typed_tail_energy_shows_ideal_curve_and_breakdown(browser, app_url):
         page.locator(".card-header", has_text="Non-idealities").first.click()
         page.locator(f".ctl-{FIELD} input").wait_for(state="visible", timeout=20_000)
         assert page.evaluate("() => sub60.data('transfer_ideal_source').vg.length") == 0
-        _type(page, FIELD, "10")
+        type_into(page, f"ctl-{FIELD}", "10")
         page.wait_for_function("() => sub60.data('transfer_ideal_source').vg.length === 41",
                                timeout=240_000)
         page.wait_for_function(f"() => ({BREAKDOWN})().includes('band tails')",
@@ -70,7 +61,7 @@ def test_out_of_range_tail_energy_is_refused_naming_the_field(browser, app_url):
     try:
         page.locator(".card-header", has_text="Non-idealities").first.click()
         page.locator(f".ctl-{FIELD} input").wait_for(state="visible", timeout=20_000)
-        _type(page, FIELD, "200")
+        type_into(page, f"ctl-{FIELD}", "200")
         page.wait_for_function(f"() => ({ERROR_TEXT})().includes('not allowed')",
                                timeout=20_000)
         message = page.evaluate(ERROR_TEXT)
