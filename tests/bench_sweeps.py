@@ -2,6 +2,7 @@
 
     python tests/bench_sweeps.py [--designs 32] [--repeats 3] [--big 500] [--vg-points 46]
     python tests/bench_sweeps.py --quick      # a reduced run to check that it works (~2 min)
+    python tests/bench_sweeps.py --dask-defaults --big 0   # the same with Dask's own settings
 
 Prints, from one run (medians over the repeats; 1- and 2-worker runs interleaved):
 
@@ -57,7 +58,15 @@ def _cluster(n: int):
     from sub60.physics import Design
 
     t0 = time.perf_counter()
-    cluster = local_cluster(n)  # the engine's own settings (`LOCAL_CLUSTER_CONFIG`)
+    if DASK_DEFAULTS:  # for comparison: Dask's own settings, as before LOCAL_CLUSTER_CONFIG
+        from distributed import LocalCluster
+
+        from sub60.app.sweep_engine import LOCAL_CLUSTER_OPTIONS
+
+        cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
+                               **LOCAL_CLUSTER_OPTIONS)
+    else:
+        cluster = local_cluster(n)  # the engine's own settings (`LOCAL_CLUSTER_CONFIG`)
     client = Client(cluster)
     started = time.perf_counter() - t0
     warm = task_inputs(Design(), _spec(2, 2, 5), model_version())
@@ -67,6 +76,7 @@ def _cluster(n: int):
 
 
 CPU_SHARE: dict[int, list[float]] = {1: [], 2: []}
+DASK_DEFAULTS = False
 FIXED_S: list[float] = []
 
 
@@ -93,7 +103,12 @@ def main() -> None:
     ap.add_argument("--quick", action="store_true",
                     help="a reduced run: 8 designs, 1 repeat, a 40-design big sweep, 15 gate "
                          "voltages, 200 trivial tasks (checks the script; figures are rough)")
+    ap.add_argument("--dask-defaults", action="store_true",
+                    help="run the clusters with Dask's default settings instead of the "
+                         "engine's LOCAL_CLUSTER_CONFIG (to compare the two)")
     a = ap.parse_args()
+    global DASK_DEFAULTS
+    DASK_DEFAULTS = a.dask_defaults
     if a.quick:
         a.designs, a.repeats, a.big, a.vg_points, a.noop = 8, 1, 40, 15, 200
     if a.designs < 2 or a.repeats < 1 or a.big < 0 or not 3 <= a.vg_points <= 401:
@@ -101,7 +116,9 @@ def main() -> None:
     load_before = os.getloadavg()[0]
 
     print(f"cores: {os.cpu_count()}, load average before: {load_before:.2f}"
-          + (" (quick run)" if a.quick else ""))
+          + (" (quick run)" if a.quick else "")
+          + ("; clusters with Dask's default settings" if a.dask_defaults else
+             "; clusters with the engine's settings"))
     spec = _spec(a.designs // 2, 2, a.vg_points)
     # one cluster at a time: an idle second cluster would take CPU from the measured one
     starts: dict[int, list[float]] = {1: [], 2: []}
