@@ -26,7 +26,6 @@ import importlib.resources
 import logging
 import weakref
 from collections.abc import Callable
-from contextlib import nullcontext
 from pathlib import Path
 from typing import Any
 
@@ -103,29 +102,43 @@ if (!window.sub60PresentKey) {
 """
 
 #: The presentation toggle's looks, applied in the browser at the click (or P key) without
-#: waiting for the server: the page, header, metrics and status take the css class
-#: 'presenting'; the page's stylesheet (`PAGE_CSS`) then hides the controls. The server's
-#: watcher (`Explorer._on_presentation`) sets the same classes afterwards (no change then
-#: reaches the browser). Hiding the controls by a class, not by their Bokeh `visible`,
-#: spares the browser a layout pass of every model on the page.
+#: waiting for the server: the page takes the css class 'presenting'; the page's stylesheet
+#: (`PAGE_CSS`) then hides the controls and sets the CSS variables that the header,
+#: metrics and status text (assets/style.css) and the figures' rows read. The server's
+#: watcher (`Explorer._on_presentation`) sets the same class afterwards (no change then
+#: reaches the browser). One class of one model: each model whose classes change makes
+#: Bokeh lay the whole page out again (a class on the header, metrics and status too made
+#: four layouts of the page a toggle); hiding the controls by a class, not by their Bokeh
+#: `visible`, spares the browser a layout pass of every model on the page.
 PRESENT_LOOKS_JS = """
 const on = source.active;
-for (const pane of [page, header, metrics, status]) {
-  const rest = pane.css_classes.filter((c) => c !== 'presenting');
-  pane.css_classes = on ? [...rest, 'presenting'] : rest;
-}
+const rest = page.css_classes.filter((c) => c !== 'presenting');
+page.css_classes = on ? [...rest, 'presenting'] : rest;
 """
-#: The page row's own stylesheet: in presentation the controls are not shown and the
-#: figures' rows take their heights from the window's (CSS variables inherited by every
-#: figure below: `ExplorerFigures.DESK_ROW_HEIGHTS` at the desk). A window under 900 px
-#: tall (1280x720) shows the first row under the header, what-if row and metrics, and the
-#: second row a screen of its own under the what-if row when scrolled; a taller one
-#: (1920x1080) shows both rows, and the plot options between them, on the first screen.
+#: The page row's own stylesheet: in presentation the controls are not shown, the header,
+#: metrics and status text grow (variables inherited by every pane below it: their
+#: defaults in assets/style.css are the desk's sizes), and the figures' rows take their
+#: heights from the window's (CSS variables inherited by every figure below:
+#: `ExplorerFigures.DESK_ROW_HEIGHTS` at the desk). A window under 900 px tall (1280x720)
+#: shows the first row under the header, what-if row and metrics, and the second row a
+#: screen of its own under the what-if row when scrolled; a taller one (1920x1080) shows
+#: both rows, and the plot options between them, on the first screen.
 PAGE_CSS = """
 :host(.presenting) .sub60-sidebar { display: none !important; }
 :host(.presenting) {
   --sub60-row1-h: max(300px, calc(100vh - 366px));
   --sub60-row2-h: max(300px, calc(100vh - 75px));
+  --sub60-title-size: 28px;
+  --sub60-summary-size: 18px;
+  --sub60-caution-size: 15px;
+  --sub60-caution-long: none;
+  --sub60-caution-short: block;
+  --sub60-metrics-size: 19px;
+  --sub60-metrics-head-size: 16px;
+  --sub60-metrics-note-size: 14px;
+  --sub60-badge-size: 15px;
+  --sub60-badge-padding: 1px 6px;
+  --sub60-status-size: 15px;
 }
 @media (min-height: 900px) {
   :host(.presenting) {
@@ -248,9 +261,7 @@ class Explorer(pn.viewable.Viewer):
         self.tabs.param.watch(self._on_tab, "active")
         self._page = pn.Row(self.sidebar, self.tabs, sizing_mode="stretch_width", margin=0,
                             css_classes=["sub60-page"], stylesheets=[PAGE_CSS])
-        self.presentation_toggle.jscallback(
-            args={"page": self._page, "header": self.header, "metrics": r.metrics,
-                  "status": r.status}, value=PRESENT_LOOKS_JS)
+        self.presentation_toggle.jscallback(args={"page": self._page}, value=PRESENT_LOOKS_JS)
 
     def _watch(self) -> None:
         """One watcher per concern (each called once per batch of changes)."""
@@ -334,17 +345,16 @@ class Explorer(pn.viewable.Viewer):
     # ------------------------------------------------------------------ watchers
     def _on_presentation(self, event) -> None:
         """The controls hide (or show) and the header, metrics and status text grow: the
-        page and those panes take the css class 'presenting' (the browser has done so at
-        the click already: `PRESENT_LOOKS_JS`), in one document update. No figure property
-        changes: the figures stretch over the width they get (`ExplorerFigures.WIDTH_SHARES`),
-        so the browser widens them all in the one reflow of the page without the controls
-        (resizing them one by one from here made the browser lay the page out for each)."""
+        page takes the css class 'presenting' (the browser has done so at the click
+        already: `PRESENT_LOOKS_JS`; its stylesheet `PAGE_CSS` sets what the panes below
+        read). No other model changes: the figures stretch over the width they get
+        (`ExplorerFigures.WIDTH_SHARES`) and over their rows' heights, so the browser
+        resizes them all in the one layout of the page (resizing them one by one from
+        here made the browser lay the page out for each, and so did a class on each pane)."""
         on = bool(event.new)
-        doc = self._doc
-        with hold(doc) if doc is not None else nullcontext():
-            for pane in (self._page, self.header, self.results.metrics, self.results.status):
-                pane.css_classes = [c for c in pane.css_classes if c != "presenting"] + (
-                    ["presenting"] if on else [])
+        page = self._page
+        page.css_classes = [c for c in page.css_classes if c != "presenting"] + (
+            ["presenting"] if on else [])
 
     @property
     def presenting(self) -> bool:

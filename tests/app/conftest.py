@@ -89,17 +89,20 @@ window.sub60 = {
       items.every((item, k) =>
         !item.visible || this.model('output_source_' + k).data.vd.length > 0);
   },
+  titleSize() {               // the header's title as drawn [px] (grows in presentation)
+    const el = Bokeh.index.find_one(this.byClass('sub60-header')).el;
+    const title = el.shadowRoot.querySelector('.title');
+    return parseFloat(getComputedStyle(title).fontSize);
+  },
   presenting() {              // presentation look: controls not shown, header enlarged
     const side = Bokeh.index.find_one(this.byClass('sub60-sidebar'));
     return this.byClass('sub60-page').css_classes.includes('presenting') &&
-      this.byClass('sub60-header').css_classes.includes('presenting') &&
-      side.el.getBoundingClientRect().width === 0;
+      this.titleSize() > 24 && side.el.getBoundingClientRect().width === 0;
   },
   desk() {                    // desk look: controls shown, header as usual
     const side = Bokeh.index.find_one(this.byClass('sub60-sidebar'));
     return !this.byClass('sub60-page').css_classes.includes('presenting') &&
-      !this.byClass('sub60-header').css_classes.includes('presenting') &&
-      side.el.getBoundingClientRect().width > 0;
+      this.titleSize() < 24 && side.el.getBoundingClientRect().width > 0;
   },
   allDone(n) {
     return this.curvesDone(n) && this.outputsDone();
