@@ -102,18 +102,22 @@ if (!window.sub60PresentKey) {
 """
 
 #: The presentation toggle's looks, applied in the browser at the click (or P key) without
-#: waiting for the server: the page takes the css class 'presenting'; the page's stylesheet
-#: (`PAGE_CSS`) then hides the controls and sets the CSS variables that the header,
-#: metrics and status text (assets/style.css) and the figures' rows read. The server's
-#: watcher (`Explorer._on_presentation`) sets the same class afterwards (no change then
-#: reaches the browser). One class of one model: each model whose classes change makes
-#: Bokeh lay the whole page out again (a class on the header, metrics and status too made
-#: four layouts of the page a toggle); hiding the controls by a class, not by their Bokeh
-#: `visible`, spares the browser a layout pass of every model on the page.
+#: waiting for the server: the page's element takes the css class 'presenting'; the page's
+#: stylesheet (`PAGE_CSS`) then hides the controls and sets the CSS variables that the
+#: header, metrics and status text (assets/style.css) and the figures' rows read. The
+#: page model takes the class silently (no change event in the browser): a change of a
+#: model's classes makes Bokeh lay the whole page out again, model by model, with a style
+#: read of every figure's lines and texts after each write (seconds a toggle). The browser
+#: lays the page out by its stylesheets alone, as when the window is resized, and each
+#: figure whose size changed redraws itself. The server's watcher
+#: (`Explorer._on_presentation`) sets the same class on the model afterwards: the value the
+#: browser holds already, so nothing changes there.
 PRESENT_LOOKS_JS = """
 const on = source.active;
 const rest = page.css_classes.filter((c) => c !== 'presenting');
-page.css_classes = on ? [...rest, 'presenting'] : rest;
+page.setv({css_classes: on ? [...rest, 'presenting'] : rest}, {silent: true});
+const view = Bokeh.index.find_one(page);
+if (view != null) { view.el.classList.toggle('presenting', on); }
 """
 #: The page row's own stylesheet: in presentation the controls are not shown, the header,
 #: metrics and status text grow (variables inherited by every pane below it: their
@@ -248,12 +252,12 @@ class Explorer(pn.viewable.Viewer):
                               self.material_card.view, self.measured_card.view,
                               self.pin_view.compare.view, sizing_mode="stretch_width",
                               css_classes=["sub60-main"], margin=0)
-        # design sweeps in a tab of their own (app.sweep_view); a picked design comes back here
-        sim = self.jobs
-        self.sweep_view = SweepView(self.state, lambda: (sim.simulator.resolution, sim.simulator.model),
-                                    css, self._post, on_load=lambda: setattr(self.tabs, "active", 0))
-        # the sweep tab's contents reach the browser when the tab is first shown (its
-        # hundred-odd models need not slow every page's opening)
+        # design sweeps in a tab of their own (app.sweep_view, made when first asked for:
+        # `sweep_view`); a picked design comes back here. The tab's contents are made and
+        # reach the browser when the tab is first shown (its hundred-odd models need not
+        # slow every page's opening)
+        self._css = css
+        self._sweep_view: SweepView | None = None
         self._sweep_slot = pn.Column(sizing_mode="stretch_width", margin=0)
         self.tabs = pn.Tabs(("Explorer", self.main), ("Design sweeps", self._sweep_slot),
                             sizing_mode="stretch_width", margin=0, css_classes=["sub60-tabs"],
@@ -307,7 +311,8 @@ class Explorer(pn.viewable.Viewer):
         watchers are dropped. Safe to call more than once."""
         self.jobs.close()
         self.pin_jobs.close()
-        self.sweep_view.close()
+        if self._sweep_view is not None:
+            self._sweep_view.close()
         self.material_card.close()
         self.measured_card.close()
         self.whatif.close()
@@ -355,6 +360,16 @@ class Explorer(pn.viewable.Viewer):
         page = self._page
         page.css_classes = [c for c in page.css_classes if c != "presenting"] + (
             ["presenting"] if on else [])
+
+    @property
+    def sweep_view(self) -> SweepView:
+        """The design-sweeps tab's view (made at the first call)."""
+        if self._sweep_view is None:
+            sim = self.jobs
+            self._sweep_view = SweepView(
+                self.state, lambda: (sim.simulator.resolution, sim.simulator.model),
+                self._css, self._post, on_load=lambda: setattr(self.tabs, "active", 0))
+        return self._sweep_view
 
     @property
     def presenting(self) -> bool:
