@@ -227,3 +227,40 @@ def test_presentation_fills_the_window_and_takes_a_typed_vg(browser, app_url, tm
         assert not errors, errors
     finally:
         page.close()
+
+
+#: Counts Bokeh's layouts of the whole page (its root view's ``update_layout``: every
+#: model whose classes, size or styles change makes Bokeh lay out the page again, model
+#: by model, reading every figure's styles after each write).
+COUNT_LAYOUTS_JS = """() => {
+  let v = Bokeh.index.find_one(sub60.byClass('sub60-page'));
+  while (v.parent != null && typeof v.parent.update_layout === 'function') { v = v.parent; }
+  window.sub60Layouts = 0;
+  const own = v.update_layout;
+  v.update_layout = function (...a) { window.sub60Layouts += 1; return own.apply(this, a); };
+  return v.model.type;
+}"""
+
+
+def test_presentation_toggle_leaves_the_page_layout_to_the_browser(browser, app_url):
+    """Toggling the presentation look makes no Bokeh layout of the whole page (the page's
+    class changes in the browser; its stylesheets resize the figures, as a window resize
+    does): before, a class on the page, header, metrics and status made four a toggle.
+    The look is there all the same (controls hidden, title enlarged; `sub60.presenting`),
+    and every figure ends inside the window with nothing cut (`_check_layout`)."""
+    page, _, errors = open_app(browser, app_url)
+    try:
+        page.evaluate(COUNT_LAYOUTS_JS)
+        button = page.get_by_role("button", name="Presentation mode")
+        button.click()
+        page.wait_for_function("() => sub60.presenting()", timeout=60_000)
+        _settle(page)
+        _check_layout(page, 1600)
+        assert page.evaluate("() => window.sub60Layouts") == 0
+        button.click()
+        page.wait_for_function("() => sub60.desk()", timeout=60_000)
+        _settle(page)
+        assert page.evaluate("() => window.sub60Layouts") == 0
+        assert not errors, errors
+    finally:
+        page.close()
