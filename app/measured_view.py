@@ -127,7 +127,14 @@ class MeasuredCard:
         self.table = pn.pane.HTML("", stylesheets=list(css), sizing_mode="stretch_width")
         self.fitted = pn.pane.HTML("", stylesheets=list(css), sizing_mode="stretch_width",
                                    css_classes=["measured-fitted"])
-        self.plot = pn.pane.Bokeh(self._figure(), sizing_mode="stretch_width")
+        # the data sources now, the figures when the card is first opened (`_opened`): a
+        # page opens without making them
+        from bokeh.models import ColumnDataSource
+
+        self._data_src = ColumnDataSource({"vg": [], "id": []})
+        self._fit_src = ColumnDataSource({"vg": [], "id": []})
+        self._res_src = ColumnDataSource({"vg": [], "r": []})
+        self.plot = pn.pane.Bokeh(None, sizing_mode="stretch_width")
         self.file.param.watch(self._file_changed, "value")
         self.demo.on_click(lambda _e: self.open(demo_bytes(), DEMO_NAME))
         self.fit_button.on_click(lambda _e: self.start_fit())
@@ -149,6 +156,7 @@ class MeasuredCard:
 
     def _opened(self, event: Any) -> None:
         if not event.new and not self.view.objects:
+            self.plot.object = self._figure()
             self.view.objects = list(self._content)
 
     # ------------------------------------------------------------------ reading
@@ -293,12 +301,8 @@ class MeasuredCard:
 
     def _figure(self) -> Any:
         from bokeh.layouts import column
-        from bokeh.models import ColumnDataSource
         from bokeh.plotting import figure
 
-        self._data_src = ColumnDataSource({"vg": [], "id": []})
-        self._fit_src = ColumnDataSource({"vg": [], "id": []})
-        self._res_src = ColumnDataSource({"vg": [], "r": []})
         top = figure(height=330, sizing_mode="stretch_width", y_axis_type="log",
                      x_axis_label="Vg [V]", y_axis_label="Id [µA/µm]",
                      title="Measured curve (open circles) and fitted model (line)",

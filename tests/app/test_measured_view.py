@@ -31,8 +31,13 @@ def test_demo_opens_and_shows_its_points_and_metrics(card):
 
 def test_the_card_is_filled_when_first_opened(card):
     assert card.view.collapsed and not card.view.objects  # nothing sent before it is opened
+    assert card.plot.object is None  # nor its figures made
+    card.open(demo_bytes(), "demo.csv")  # a file opened before: its points are drawn
     card.view.collapsed = False
     assert card.plot in card.view.objects and card.fit_button in card.view.objects[2].objects
+    top = card.plot.object.children[0]
+    assert any(getattr(r, "data_source", None) is card._data_src for r in top.renderers)
+    assert len(card._data_src.data["vg"]) == 41
 
 
 def test_a_bad_file_leaves_a_message_and_the_card_unchanged(card):
