@@ -133,13 +133,13 @@ PAGE_CSS = """
   --sub60-row1-h: max(300px, calc(100vh - 366px));
   --sub60-row2-h: max(300px, calc(100vh - 75px));
   --sub60-title-size: 28px;
-  --sub60-summary-size: 18px;
+  --sub60-summary-size: 16px;
   --sub60-caution-size: 15px;
   --sub60-caution-long: none;
   --sub60-caution-short: block;
   --sub60-metrics-size: 19px;
   --sub60-metrics-head-size: 16px;
-  --sub60-metrics-note-size: 14px;
+  --sub60-metrics-note-size: 12px;
   --sub60-badge-size: 15px;
   --sub60-badge-padding: 1px 6px;
   --sub60-status-size: 15px;
