@@ -11,8 +11,8 @@ thread) and stops it at the end. In headless Chromium it then
    in the page, until the band diagram's data source holds the new bias point (polled
    every ~1 ms) and until the next animation frame after it (the redraw);
 2. sets the body-thickness slider to fresh values and times until the band diagram, the
-   tunnel FET's transfer curve and both complete transfer curves with their metrics
-   have arrived.
+   tunnel FET's transfer curve, both complete transfer curves with their metrics, and
+   the output curves have arrived.
 
 3. clicks "Presentation mode" on and off and times, from just before the click, until the
    controls are hidden (shown), the header has its presentation class, and every figure's
@@ -96,6 +96,8 @@ window.sub60bench = {
     const map = sub60.model('map_source');
     const tfet = sub60.model('transfer_tfet_source');
     const oldTfet = tfet.data;
+    const out0 = sub60.model('output_source_0');
+    const oldOut = out0.data;
     const height = (t) => Math.abs(map.data.dh[0] - (t + 4)) < 1e-9;  // 2 nm oxide each side
     const t0 = performance.now();
     this.release('ctl-body_thickness_nm', t_nm);
@@ -103,7 +105,8 @@ window.sub60bench = {
     const t2 = await this.poll(() => tfet.data !== oldTfet && tfet.data.vg.length === n &&
       Array.from(tfet.data.ss).some(Number.isFinite));
     const t3 = await this.poll(() => sub60.curvesDone(n));
-    return [t1 - t0, t2 - t0, t3 - t0];
+    const t4 = await this.poll(() => out0.data !== oldOut && sub60.outputsDone());
+    return [t1 - t0, t2 - t0, t3 - t0, t4 - t0];
   },
 };
 """
@@ -144,10 +147,11 @@ def run(url: str, moves: int, designs: int, toggles: int = 6, opens: int = 4,
             band_frame.append(t_frame)
         if moves:
             page.wait_for_function("() => sub60.allDone(41)", timeout=120_000)
-        d_band, d_tfet, d_all = [], [], []
+        d_band, d_tfet, d_all, d_out = [], [], [], []
         for k in range(designs):
             t_nm = round(7.5 + 0.5 * k, 3)
-            a, b, c = page.evaluate("(t) => sub60bench.designChange(t, 41)", t_nm)
+            a, b, c, d = page.evaluate("(t) => sub60bench.designChange(t, 41)", t_nm)
+            d_out.append(d)
             d_band.append(a)
             d_tfet.append(b)
             d_all.append(c)
@@ -177,6 +181,7 @@ def run(url: str, moves: int, designs: int, toggles: int = 6, opens: int = 4,
     print(f"  design change -> band diagram          : {_stats(d_band)}")
     print(f"  design change -> tunnel FET curve      : {_stats(d_tfet)}")
     print(f"  design change -> both curves + metrics : {_stats(d_all)}")
+    print(f"  design change -> output curves too     : {_stats(d_out)}")
     print(f"  presentation toggle -> frame drawn     : {_stats(toggle)}")
     print(f"  page open -> all curves done           : {_stats(open_s)}")
     if server_pid is not None:
