@@ -136,7 +136,22 @@ class BandParameters:
     def densities(
         self, psi_V: np.ndarray, efn_eV: np.ndarray, efp_eV: np.ndarray
     ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        """n, p [cm^-3] and their derivatives dn/dpsi, dp/dpsi [cm^-3/V], eq. (3)."""
+        """n, p [cm^-3] and their derivatives dn/dpsi, dp/dpsi [cm^-3/V], eq. (3).
+
+        Parameters of numbers without an interface node take the compiled kernel
+        (`sub60.physics._fermi_compiled`, equal to this numpy path to a few units in
+        the last place); arrays along x and interface nodes take the numpy path.
+        """
+        if self.interface is None and not self.varies:
+            fused = _compiled_densities(self, psi_V, efn_eV, efp_eV)
+            if fused is not None:
+                return fused
+        return self.densities_reference(psi_V, efn_eV, efp_eV)
+
+    def densities_reference(
+        self, psi_V: np.ndarray, efn_eV: np.ndarray, efp_eV: np.ndarray
+    ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """`densities` by whole-array numpy operations (the reference of the kernel)."""
         eta_n = (efn_eV - self.ec_eV(psi_V)) / self.kT_eV
         eta_p = (self.ev_eV(psi_V) - efp_eV) / self.kT_eV
         fn, fn1 = fermi_half_and_minus_half(eta_n)
@@ -157,6 +172,18 @@ class BandParameters:
             dn[i] = w * dn_s + (1 - w) * dn[i]
             dp[i] = w * dp_s + (1 - w) * dp[i]
         return n, p, dn, dp
+
+
+def _compiled_densities(bands: BandParameters, psi_V, efn_eV, efp_eV):
+    """`BandParameters.densities` by the compiled kernel (parameters of numbers), or None
+    when numba is missing or the arrays have more than two dimensions."""
+    try:
+        from sub60.physics._fermi_compiled import densities_compiled
+    except ImportError:  # pragma: no cover - numba is a declared dependency
+        return None
+    return densities_compiled(float(bands.chi_eV), float(bands.eg_eV), float(bands.nc_cm3),
+                              float(bands.nv_cm3), float(bands.kT_eV), float(bands.dec_eV),
+                              float(bands.dev_eV), psi_V, efn_eV, efp_eV)
 
 
 def _along(value, psi_V: np.ndarray):
@@ -191,9 +218,21 @@ def neutral_potential(
     return _bisect_neutral(bands, net, efn, efp, lo, hi)
 
 
+_BISECTION_STEPS = 80
+
+
 def _bisect_neutral(bands, net, efn, efp, lo, hi) -> np.ndarray:
-    for _ in range(80):
+    """At most 80 halvings of [lo, hi] on the sign of p - n + net; psi [V].
+
+    Stops as soon as every midpoint equals its lo or hi bit for bit (or is NaN): from
+    then on no step changes 0.5 (lo + hi) (a step either keeps both ends or sets the
+    other end to the midpoint, which is one of them), so the result is that of all 80
+    steps, found in the ~55 that resolve a bracket of a few volts to round-off.
+    """
+    for _ in range(_BISECTION_STEPS):
         mid = 0.5 * (lo + hi)
+        if np.all((mid == lo) | (mid == hi) | np.isnan(mid)):
+            return mid
         n, p, _, _ = bands.densities(mid, efn, efp)
         positive = (p - n + net) > 0  # too much positive charge: raise psi
         lo = np.where(positive, mid, lo)
