@@ -1,17 +1,20 @@
 """Compiled (numba) kernels of the Fermi–Dirac integrals and of the carrier densities.
 
-`fermi_pair_kernel` evaluates F_1/2 and F_-1/2 together with the same formulas, spline
-tables and Sommerfeld coefficients as `sub60.physics.statistics` (the tables are built
-there and handed over as arguments); `densities_kernel` is eq. (3) of
-`sub60.physics.poisson` for a `BandParameters` of numbers (no heterojunction, no
-interface node): eta_n, eta_p, n, p, dn/dpsi, dp/dpsi in one pass over the grid.
+`log_pair_kernel` evaluates the spline logarithms of F_1/2 and F_-1/2 together, with the
+same formulas and tables as `sub60.physics.statistics` (the tables are built there and
+handed over as arguments); `densities_log_kernel` does the same for eq. (3) of
+`sub60.physics.poisson` with a `BandParameters` of numbers (no heterojunction, no
+interface node): eta_n, eta_p and the four logarithms in one pass over the grid. The
+exponential is then numpy's (vectorised) exp of the whole buffer, and the Sommerfeld
+series above the table is the reference's own code, so that every value equals the numpy
+path's bit for bit: the kernels do each floating-point operation of the reference in its
+order, only without the temporaries, the np.take/np.moveaxis table look-up and the
+separate passes over the grid.
 
 Imported on the first carrier-density evaluation, not with the package, because loading
 numba takes ~0.2 s. The numpy paths (`statistics.fermi_half_and_minus_half`,
-`BandParameters.densities` with arrays) are the reference the kernels are tested against
-(tests/physics/test_fermi_compiled.py); each operation follows the reference's order, so
-the results agree to a few units in the last place (only exp and pow may round
-differently from numpy's vectorised versions).
+`BandParameters.densities_reference`) are the reference the kernels are tested against
+(tests/physics/test_fermi_compiled.py).
 """
 
 from __future__ import annotations
@@ -24,8 +27,9 @@ from sub60.physics.statistics import _ETA_HIGH, _ETA_LOW, _STEPS_PER_UNIT, _orde
 
 @_nb.njit(cache=True, nogil=True, inline="always")
 def _log_spline(eta, table):  # pragma: no cover
-    """exp of the cubic spline of ln F_j at eta, with ln F_j = eta + const below the table
-    (`statistics._FermiIntegral.evaluate`); NaN for NaN."""
+    """ln F_j at eta by the cubic spline, with ln F_j = eta + const below the table
+    (`statistics._FermiIntegral.evaluate` up to its exp); NaN for NaN. Above the table
+    the value is that of its end (the caller replaces it by the Sommerfeld series)."""
     position = eta if eta >= _ETA_LOW else _ETA_LOW  # NaN -> the low end, as np.fmax
     if position > _ETA_HIGH:
         position = _ETA_HIGH
@@ -43,64 +47,37 @@ def _log_spline(eta, table):  # pragma: no cover
     value *= u
     value += table[index, 0]
     value += below
-    return np.exp(value)
-
-
-@_nb.njit(cache=True, nogil=True, inline="always")
-def _sommerfeld_sum(eta, coefficients):  # pragma: no cover
-    """(w, 1 + sum_n a_n w^n / w) of the Sommerfeld series, w = 1/eta^2 (Horner, the
-    reference's order): returns w and the Horner total."""
-    r = 1.0 / eta
-    w = r * r
-    m = coefficients.size
-    total = coefficients[m - 1]
-    for k in range(m - 2, -1, -1):
-        total = coefficients[k] + w * total
-    return w, total
-
-
-@_nb.njit(cache=True, nogil=True, inline="always")
-def _fermi_pair(eta, table_half, table_minus_half, sommerfeld_half, sommerfeld_minus_half,
-                prefactor_half, prefactor_minus_half):  # pragma: no cover
-    """(F_1/2(eta), F_-1/2(eta)) [-]: the spline below eta = 25, Sommerfeld above it."""
-    if eta > _ETA_HIGH:
-        w, total = _sommerfeld_sum(eta, sommerfeld_half)
-        half = prefactor_half * eta ** 1.5 * (1.0 + w * total)
-        w, total = _sommerfeld_sum(eta, sommerfeld_minus_half)
-        minus_half = prefactor_minus_half * np.sqrt(eta) * (1.0 + w * total)
-        return half, minus_half
-    return _log_spline(eta, table_half), _log_spline(eta, table_minus_half)
+    return value
 
 
 @_nb.njit(cache=True, nogil=True)
-def fermi_pair_kernel(eta, table_half, table_minus_half, sommerfeld_half,
-                      sommerfeld_minus_half, prefactor_half,
-                      prefactor_minus_half):  # pragma: no cover
-    """F_1/2 and F_-1/2 of a 1D array eta [-] (two new arrays of its size)."""
-    half = np.empty(eta.size)
-    minus_half = np.empty(eta.size)
+def log_pair_kernel(eta, table_half, table_minus_half, logs):  # pragma: no cover
+    """ln F_1/2 and ln F_-1/2 by the spline of a 1D array eta [-] into logs (2, eta.size);
+    returns the number of eta above the table (> 25, or +inf)."""
+    high = 0
     for k in range(eta.size):
-        half[k], minus_half[k] = _fermi_pair(
-            eta[k], table_half, table_minus_half, sommerfeld_half, sommerfeld_minus_half,
-            prefactor_half, prefactor_minus_half)
-    return half, minus_half
+        logs[0, k] = _log_spline(eta[k], table_half)
+        logs[1, k] = _log_spline(eta[k], table_minus_half)
+        if eta[k] > _ETA_HIGH:
+            high += 1
+    return high
 
 
 @_nb.njit(cache=True, nogil=True)
-def densities_kernel(psi, efn, efp, chi, eg, nc, nv, kt, dec, dev, table_half,
-                     table_minus_half, sommerfeld_half, sommerfeld_minus_half, prefactor_half,
-                     prefactor_minus_half):  # pragma: no cover
-    """n, p [cm^-3], dn/dpsi, dp/dpsi [cm^-3/V] on a 2D grid, eq. (3) of `poisson`.
+def densities_log_kernel(psi, efn, efp, chi, eg, kt, dec, dev, table_half,
+                         table_minus_half):  # pragma: no cover
+    """eta_n, eta_p (2, rows, cols) [-] of eq. (3) and the spline logarithms (4, rows, cols)
+    of F_1/2(eta_n), F_-1/2(eta_n), F_1/2(eta_p), F_-1/2(eta_p), and the number of eta
+    above the table.
 
     psi, efn, efp are 2D arrays whose each dimension is the grid's or 1 (broadcast);
-    the material parameters are numbers. Returns four (rows, cols) arrays.
+    the material parameters are numbers.
     """
     rows = max(psi.shape[0], efn.shape[0], efp.shape[0])
     cols = max(psi.shape[1], efn.shape[1], efp.shape[1])
-    n = np.empty((rows, cols))
-    p = np.empty((rows, cols))
-    dn = np.empty((rows, cols))
-    dp = np.empty((rows, cols))
+    eta = np.empty((2, rows, cols))
+    logs = np.empty((4, rows, cols))
+    high = 0
     for i in range(rows):
         ip = i if psi.shape[0] > 1 else 0
         i_n = i if efn.shape[0] > 1 else 0
@@ -111,29 +88,42 @@ def densities_kernel(psi, efn, efp, chi, eg, nc, nv, kt, dec, dev, table_half,
             ev = -chi - eg - ps - dev
             eta_n = (efn[i_n, j if efn.shape[1] > 1 else 0] - ec) / kt
             eta_p = (ev - efp[i_p, j if efp.shape[1] > 1 else 0]) / kt
-            fn, fn1 = _fermi_pair(eta_n, table_half, table_minus_half, sommerfeld_half,
-                                  sommerfeld_minus_half, prefactor_half, prefactor_minus_half)
-            fp, fp1 = _fermi_pair(eta_p, table_half, table_minus_half, sommerfeld_half,
-                                  sommerfeld_minus_half, prefactor_half, prefactor_minus_half)
-            n[i, j] = nc * fn
-            p[i, j] = nv * fp
-            dn[i, j] = nc * fn1 / kt
-            dp[i, j] = -nv * fp1 / kt
-    return n, p, dn, dp
+            eta[0, i, j] = eta_n
+            eta[1, i, j] = eta_p
+            logs[0, i, j] = _log_spline(eta_n, table_half)
+            logs[1, i, j] = _log_spline(eta_n, table_minus_half)
+            logs[2, i, j] = _log_spline(eta_p, table_half)
+            logs[3, i, j] = _log_spline(eta_p, table_minus_half)
+            if eta_n > _ETA_HIGH:
+                high += 1
+            if eta_p > _ETA_HIGH:
+                high += 1
+    return eta, logs, high
 
 
-def _table_arguments() -> tuple:
-    """The statistics module's tables and Sommerfeld coefficients, as kernel arguments."""
-    half, minus_half = _orders()
-    return (half.table, minus_half.table, half.sommerfeld, minus_half.sommerfeld,
-            float(half.sommerfeld_prefactor), float(minus_half.sommerfeld_prefactor))
+def _pair_from_logs(eta: np.ndarray, logs: np.ndarray, high: int
+                    ) -> tuple[np.ndarray, np.ndarray]:
+    """F_1/2 and F_-1/2 from the spline logarithms (2, ...) of `eta`: numpy's exp (the
+    reference's, so the values are its own bit for bit) and the reference's Sommerfeld
+    series above the table."""
+    values = np.exp(logs, out=logs)
+    if high:
+        above = eta > _ETA_HIGH
+        half, minus_half = _orders()
+        values[0][above] = half._sommerfeld(eta[above])
+        values[1][above] = minus_half._sommerfeld(eta[above])
+    return values[0], values[1]
 
 
 def fermi_half_and_minus_half_compiled(eta: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """F_1/2 and F_-1/2 of an array eta [-] by the kernel, each of the shape of `eta`."""
     x = np.ascontiguousarray(eta, dtype=float)
-    half, minus_half = fermi_pair_kernel(x.reshape(-1), *_table_arguments())
-    return half.reshape(x.shape), minus_half.reshape(x.shape)
+    flat = x.reshape(-1)
+    half, minus_half = _orders()
+    logs = np.empty((2, flat.size))
+    high = log_pair_kernel(flat, half.table, minus_half.table, logs)
+    f_half, f_minus_half = _pair_from_logs(flat, logs, high)
+    return f_half.reshape(x.shape), f_minus_half.reshape(x.shape)
 
 
 def _as_2d(values: np.ndarray) -> np.ndarray:
@@ -153,8 +143,21 @@ def densities_compiled(chi: float, eg: float, nc: float, nv: float, kt: float, d
     shape = np.broadcast_shapes(psi.shape, efn.shape, efp.shape)
     if len(shape) > 2:
         return None
-    out = densities_kernel(_as_2d(psi), _as_2d(efn), _as_2d(efp), chi, eg, nc, nv, kt, dec,
-                           dev, *_table_arguments())
+    half, minus_half = _orders()
+    eta, logs, high = densities_log_kernel(_as_2d(psi), _as_2d(efn), _as_2d(efp), chi, eg, kt,
+                                           dec, dev, half.table, minus_half.table)
+    values = np.exp(logs, out=logs)
+    if high:  # the Sommerfeld series of the reference above the table
+        for k in range(2):
+            above = eta[k] > _ETA_HIGH
+            if above.any():
+                values[2 * k][above] = half._sommerfeld(eta[k][above])
+                values[2 * k + 1][above] = minus_half._sommerfeld(eta[k][above])
+    fn, fn1, fp, fp1 = values
+    n = nc * fn
+    p = nv * fp
+    dn = nc * fn1 / kt
+    dp = -nv * fp1 / kt
     if not shape:  # numbers in, numbers out, as the numpy path
-        return tuple(float(a[0, 0]) for a in out)
-    return tuple(a.reshape(shape) for a in out)
+        return float(n[0, 0]), float(p[0, 0]), float(dn[0, 0]), float(dp[0, 0])
+    return n.reshape(shape), p.reshape(shape), dn.reshape(shape), dp.reshape(shape)
