@@ -13,7 +13,9 @@ its early stop against all 80 steps. Medians over the rounds of per-round median
 from __future__ import annotations
 
 import argparse
+import sys
 import time
+from pathlib import Path
 
 import numpy as np
 
@@ -21,6 +23,10 @@ from sub60.physics import poisson
 from sub60.physics.design import Design
 from sub60.physics.electrostatics import solve_electrostatics
 from sub60.physics.structure import build_frame, problem_at_bias
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+
+from tests.physics.test_fermi_compiled import _bisect_80_steps  # noqa: E402  (the 80-step reference)
 
 
 def _median_ms(fn, number: int) -> float:
@@ -30,17 +36,6 @@ def _median_ms(fn, number: int) -> float:
         fn()
         samples.append(time.perf_counter() - t)
     return 1e3 * float(np.median(samples))
-
-
-def _bisect_80_steps(bands, net, efn, efp, lo, hi) -> np.ndarray:
-    """The bisection without its early stop (all 80 halvings)."""
-    for _ in range(80):
-        mid = 0.5 * (lo + hi)
-        n, p, _, _ = bands.densities(mid, efn, efp)
-        positive = (p - n + net) > 0
-        lo = np.where(positive, mid, lo)
-        hi = np.where(positive, hi, mid)
-    return 0.5 * (lo + hi)
 
 
 def main() -> None:
