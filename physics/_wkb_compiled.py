@@ -15,6 +15,24 @@ from sub60.physics.tunneling import segment_integral_transverse
 
 _segment_integral_transverse = _nb.njit(cache=True, nogil=True)(segment_integral_transverse)
 
+#: [eV] margin of the segment test `_outside`: a segment whose conduction (or valence)
+#: side lies deeper than q + this inside the band at both ends adds exactly 0.0
+_OUTSIDE_MARGIN_EV = 1e-9
+
+
+@_nb.njit(cache=True, nogil=True, inline="always")
+def _outside(c0, c1, v0, v1, q):  # pragma: no cover
+    """True when kappa^2 = c v / (c + v) + q is negative on the whole segment, so that
+    `segment_integral_transverse` returns exactly 0.0 there and need not run.
+
+    With c + v > 0: c v + q (c + v) = (c + q)(v + q) - q^2, which is below -q^2 - margin
+    (v + q) wherever c <= -q - margin (and the same with c and v exchanged); c and v are
+    linear on the segment, so their ends bound them. The margin keeps the test far from
+    round-off, so skipping changes no bit of the exponent (tested against the unskipped
+    sum in tests/physics/test_tunneling.py)."""
+    lim = -q - _OUTSIDE_MARGIN_EV
+    return (c0 <= lim and c1 <= lim) or (v0 <= lim and v1 <= lim)
+
 
 @_nb.njit(cache=True, nogil=True, inline="always")
 def _segment_integral(c0, c1, v0, v1, h, two_band, gl_x, gl_w):  # pragma: no cover
@@ -61,9 +79,10 @@ def _node_exponent(x, ec, ev, e, kv, up, down, scale, two_band, gl_x, gl_w):  # 
     if two_band:  # kappa^2 = kappa_0^2 + k^2 on the k = 0 edges (tunneling eq. (3))
         q = kv ** 2 / scale**2
         for i in range(nx - 1):
-            acc += _segment_integral_transverse(
-                ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1], q,
-                x[i + 1] - x[i], gl_x, gl_w)
+            c0, c1, v0, v1 = ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1]
+            if _outside(c0, c1, v0, v1, q):
+                continue
+            acc += _segment_integral_transverse(c0, c1, v0, v1, q, x[i + 1] - x[i], gl_x, gl_w)
     else:  # one band: the rigid edge shift is exact
         for i in range(nx - 1):
             c0, c1 = ec[i] + up - e, ec[i + 1] + up - e
@@ -128,9 +147,12 @@ def wkb_transverse_kernel_varying(x, ec, ev, up, down, kvals, energies, mass_seg
             acc = 0.0
             for i in range(nx - 1):
                 if two_band:
+                    c0, c1, v0, v1 = ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1]
+                    q = k2 / scale[i] ** 2
+                    if _outside(c0, c1, v0, v1, q):
+                        continue
                     acc += scale[i] * _segment_integral_transverse(
-                        ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1], k2 / scale[i] ** 2,
-                        x[i + 1] - x[i], gl_x, gl_w)
+                        c0, c1, v0, v1, q, x[i + 1] - x[i], gl_x, gl_w)
                 else:
                     c0, c1 = ec[i] + u - e, ec[i + 1] + u - e
                     v0, v1 = e - ev[i] + dn, e - ev[i + 1] + dn
