@@ -230,8 +230,12 @@ class SessionJobs:
     """
 
     def __init__(self, state: ExplorerState, simulator: Any, listener: JobListener,
-                 background: bool = True, gate: PriorityGate | None = None) -> None:
+                 background: bool = True, gate: PriorityGate | None = None,
+                 curve_process: Any = None) -> None:
         self.state = state
+        # the server's curve process (`sub60.app.curve_process`); with background work the
+        # one the server started is used when this is None
+        self._curve_process = curve_process
         self.simulator = simulator
         self._model = state.tunnelling_model  # the settings' model the simulator follows
         self.listener = listener
@@ -435,32 +439,140 @@ class SessionJobs:
         t0 = time.perf_counter()
         self.post(self._deliver_started, g, need_transfer, need_output, total)
         sim = self.simulator
-        try:
+        # with the server's curve process: the twin's transfer curve is computed there
+        # while the sweep thread computes the tunnel FET's (streamed to the page, its points
+        # cached here for the band diagram, pins and exports), and output curves there too:
+        # the process is done with the twin first, so it takes all but the last output
+        # curve then (all of them with non-idealities on: the ideal curve is computed here),
+        # half of them when only the output curves are asked for (a gate-voltage move)
+        remote = remote_out = None
+        process = self.curve_process()
+        remote_key = None
+        n_remote = 0
+        if process is not None:
             if need_transfer:
-                for key, device in (("tfet", job.design), ("twin", job.design.twin())):
-                    progress = self._progress_callback(g, key, device, job, done, total)
-                    tc = sim.transfer_curve(
-                        device, job.vg_V, job.vd_V, ioff_target_uA_per_um=job.ioff_uA_per_um,
-                        vdd_V=job.vdd_V, progress=progress, cancelled=superseded,
-                        slots=self.gate)
-                    done += job.vg_V.size
-                    self.post(self._deliver_transfer, g, key, tc, job, done, total)
-                    if key == "tfet":
-                        done = self._nonideal_job(g, job, tc, done, total, superseded)
+                remote_key = "twin"
+            if need_output:
+                n = job.output_vg_V.size
+                n_remote = (n if nonideal else n - 1) if need_transfer else n // 2
+        devices = {"tfet": job.design, "twin": job.design.twin()}
+        try:
+            if remote_key is not None:
+                remote = process.transfer_curve(sim, devices[remote_key], job.vg_V, job.vd_V,
+                                                job.ioff_uA_per_um, job.vdd_V)
+                if remote is None:
+                    remote_key = None
+            if n_remote:
+                remote_out = process.output_curves(sim, job.design, job.output_vg_V[:n_remote],
+                                                   job.output_vd_V)
+            if need_transfer:
+                solved: dict[str, Any] = {}
+                for key in ("tfet", "twin"):
+                    if key == remote_key:
+                        continue
+                    base = 0 if key == "tfet" else job.vg_V.size
+                    solved[key] = sim.transfer_curve(
+                        devices[key], job.vg_V, job.vd_V,
+                        ioff_target_uA_per_um=job.ioff_uA_per_um, vdd_V=job.vdd_V,
+                        progress=self._progress_callback(g, key, devices[key], job, base, total),
+                        cancelled=superseded, slots=self.gate)
+                    if key == "tfet":  # shown at once; the twin waits for the tunnel FET
+                        done += job.vg_V.size
+                        self.post(self._deliver_transfer, g, key, solved[key], job, done, total)
+                        done = self._nonideal_job(g, job, solved[key], done, total, superseded)
+                if remote_key is not None:
+                    tc = self._remote_result(g, remote, process)
+                    remote = None
+                    if tc is None:
+                        if not self._current(g):
+                            return
+                        tc = sim.transfer_curve(  # the process failed: computed here
+                            devices[remote_key], job.vg_V, job.vd_V,
+                            ioff_target_uA_per_um=job.ioff_uA_per_um, vdd_V=job.vdd_V,
+                            cancelled=superseded, slots=self.gate)
+                    solved[remote_key] = tc
+                    if remote_key == "tfet":
+                        done += job.vg_V.size
+                        self.post(self._deliver_transfer, g, "tfet", tc, job, done, total)
+                done += job.vg_V.size
+                self.post(self._deliver_transfer, g, "twin", solved["twin"], job, done, total)
             if need_output:
                 curves: list = []
-                for vg in job.output_vg_V:
+                first = n_remote if remote_out is not None else 0  # the process has those
+                for vg in job.output_vg_V[first:]:
                     if superseded():
                         return
                     curves.append(sim.output_curve(job.design, float(vg), job.output_vd_V,
                                                    slots=self.gate))
                     done += job.output_vd_V.size
-                    self.post(self._deliver_outputs, g, list(curves), job, done, total)
+                    if not first:
+                        self.post(self._deliver_outputs, g, list(curves), job, done, total)
+                if first:
+                    theirs = self._remote_result(g, remote_out, process)
+                    remote_out = None
+                    if theirs is None:
+                        if not self._current(g):
+                            return
+                        theirs = []  # the process failed: its curves are computed here
+                        for vg in job.output_vg_V[:first]:
+                            if superseded():
+                                return
+                            theirs.append(sim.output_curve(job.design, float(vg),
+                                                           job.output_vd_V, slots=self.gate))
+                    done += first * job.output_vd_V.size
+                    self.post(self._deliver_outputs, g, list(theirs) + curves, job, done, total)
             self.post(self._deliver, g, self.listener.sweep_finished, time.perf_counter() - t0)
         except InterruptedError:
             return
         except (ValueError, SolverError) as exc:
             self.post(self._deliver, g, self.listener.sweep_failed, exc)
+        finally:
+            for task in (remote, remote_out):
+                if task is not None:
+                    task.cancel()
+
+    def curve_process(self) -> Any:
+        """The server's curve process this session's sweeps use (None: none; every curve
+        is computed in the sweep thread)."""
+        if not self.background:
+            return self._curve_process
+        if self._curve_process is not None:
+            return self._curve_process
+        from sub60.app import curve_process
+
+        return curve_process.CURVE_PROCESS
+
+    def _remote_result(self, g: int, remote: Any, process: Any) -> Any:
+        """A result from the curve process, once done; None when superseded (cancelled)
+        or when the process failed (the caller then computes it here). A solver failure
+        in the process is raised here as it would be in the sweep thread."""
+        from concurrent.futures import CancelledError
+        from concurrent.futures import TimeoutError as FutureTimeout
+        from concurrent.futures.process import BrokenProcessPool
+
+        while True:
+            if not self._current(g):
+                remote.cancel()
+                return None
+            try:
+                return remote.future.result(timeout=0.02)
+            except FutureTimeout:
+                continue
+            except InterruptedError:  # cancelled in the process by a newer request
+                return None
+            except CancelledError:
+                return None
+            except (ValueError, SolverError):
+                raise
+            except BrokenProcessPool as exc:
+                log.warning("sub60: the curve process died (%s); computed in the server instead",
+                            exc)
+                process.broken()
+                return None
+            except Exception as exc:  # noqa: BLE001 - never lose a sweep to the process
+                log.warning("sub60: the curve process failed (%r); computed in the server instead",
+                            exc)
+                return None
 
     def _nonideal_job(self, g: int, job: SweepRequest, tc: Any, done: int, total: int,
                       superseded: Callable[[], bool]) -> int:

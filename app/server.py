@@ -375,6 +375,9 @@ def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None
         reason = getattr(exc, "strerror", None) or str(exc)
         print(f"sub60: error: cannot serve on {host}:{port}: {reason}", file=sys.stderr)
         raise SystemExit(1) from None
+    from sub60.app.curve_process import start_curve_process, stop_curve_process
+
+    start_curve_process()  # the twin's transfer curves, beside the sessions' sweeps
     print(f"sub60: serving the explorer at http://{_host_for_url(host)}:{port}/ "
           "(Ctrl+C to stop)", file=sys.stderr, flush=True)
     server.start()
@@ -382,3 +385,5 @@ def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None
         server.io_loop.start()
     except KeyboardInterrupt:
         pass
+    finally:
+        stop_curve_process()

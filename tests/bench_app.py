@@ -122,13 +122,27 @@ def _stats(samples: list[float]) -> str:
 
 
 def _cpu_s(pid: int | None) -> float:
-    """User + system CPU seconds of a process so far (Linux /proc), NaN if unknown."""
+    """User + system CPU seconds so far of a process and its live children (the server's
+    curve process; Linux /proc), NaN if unknown."""
     if pid is None:
         return float("nan")
     import os
 
-    fields = open(f"/proc/{pid}/stat").read().rsplit(")", 1)[1].split()
-    return (int(fields[11]) + int(fields[12])) / os.sysconf("SC_CLK_TCK")
+    def one(p: int) -> float:
+        try:
+            fields = open(f"/proc/{p}/stat").read().rsplit(")", 1)[1].split()
+        except OSError:  # gone meanwhile
+            return 0.0
+        return (int(fields[11]) + int(fields[12])) / os.sysconf("SC_CLK_TCK")
+
+    total = one(pid)
+    for task in os.listdir(f"/proc/{pid}/task"):
+        try:
+            kids = open(f"/proc/{pid}/task/{task}/children").read().split()
+        except OSError:
+            continue
+        total += sum(one(int(k)) for k in kids)
+    return total
 
 
 def run(url: str, moves: int, designs: int, toggles: int = 6, opens: int = 4,

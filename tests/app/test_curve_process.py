@@ -1,0 +1,160 @@
+"""The server's curve process: the twin's transfer curve computed beside the tunnel FET's.
+
+Real processes (spawned, as the server starts them) and the real solver. The checks are
+the controller's own rules (no source): the curve from the process equals, bit for bit,
+the one the session's simulator computes alone (the same continuation from a cold start);
+a cancelled task stops; a killed process costs no result (the curve is computed in the
+server) and is replaced at the next request.
+"""
+
+from __future__ import annotations
+
+import logging
+import os
+import signal
+import threading
+import time
+from concurrent.futures import CancelledError
+
+import numpy as np
+import pytest
+
+from sub60.app.curve_process import CurveProcess
+from sub60.app.jobs import SessionJobs
+from sub60.app.state import ExplorerState
+from sub60.physics import Simulator
+from sub60.physics.design import check_bias
+
+TIMEOUT_S = 120.0
+
+
+class Recorder:
+    def __init__(self) -> None:
+        self.events: list[tuple] = []
+
+    def __getattr__(self, name):
+        if name.startswith("_"):
+            raise AttributeError(name)
+        return lambda *args: self.events.append((name, *args))
+
+    def curves(self) -> dict:
+        return {e[1]: e[2] for e in self.events if e[0] == "transfer_solved"}
+
+
+@pytest.fixture(scope="module")
+def process():
+    proc = CurveProcess()
+    proc.start()
+    assert proc.pid() is not None  # started and ready (kernels loaded)
+    yield proc
+    proc.close()
+
+
+def _same_curve(a, b) -> None:
+    for name in ("vg_V", "id_uA_per_um", "btbt_uA_per_um", "ss_mV_per_dec", "vg_refined_V",
+                 "id_refined_uA_per_um"):
+        np.testing.assert_array_equal(getattr(a, name), getattr(b, name))
+    assert a.metrics == b.metrics
+
+
+def _state(body_nm: float) -> ExplorerState:
+    state = ExplorerState(vg_points=11)
+    state.body_thickness_nm = body_nm
+    return state
+
+
+def _held(sim, design, vg, vd) -> bool:
+    return sim._cache.get((design, *check_bias(float(vg), float(vd)))) is not None
+
+
+def _serial_curves(state, design):
+    alone = Simulator()
+    out = {}
+    for key, device in (("tfet", design), ("twin", design.twin())):
+        out[key] = alone.transfer_curve(device, state.sweep_gate_voltages(), float(state.vd_V),
+                                        ioff_target_uA_per_um=state.ioff_target_uA_per_um,
+                                        vdd_V=float(state.vdd_V))
+    return alone, out
+
+
+@pytest.mark.parametrize("tail_meV", [0.0, 8.0], ids=["ideal", "band-tails"])
+def test_the_twin_and_output_curves_from_there_equal_the_serial_ones(process, tail_meV):
+    state = _state(6.5 + tail_meV / 16)
+    state.tail_energy_source_meV = tail_meV
+    sim, listener = Simulator(), Recorder()
+    jobs = SessionJobs(state, sim, listener, background=False, curve_process=process)
+    design = state.design()
+    assert design.is_ideal == (tail_meV == 0)
+    jobs.request_sweeps(design)
+    curves = listener.curves()
+    assert set(curves) == {"tfet", "twin"}
+    alone, ref = _serial_curves(state, design)
+    for key in ("tfet", "twin"):
+        _same_curve(curves[key], ref[key])
+    # shown in order: the tunnel FET first, then its twin
+    assert [e[1] for e in listener.events if e[0] == "transfer_solved"] == ["tfet", "twin"]
+    assert bool([e for e in listener.events if e[0] == "nonideal_solved" and e[1] is not None]
+                ) == (tail_meV > 0)
+    # the twin and the lower output curves were solved in the process: the session's
+    # simulator holds none of their points, the tunnel FET's requested points all
+    vd = float(state.vd_V)
+    assert all(_held(sim, design, v, vd) for v in state.sweep_gate_voltages())
+    assert not any(_held(sim, design.twin(), v, vd) for v in state.sweep_gate_voltages())
+    vgs, vds = state.output_gate_voltages(), state.output_drain_voltages()
+    n_remote = vgs.size if tail_meV else vgs.size - 1
+    assert not any(_held(sim, design, v, vds[1]) for v in vgs[:n_remote])
+    assert all(_held(sim, design, v, vds[1]) for v in vgs[n_remote:])
+    # the output curves arrive complete and in gate-voltage order
+    outs = [e for e in listener.events if e[0] == "outputs_solved"]
+    assert len(outs) == 1 and outs[0][2] is True
+    assert [c.vg_V for c in outs[0][1]] == list(vgs)
+    # the process's output curves start cold (no earlier point of the design there), the
+    # serial path's from the transfer sweep's last point: equal to Newton's tolerance
+    for curve in outs[0][1]:
+        ref_out = alone.output_curve(design, curve.vg_V, vds)
+        np.testing.assert_allclose(curve.id_uA_per_um, ref_out.id_uA_per_um, rtol=1e-6,
+                                   atol=1e-12)
+
+
+def test_a_cancelled_task_stops_and_the_process_serves_the_next(process):
+    state = _state(7.5)
+    sim = Simulator()
+    design = state.design().twin()
+    remote = process.transfer_curve(sim, design, np.linspace(-0.4, 0.6, 81), 0.3, 1e-3, 0.3)
+    time.sleep(0.3)
+    remote.cancel()
+    t0 = time.perf_counter()
+    with pytest.raises((InterruptedError, CancelledError)):  # stopped, or never started
+        remote.future.result(timeout=TIMEOUT_S)
+    assert time.perf_counter() - t0 < 10.0  # an 81-point curve alone takes longer
+    nxt = process.transfer_curve(sim, design, np.linspace(-0.2, 0.4, 7), 0.3, 1e-3, 0.3)
+    assert nxt.future.result(timeout=TIMEOUT_S).vg_V.size == 7
+
+
+def test_a_process_killed_under_a_task_costs_no_curve_and_is_replaced(caplog):
+    proc = CurveProcess()
+    proc.start()
+    try:
+        pid = proc.pid()
+        state = ExplorerState(vg_points=81)  # a long twin curve (~0.5 s), killed under way
+        state.body_thickness_nm = 8.0
+        sim, listener = Simulator(), Recorder()
+        jobs = SessionJobs(state, sim, listener, background=False, curve_process=proc)
+        design = state.design()
+        timer = threading.Timer(0.15, os.kill, (pid, signal.SIGKILL))
+        timer.start()
+        with caplog.at_level(logging.WARNING, logger="sub60.app"):
+            jobs.request_sweeps(design)
+        timer.join()
+        assert "the curve process died" in caplog.text  # killed under the task
+        curves = listener.curves()
+        _, ref = _serial_curves(state, design)
+        for key in ("tfet", "twin"):  # computed in the server instead
+            _same_curve(curves[key], ref[key])
+        new_pid = proc.pid()  # a new process, serving again
+        assert new_pid is not None and new_pid != pid
+        again = proc.transfer_curve(sim, design.twin(), np.linspace(-0.2, 0.4, 7), 0.3, 1e-3,
+                                    0.3)
+        assert again.future.result(timeout=TIMEOUT_S).vg_V.size == 7
+    finally:
+        proc.close()
