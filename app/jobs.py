@@ -35,6 +35,7 @@ import heapq
 import itertools
 import logging
 import math
+import os
 import threading
 import time
 import weakref
@@ -131,6 +132,14 @@ _shared_lock = threading.Lock()
 
 #: Every live `SessionJobs` (weak: for tests and diagnostics counting open sessions).
 LIVE_SESSIONS: weakref.WeakSet = weakref.WeakSet()
+#: Which transfer curve of an ideal design the server's curve process computes: 'twin'
+#: (the tunnel FET's is then streamed from here, its points cached here for the band
+#: diagram, pins and exports) or 'tfet' (beside the band diagram and the twin here).
+#: Chosen by measurement (README, "Explorer speed": 'tfet' was slower and erratic on a
+#: loaded machine); SUB60_REMOTE_CURVE overrides it (benchmarks).
+REMOTE_CURVE = os.environ.get("SUB60_REMOTE_CURVE", "twin")
+if REMOTE_CURVE not in ("tfet", "twin"):
+    raise ValueError(f"SUB60_REMOTE_CURVE: {REMOTE_CURVE!r} unknown; allowed 'tfet', 'twin'")
 OUTPUT_REST_S = 0.3  # quiet time after a gate-voltage move before the output curves [s]
 STREAM_INTERVAL_S = 0.2  # least time between two partial transfer curves sent to the page [s]
 WORKERS = ("bias", "sweep", "io")
@@ -439,22 +448,26 @@ class SessionJobs:
         t0 = time.perf_counter()
         self.post(self._deliver_started, g, need_transfer, need_output, total)
         sim = self.simulator
-        # with the server's curve process: the twin's transfer curve is computed there
-        # while the sweep thread computes the tunnel FET's (streamed to the page, its points
-        # cached here for the band diagram, pins and exports), and output curves there too:
-        # the process is done with the twin first, so it takes all but the last output
-        # curve then (all of them with non-idealities on: the ideal curve is computed here),
-        # half of them when only the output curves are asked for (a gate-voltage move)
+        # with the server's curve process: one transfer curve is computed there while the
+        # sweep thread computes the other (and the band diagram is drawn), and output
+        # curves there too. `REMOTE_CURVE` says which curve of an ideal design goes there;
+        # with non-idealities on the tunnel FET stays here, where its cached electrostatics
+        # serve the ideal curve, and the twin goes there (then all output curves too).
         remote = remote_out = None
         process = self.curve_process()
         remote_key = None
         n_remote = 0
         if process is not None:
             if need_transfer:
-                remote_key = "twin"
+                remote_key = "twin" if nonideal else REMOTE_CURVE
             if need_output:
                 n = job.output_vg_V.size
-                n_remote = (n if nonideal else n - 1) if need_transfer else n // 2
+                if not need_transfer:
+                    n_remote = n // 2  # a gate-voltage move: half each
+                elif remote_key == "twin":  # the process is done first: it takes more
+                    n_remote = n if nonideal else n - 1
+                else:
+                    n_remote = n // 2
         devices = {"tfet": job.design, "twin": job.design.twin()}
         try:
             if remote_key is not None:

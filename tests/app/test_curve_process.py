@@ -19,6 +19,7 @@ from concurrent.futures import CancelledError
 import numpy as np
 import pytest
 
+from sub60.app import jobs as jobs_module
 from sub60.app.curve_process import CurveProcess
 from sub60.app.jobs import SessionJobs
 from sub60.app.state import ExplorerState
@@ -77,14 +78,18 @@ def _serial_curves(state, design):
     return alone, out
 
 
-@pytest.mark.parametrize("tail_meV", [0.0, 8.0], ids=["ideal", "band-tails"])
-def test_the_twin_and_output_curves_from_there_equal_the_serial_ones(process, tail_meV):
-    state = _state(6.5 + tail_meV / 16)
+@pytest.mark.parametrize(("tail_meV", "remote"), [(0.0, "tfet"), (0.0, "twin"), (8.0, "tfet")],
+                         ids=["ideal-tfet-there", "ideal-twin-there", "band-tails"])
+def test_curves_from_there_equal_the_serial_ones(process, monkeypatch, tail_meV, remote):
+    monkeypatch.setattr(jobs_module, "REMOTE_CURVE", remote)
+    state = _state(6.5 + tail_meV / 16 + (0.25 if remote == "twin" else 0.0))
     state.tail_energy_source_meV = tail_meV
     sim, listener = Simulator(), Recorder()
     jobs = SessionJobs(state, sim, listener, background=False, curve_process=process)
     design = state.design()
     assert design.is_ideal == (tail_meV == 0)
+    there = "twin" if tail_meV else remote  # non-idealities: the tunnel FET stays here
+    here = "tfet" if there == "twin" else "twin"
     jobs.request_sweeps(design)
     curves = listener.curves()
     assert set(curves) == {"tfet", "twin"}
@@ -95,21 +100,23 @@ def test_the_twin_and_output_curves_from_there_equal_the_serial_ones(process, ta
     assert [e[1] for e in listener.events if e[0] == "transfer_solved"] == ["tfet", "twin"]
     assert bool([e for e in listener.events if e[0] == "nonideal_solved" and e[1] is not None]
                 ) == (tail_meV > 0)
-    # the twin and the lower output curves were solved in the process: the session's
-    # simulator holds none of their points, the tunnel FET's requested points all
+    # what was solved there is not in the session's simulator, what was solved here is
+    devices = {"tfet": design, "twin": design.twin()}
     vd = float(state.vd_V)
-    assert all(_held(sim, design, v, vd) for v in state.sweep_gate_voltages())
-    assert not any(_held(sim, design.twin(), v, vd) for v in state.sweep_gate_voltages())
     vgs, vds = state.output_gate_voltages(), state.output_drain_voltages()
-    n_remote = vgs.size if tail_meV else vgs.size - 1
+    n_remote = vgs.size if tail_meV else (vgs.size - 1 if remote == "twin" else vgs.size // 2)
+    here_outputs = {round(float(v), 6) for v in vgs[n_remote:]}  # their points hold Vd too
+    assert all(_held(sim, devices[here], v, vd) for v in state.sweep_gate_voltages())
+    assert not any(_held(sim, devices[there], v, vd) for v in state.sweep_gate_voltages()
+                   if there == "twin" or round(float(v), 6) not in here_outputs)
     assert not any(_held(sim, design, v, vds[1]) for v in vgs[:n_remote])
     assert all(_held(sim, design, v, vds[1]) for v in vgs[n_remote:])
     # the output curves arrive complete and in gate-voltage order
     outs = [e for e in listener.events if e[0] == "outputs_solved"]
     assert len(outs) == 1 and outs[0][2] is True
     assert [c.vg_V for c in outs[0][1]] == list(vgs)
-    # the process's output curves start cold (no earlier point of the design there), the
-    # serial path's from the transfer sweep's last point: equal to Newton's tolerance
+    # output curves there start cold (no earlier point of the design there), the serial
+    # path's from the transfer sweep's last point: equal to Newton's tolerance (1e-8 V)
     for curve in outs[0][1]:
         ref_out = alone.output_curve(design, curve.vg_V, vds)
         np.testing.assert_allclose(curve.id_uA_per_um, ref_out.id_uA_per_um, rtol=1e-6,
