@@ -38,7 +38,8 @@ LAYER_NAMES = {PHYSICS: "physics", MODEL: "model (UI-free)", VIEWS: "views", ENT
 LAYERS: dict[str, int] = {
     "__init__": MODEL,
     # model and I/O: no Panel, no Bokeh, no matplotlib
-    "state": MODEL, "jobs": MODEL, "curve_process": MODEL, "pin_jobs": MODEL, "pinning": MODEL, "sharing": MODEL,
+    "state": MODEL, "jobs": MODEL, "curve_process": MODEL, "pin_jobs": MODEL, "pinning": MODEL,
+    "sharing": MODEL,
     "messages": MODEL, "theme": MODEL, "tables": MODEL, "snapshot_fields": MODEL,
     "snapshot_schema": MODEL, "snapshot_measured": MODEL, "snapshot_reader": MODEL, "snapshot_check": MODEL,
     "presets": MODEL, "atomic": MODEL, "sweep_spec": MODEL, "sweep_engine": MODEL,
