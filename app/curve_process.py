@@ -43,6 +43,8 @@ log = logging.getLogger("sub60.app")
 FLAGS = 1024
 #: How often the process checks that the server is still there [s].
 PARENT_CHECK_S = 1.0
+#: Deaths of the process after which the server stops starting new ones [-].
+MAX_FAILURES = 3
 #: Cache budget of each of the process's simulators [B] (as the server's shared ones).
 PROCESS_CACHE_BYTES = 192 * 2**20
 
@@ -114,10 +116,11 @@ def _ready() -> int:
 class RemoteCurve:
     """One transfer curve being computed in the process."""
 
-    def __init__(self, future: Future, flags: Any, number: int) -> None:
+    def __init__(self, future: Future, flags: Any, number: int, pool: Any = None) -> None:
         self.future = future
         self._flags = flags
         self._number = number
+        self.pool = pool  # the executor it was given to
 
     def cancel(self) -> None:
         """Stop it: a queued task never starts, a running one stops before its next point."""
@@ -135,6 +138,7 @@ class CurveProcess:
         self._lock = threading.Lock()
         self._pool: ProcessPoolExecutor | None = None
         self.closed = False
+        self.failures = 0  # processes that died
 
     def start(self) -> None:
         """Start the process now (the server's start), so that the first page does not
@@ -182,21 +186,36 @@ class CurveProcess:
             try:
                 future = self._ensure().submit(fn, number, *args)
             except (BrokenProcessPool, RuntimeError) as exc:
-                log.warning("sub60: the curve process is gone (%s); starting another", exc)
-                self._pool = None
+                log.warning("sub60: the curve process is gone (%s)", exc)
+                if not self._count_failure():
+                    return None
                 try:
                     future = self._ensure().submit(fn, number, *args)
                 except (BrokenProcessPool, RuntimeError, OSError):
-                    self._pool = None
+                    self._count_failure()
                     return None
-        return RemoteCurve(future, self._flags, number)
+            return RemoteCurve(future, self._flags, number, self._pool)
 
-    def broken(self) -> None:
-        """The process died under a task: the next request starts a new one."""
-        with self._lock:
-            pool, self._pool = self._pool, None
+    def _count_failure(self) -> bool:
+        """Drop a dead pool; False (and closed for good) after `MAX_FAILURES` deaths, so
+        that a process that cannot live costs no more starts. Under ``_lock``."""
+        pool, self._pool = self._pool, None
         if pool is not None:
             pool.shutdown(wait=False, cancel_futures=True)
+        self.failures += 1
+        if self.failures >= MAX_FAILURES:
+            self.closed = True
+            log.warning("sub60: the curve process died %d times; every curve is computed in "
+                        "the server from now on", self.failures)
+            return False
+        return True
+
+    def broken(self, remote: RemoteCurve) -> None:
+        """The process died under ``remote``: the next request starts a new one (at most
+        `MAX_FAILURES` deaths in all; a newer process is left alone)."""
+        with self._lock:
+            if self._pool is not None and self._pool is remote.pool:
+                self._count_failure()
 
     def close(self) -> None:
         """Stop the process (the server stops)."""

@@ -580,7 +580,7 @@ class SessionJobs:
             except BrokenProcessPool as exc:
                 log.warning("sub60: the curve process died (%s); computed in the server instead",
                             exc)
-                process.broken()
+                process.broken(remote)
                 return None
             except Exception as exc:  # noqa: BLE001 - never lose a sweep to the process
                 log.warning("sub60: the curve process failed (%r); computed in the server instead",

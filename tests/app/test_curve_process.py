@@ -15,6 +15,7 @@ import signal
 import threading
 import time
 from concurrent.futures import CancelledError
+from concurrent.futures.process import BrokenProcessPool
 
 import numpy as np
 import pytest
@@ -163,5 +164,41 @@ def test_a_process_killed_under_a_task_costs_no_curve_and_is_replaced(caplog):
         again = proc.transfer_curve(sim, design.twin(), np.linspace(-0.2, 0.4, 7), 0.3, 1e-3,
                                     0.3)
         assert again.future.result(timeout=TIMEOUT_S).vg_V.size == 7
+    finally:
+        proc.close()
+
+
+def test_a_process_that_cannot_live_is_given_up_after_three_deaths(caplog):
+    """Every new process is killed at once: after `MAX_FAILURES` deaths the server stops
+    starting processes and computes every curve itself (still the serial numbers)."""
+    from sub60.app import curve_process
+
+    proc = CurveProcess()
+    proc.start()
+    try:
+        state = _state(8.5)
+        sim = Simulator()
+        with caplog.at_level(logging.WARNING, logger="sub60.app"):
+            for _ in range(2 * curve_process.MAX_FAILURES):
+                pid = proc.pid()
+                if pid is None:  # given up
+                    break
+                os.kill(pid, signal.SIGKILL)
+                time.sleep(0.3)
+                remote = proc.transfer_curve(sim, state.design().twin(),
+                                             np.linspace(-0.2, 0.4, 7), 0.3, 1e-3, 0.3)
+                if remote is not None:  # the dead pool is found at submission or under it
+                    try:
+                        remote.future.result(timeout=TIMEOUT_S)
+                    except BrokenProcessPool:
+                        proc.broken(remote)
+        assert proc.closed and proc.failures == curve_process.MAX_FAILURES
+        assert "every curve is computed in the server" in caplog.text
+        listener = Recorder()
+        SessionJobs(state, sim, listener, background=False,
+                    curve_process=proc).request_sweeps(state.design())
+        _, ref = _serial_curves(state, state.design())
+        for key in ("tfet", "twin"):
+            _same_curve(listener.curves()[key], ref[key])
     finally:
         proc.close()
