@@ -539,6 +539,9 @@ class SessionJobs:
             return
         except (ValueError, SolverError) as exc:
             self.post(self._deliver, g, self.listener.sweep_failed, exc)
+        except Exception as exc:  # noqa: BLE001 - the page must not wait for a dead sweep
+            log.error("sub60: a sweep failed", exc_info=exc)
+            self.post(self._deliver, g, self.listener.sweep_failed, exc)
         finally:
             for task in (remote, remote_out):
                 if task is not None:

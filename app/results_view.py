@@ -284,7 +284,11 @@ class ResultsView:
     def _failure_message(self, exc: Exception, what: str) -> str:
         if isinstance(exc, SolverError):
             return solver_message(exc, self.last_changed, what)
-        return value_message(exc)
+        if isinstance(exc, ValueError):
+            return value_message(exc)
+        return (f"**The {what} could not be computed** (an internal error, "
+                f"{html_escape(type(exc).__name__)}; the server's log has the details). "
+                "The plots show the last valid result.")
 
     def _set_progress(self, done: int, total: int) -> None:
         self.progress.value = int(round(100 * min(done, total) / max(total, 1)))

@@ -354,3 +354,18 @@ def test_deliveries_run_out_of_order_never_show_an_older_result():
     listener.events.clear()
     page.drain()
     assert listener.named("sweep_started") and len(listener.named("transfer_solved")) == 2
+
+
+def test_an_unexpected_failure_in_a_sweep_is_told_to_the_page_not_left_updating():
+    """A sweep that dies of anything (here a RuntimeError from the solver) ends with
+    `sweep_failed`, so the page says so instead of keeping its 'updating…' titles."""
+    state, sim, listener, page, jobs = _session(background=False)
+
+    def broken(*args, **kwargs):
+        raise RuntimeError("out of luck")
+
+    sim.transfer_curve = broken
+    jobs.request_sweeps(state.design())
+    failed = listener.named("sweep_failed")
+    assert len(failed) == 1 and isinstance(failed[0][1], RuntimeError)
+    assert not listener.named("sweep_finished")
