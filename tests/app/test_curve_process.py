@@ -26,21 +26,14 @@ from sub60.app.jobs import SessionJobs
 from sub60.app.state import ExplorerState
 from sub60.physics import Simulator
 from sub60.physics.design import check_bias
+from tests.app.test_jobs import Recorder
 
 TIMEOUT_S = 120.0
 
 
-class Recorder:
-    def __init__(self) -> None:
-        self.events: list[tuple] = []
-
-    def __getattr__(self, name):
-        if name.startswith("_"):
-            raise AttributeError(name)
-        return lambda *args: self.events.append((name, *args))
-
-    def curves(self) -> dict:
-        return {e[1]: e[2] for e in self.events if e[0] == "transfer_solved"}
+def _curves(listener: Recorder) -> dict:
+    """The transfer curves delivered, by key ('tfet', 'twin')."""
+    return {e[1]: e[2] for e in listener.named("transfer_solved")}
 
 
 @pytest.fixture(scope="module")
@@ -92,7 +85,7 @@ def test_curves_from_there_equal_the_serial_ones(process, monkeypatch, tail_meV,
     there = "twin" if tail_meV else remote  # non-idealities: the tunnel FET stays here
     here = "tfet" if there == "twin" else "twin"
     jobs.request_sweeps(design)
-    curves = listener.curves()
+    curves = _curves(listener)
     assert set(curves) == {"tfet", "twin"}
     alone, ref = _serial_curves(state, design)
     for key in ("tfet", "twin"):
@@ -155,7 +148,7 @@ def test_a_process_killed_under_a_task_costs_no_curve_and_is_replaced(caplog):
             jobs.request_sweeps(design)
         timer.join()
         assert "the curve process died" in caplog.text  # killed under the task
-        curves = listener.curves()
+        curves = _curves(listener)
         _, ref = _serial_curves(state, design)
         for key in ("tfet", "twin"):  # computed in the server instead
             _same_curve(curves[key], ref[key])
@@ -199,6 +192,6 @@ def test_a_process_that_cannot_live_is_given_up_after_three_deaths(caplog):
                     curve_process=proc).request_sweeps(state.design())
         _, ref = _serial_curves(state, state.design())
         for key in ("tfet", "twin"):
-            _same_curve(listener.curves()[key], ref[key])
+            _same_curve(_curves(listener)[key], ref[key])
     finally:
         proc.close()
