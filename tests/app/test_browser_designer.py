@@ -32,8 +32,13 @@ def test_doping_and_ioff_entries_take_typed_numbers(browser, app_url):
         page.wait_for_function(
             "() => new URLSearchParams(location.search).get('src_cm3') === '4.2e19'",
             timeout=30_000)
+        # the slider's value may come in a later update than the address: wait for it
+        target = math.log10(4.2e19)
+        page.wait_for_function(
+            f"() => Math.abs(sub60.sliderOf('ctl-source_doping_log10_cm3').value - {target!r})"
+            " < 1e-9", timeout=30_000)
         slider = page.evaluate("() => sub60.sliderOf('ctl-source_doping_log10_cm3').value")
-        assert slider == pytest.approx(math.log10(4.2e19), abs=1e-9)
+        assert slider == pytest.approx(target, abs=1e-9)
         type_into(page, "entry-ioff_log10_uA_per_um", "2e-4")
         page.wait_for_function(
             "() => new URLSearchParams(location.search).get('ioff_uA_um') === '0.0002'",
