@@ -13,8 +13,9 @@ Each concern watches the settings it depends on: the header follows the design, 
 material warning the material, the page address the linked settings, the presentation
 toggle the layout; any setting that changes a result asks the jobs for a new band diagram
 and new curves (one request per batch of changes, e.g. an opened snapshot). Results
-reach the page through ``doc.add_next_tick_callback`` (Bokeh's thread-safe way to touch a
-served document), under one ``hold`` so that an update leaves as one message.
+reach the page through `DocumentPost`: the event loop (never a worker thread) schedules
+them with ``doc.add_next_tick_callback``, and each runs under one ``hold`` so that an
+update leaves as one message.
 
 With ``background=False`` (tests, scripts) every computation runs at once in the
 calling thread.
@@ -24,6 +25,7 @@ from __future__ import annotations
 
 import importlib.resources
 import logging
+import threading
 import weakref
 from collections.abc import Callable
 from pathlib import Path
@@ -178,6 +180,7 @@ class Explorer(pn.viewable.Viewer):
         super().__init__(state=state or ExplorerState())
         self.background = background
         self._doc = None
+        self._poster: DocumentPost | None = None  # posts results to the served document
         self._location = None
         self._importing = False  # the settings change because a file or demo was opened
         css = [stylesheet()]
@@ -284,6 +287,7 @@ class Explorer(pn.viewable.Viewer):
         """The page of this session; starts the first computations."""
         self._doc = pn.state.curdoc if self.background else None
         if self._doc is not None:
+            self._poster = DocumentPost(self._doc)
             self.jobs.post = self._post
         self._refresh_material_warning()
         served = self._doc is not None and self._doc.session_context is not None
@@ -323,6 +327,7 @@ class Explorer(pn.viewable.Viewer):
                 pass
         self._watchers = []
         self._doc = None
+        self._poster = None
         self._location = None
 
     def _session_destroyed(self, _context: Any) -> None:
@@ -508,10 +513,42 @@ class Explorer(pn.viewable.Viewer):
     # ------------------------------------------------------------------ threads
     def _post(self, fn: Callable[..., Any], *args: Any) -> None:
         """Run fn(*args) on the document's event loop (or at once without a server)."""
-        doc = self._doc
-        if doc is None:
+        poster = self._poster
+        if poster is None:
             fn(*args)
-            return
+        else:
+            poster(fn, *args)
+
+
+class DocumentPost:
+    """Runs ``fn(*args)`` on a served document's event loop, under the document's lock and
+    one ``hold`` (an update's changes leave as one message), in the order posted.
+
+    Worker threads never touch the document: ``doc.add_next_tick_callback`` records a
+    document event, and while the event loop holds the document (every update does) that
+    event goes into the hold's list, which the loop copies and empties when the hold ends;
+    an event added from another thread in between was lost or left until the next hold
+    (results that arrive at once: the page's last update, e.g. the complete output curves,
+    never ran). A post from another thread hands the scheduling to the event loop
+    (``IOLoop.add_callback`` is thread-safe and touches no document); both steps keep the
+    order of the posts.
+
+    Parameters
+    ----------
+    doc : the session's Bokeh document.
+    loop : its event loop (default: the current one; create the poster on the loop's
+        thread).
+    """
+
+    def __init__(self, doc: Any, loop: Any = None) -> None:
+        from tornado.ioloop import IOLoop
+
+        self.doc = doc
+        self.loop = loop if loop is not None else IOLoop.current()
+        self.thread = threading.get_ident()  # the event loop's thread
+
+    def __call__(self, fn: Callable[..., Any], *args: Any) -> None:
+        doc = self.doc
 
         def run() -> None:
             with set_curdoc(doc), hold(doc):  # the update's changes leave as one message
@@ -520,8 +557,17 @@ class Explorer(pn.viewable.Viewer):
                 except Exception:  # the page must survive a bad update
                     log.exception("sub60: page update failed")
 
+        if threading.get_ident() == self.thread:
+            self._schedule(run)
+            return
         try:
-            doc.add_next_tick_callback(run)
+            self.loop.add_callback(self._schedule, run)
+        except Exception:  # the loop is closed: the server is stopping
+            log.debug("sub60: event loop gone, update dropped")
+
+    def _schedule(self, run: Callable[[], None]) -> None:
+        try:
+            self.doc.add_next_tick_callback(run)
         except Exception:  # session already closed
             log.debug("sub60: session gone, update dropped")
 
