@@ -544,7 +544,8 @@ class DocumentPost:
         from tornado.ioloop import IOLoop
 
         self.doc = doc
-        self.loop = loop if loop is not None else IOLoop.current()
+        # no running loop (a document not served): Bokeh schedules its callbacks itself
+        self.loop = loop if loop is not None else IOLoop.current(instance=False)
         self.thread = threading.get_ident()  # the event loop's thread
 
     def __call__(self, fn: Callable[..., Any], *args: Any) -> None:
@@ -557,7 +558,7 @@ class DocumentPost:
                 except Exception:  # the page must survive a bad update
                     log.exception("sub60: page update failed")
 
-        if threading.get_ident() == self.thread:
+        if self.loop is None or threading.get_ident() == self.thread:
             self._schedule(run)
             return
         try:
