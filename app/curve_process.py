@@ -59,6 +59,11 @@ def _start(flags: Any) -> None:
     global _flags
     _flags = flags
     parent = os.getppid()
+    import faulthandler
+    import signal
+
+    if hasattr(signal, "SIGUSR1"):  # `kill -USR1` prints its threads' stacks
+        faulthandler.register(signal.SIGUSR1, all_threads=True)
 
     def watch() -> None:  # a server killed without closing the pool leaves no orphan
         while os.getppid() == parent:

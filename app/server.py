@@ -359,6 +359,16 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
     return server
 
 
+def _stacks_on_signal() -> None:
+    """``kill -USR1 <pid>`` prints every thread's stack to the server's error output (a
+    page that waits for good can then be diagnosed without stopping the server)."""
+    import faulthandler
+    import signal
+
+    if hasattr(signal, "SIGUSR1"):
+        faulthandler.register(signal.SIGUSR1, all_threads=True)
+
+
 def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None:
     """Serve the explorer at http://host:port/ until interrupted.
 
@@ -378,6 +388,7 @@ def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None
         raise SystemExit(1) from None
     from sub60.app.curve_process import start_curve_process, stop_curve_process
 
+    _stacks_on_signal()
     if os.environ.get("SUB60_CURVE_PROCESS", "0") == "1":
         # opt-in: the twin's transfer curve and output curves in a second process (README,
         # "Curves after a design change"); off by default while an intermittent wait for
