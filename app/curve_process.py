@@ -205,8 +205,7 @@ class CurveProcess:
         """Drop a dead pool; False (and closed for good) after `MAX_FAILURES` deaths, so
         that a process that cannot live costs no more starts. Under ``_lock``."""
         pool, self._pool = self._pool, None
-        if pool is not None:
-            pool.shutdown(wait=False, cancel_futures=True)
+        _stop(pool)
         self.failures += 1
         if self.failures >= MAX_FAILURES:
             self.closed = True
@@ -216,8 +215,9 @@ class CurveProcess:
         return True
 
     def broken(self, remote: RemoteCurve) -> None:
-        """The process died under ``remote``: the next request starts a new one (at most
-        `MAX_FAILURES` deaths in all; a newer process is left alone)."""
+        """The process died or hung under ``remote``: it is stopped, and the next request
+        starts a new one (at most `MAX_FAILURES` failures in all; a newer process is left
+        alone)."""
         with self._lock:
             if self._pool is not None and self._pool is remote.pool:
                 self._count_failure()
@@ -227,8 +227,21 @@ class CurveProcess:
         with self._lock:
             self.closed = True
             pool, self._pool = self._pool, None
-        if pool is not None:
-            pool.shutdown(wait=False, cancel_futures=True)
+        _stop(pool)
+
+
+def _stop(pool: ProcessPoolExecutor | None) -> None:
+    """Shut a pool down and kill its process: a process that hangs would not end by
+    itself (its queued tasks are cancelled; its running one ends with it)."""
+    if pool is None:
+        return
+    processes = list((getattr(pool, "_processes", None) or {}).values())
+    pool.shutdown(wait=False, cancel_futures=True)
+    for proc in processes:
+        try:
+            proc.kill()
+        except (OSError, ValueError):  # already gone, or its handle closed
+            pass
 
 
 #: The server's curve process, set by `sub60.app.server.serve` (None: no process, every

@@ -140,6 +140,11 @@ LIVE_SESSIONS: weakref.WeakSet = weakref.WeakSet()
 REMOTE_CURVE = os.environ.get("SUB60_REMOTE_CURVE", "twin")
 if REMOTE_CURVE not in ("tfet", "twin"):
     raise ValueError(f"SUB60_REMOTE_CURVE: {REMOTE_CURVE!r} unknown; allowed 'tfet', 'twin'")
+#: How long the sweep thread waits for the curve process beyond the time its own share
+#: took: `REMOTE_PATIENCE` times that, at least `REMOTE_MIN_WAIT_S` [-, s]; then the
+#: process is taken as hung, replaced, and the curve computed in the server.
+REMOTE_PATIENCE = 4.0
+REMOTE_MIN_WAIT_S = 30.0
 OUTPUT_REST_S = 0.3  # quiet time after a gate-voltage move before the output curves [s]
 STREAM_INTERVAL_S = 0.2  # least time between two partial transfer curves sent to the page [s]
 WORKERS = ("bias", "sweep", "io")
@@ -470,6 +475,7 @@ class SessionJobs:
                     n_remote = n // 2
         devices = {"tfet": job.design, "twin": job.design.twin()}
         try:
+            sent = sent_out = time.perf_counter()
             if remote_key is not None:
                 remote = process.transfer_curve(sim, devices[remote_key], job.vg_V, job.vd_V,
                                                 job.ioff_uA_per_um, job.vdd_V)
@@ -494,7 +500,7 @@ class SessionJobs:
                         self.post(self._deliver_transfer, g, key, solved[key], job, done, total)
                         done = self._nonideal_job(g, job, solved[key], done, total, superseded)
                 if remote_key is not None:
-                    tc = self._remote_result(g, remote, process)
+                    tc = self._remote_result(g, remote, process, sent)
                     remote = None
                     if tc is None:
                         if not self._current(g):
@@ -521,7 +527,7 @@ class SessionJobs:
                     if not first:
                         self.post(self._deliver_outputs, g, list(curves), job, done, total)
                 if first:
-                    theirs = self._remote_result(g, remote_out, process)
+                    theirs = self._remote_result(g, remote_out, process, sent_out)
                     remote_out = None
                     if theirs is None:
                         if not self._current(g):
@@ -558,17 +564,31 @@ class SessionJobs:
 
         return curve_process.CURVE_PROCESS
 
-    def _remote_result(self, g: int, remote: Any, process: Any) -> Any:
+    def _remote_result(self, g: int, remote: Any, process: Any, since: float) -> Any:
         """A result from the curve process, once done; None when superseded (cancelled)
-        or when the process failed (the caller then computes it here). A solver failure
-        in the process is raised here as it would be in the sweep thread."""
+        or when the process failed or did not answer in time (the caller then computes it
+        here). A solver failure in the process is raised here as it would be in the sweep
+        thread.
+
+        ``since`` is when the task was sent (`time.perf_counter`); the sweep thread has
+        worked on its own share since then. The process gets `REMOTE_PATIENCE` times that
+        long again, and at least `REMOTE_MIN_WAIT_S`: a process that hangs (it happened
+        once, not understood) is then stopped and replaced, and the page still gets its
+        curve."""
         from concurrent.futures import CancelledError
         from concurrent.futures import TimeoutError as FutureTimeout
         from concurrent.futures.process import BrokenProcessPool
 
+        now = time.perf_counter()
+        deadline = now + max(REMOTE_MIN_WAIT_S, REMOTE_PATIENCE * (now - since))
         while True:
             if not self._current(g):
                 remote.cancel()
+                return None
+            if time.perf_counter() > deadline:
+                log.warning("sub60: the curve process did not answer within %.1f s; stopped, "
+                            "and the curve computed in the server instead", deadline - since)
+                process.broken(remote)
                 return None
             try:
                 return remote.future.result(timeout=0.02)

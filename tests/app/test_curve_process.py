@@ -161,6 +161,59 @@ def test_a_process_killed_under_a_task_costs_no_curve_and_is_replaced(caplog):
         proc.close()
 
 
+def _gone(pid: int) -> bool:
+    """Whether process ``pid`` has ended (no longer running; a zombie counts as ended)."""
+    try:
+        with open(f"/proc/{pid}/stat") as f:
+            return f.read().rsplit(")", 1)[1].split()[0] in ("Z", "X")
+    except OSError:
+        return True
+
+
+def test_a_process_that_hangs_costs_no_curve_and_is_replaced(caplog, monkeypatch):
+    """A process that stops answering (here frozen with SIGSTOP) is given the sweep
+    thread's own time several times over, at least `REMOTE_MIN_WAIT_S`; then it is killed,
+    the curve is computed in the server (the serial numbers), and a new process serves
+    the next request."""
+    if not hasattr(signal, "SIGSTOP"):
+        pytest.skip("no SIGSTOP on this platform")
+    monkeypatch.setattr(jobs_module, "REMOTE_MIN_WAIT_S", 1.0)
+    proc = CurveProcess()
+    proc.start()
+    try:
+        pid = proc.pid()
+        state = _state(9.5)
+        sim, listener = Simulator(), Recorder()
+        jobs = SessionJobs(state, sim, listener, background=False, curve_process=proc)
+        design = state.design()
+        os.kill(pid, signal.SIGSTOP)
+        with caplog.at_level(logging.WARNING, logger="sub60.app"):
+            sweep = threading.Thread(target=jobs.request_sweeps, args=(design,), daemon=True)
+            sweep.start()
+            sweep.join(TIMEOUT_S)
+        assert not sweep.is_alive(), "the sweep still waits for the frozen process"
+        assert "the curve process did not answer" in caplog.text
+        curves = _curves(listener)
+        _, ref = _serial_curves(state, design)
+        for key in ("tfet", "twin"):
+            _same_curve(curves[key], ref[key])
+        outs = [e for e in listener.events if e[0] == "outputs_solved"]
+        assert outs[-1][2] is True  # the output curves complete too
+        end = time.monotonic() + 30
+        while not _gone(pid) and time.monotonic() < end:
+            time.sleep(0.05)  # polling a condition (the process's end), not a fixed wait
+        assert _gone(pid)  # the hung process was killed, not left behind
+        new_pid = proc.pid()
+        assert new_pid is not None and new_pid != pid
+        assert proc.failures == 1
+    finally:
+        try:
+            os.kill(pid, signal.SIGCONT)
+        except OSError:
+            pass
+        proc.close()
+
+
 def test_a_process_that_cannot_live_is_given_up_after_three_deaths(caplog):
     """Every new process is killed at once: after `MAX_FAILURES` deaths the server stops
     starting processes and computes every curve itself (still the serial numbers)."""
