@@ -688,6 +688,13 @@ class SessionJobs:
     def _deliver_started(self, g: int, transfer: bool, output: bool, total: int) -> None:
         # after a result of the same sweep, "updating" would stay on the titles for good
         if self._current(g) and self._in_order(g, "started", 0):
+            # from here the page no longer shows the last complete curves as such (titles
+            # "updating…", partial curves): a later request for those same settings (a
+            # change undone before its curves arrived) must send them again
+            if transfer:
+                self.shown_transfer = None
+            if output:
+                self.shown_output = None
             self.listener.sweep_started(transfer, output, total)
 
     def _deliver_partial(self, g: int, key: str, vg: np.ndarray, ids: np.ndarray, done: int,

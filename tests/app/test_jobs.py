@@ -369,3 +369,45 @@ def test_an_unexpected_failure_in_a_sweep_is_told_to_the_page_not_left_updating(
     failed = listener.named("sweep_failed")
     assert len(failed) == 1 and isinstance(failed[0][1], RuntimeError)
     assert not listener.named("sweep_finished")
+
+
+def _updating(listener: Recorder) -> dict[str, bool]:
+    """Whether each plot's title would still say "updating…" after the events so far
+    (`ResultsView`: set by a sweep's start, cleared by the complete curves or a failure)."""
+    titles = {"transfer": False, "output": False}
+    for e in listener.events:
+        if e[0] == "sweep_started":
+            titles["transfer"] |= e[1]
+            titles["output"] |= e[2]
+        elif e[0] == "transfer_solved" and e[1] == "twin":
+            titles["transfer"] = False
+        elif e[0] == "outputs_solved" and e[2]:
+            titles["output"] = False
+        elif e[0] == "sweep_failed":
+            titles = {"transfer": False, "output": False}
+    return titles
+
+
+@pytest.mark.parametrize("knob", ["vg_V", "body_thickness_nm"])
+def test_a_change_undone_before_its_curves_arrive_leaves_no_updating_title(knob):
+    """A change whose sweep has started on the page (titles "updating…", partial curves
+    possibly drawn) and is undone before its curves arrive: the page shows neither the
+    old curves as if complete nor keeps "updating…" (seen as an output plot whose title
+    stayed for good). Stated rule of the app, no source."""
+    state, sim, listener, page, jobs = _session(background=False)
+    jobs.post = page.post
+    design = state.design()
+    jobs.request_sweeps(design)
+    page.drain()
+    assert _updating(listener) == {"transfer": False, "output": False}
+    old = getattr(state, knob)
+    setattr(state, knob, old + (0.1 if knob == "vg_V" else 1.0))
+    jobs.request_sweeps(state.design())
+    fn, args = page.queue.get_nowait()  # only the new sweep's start reaches the page
+    fn(*args)
+    assert any(_updating(listener).values())
+    setattr(state, knob, old)  # undone before the curves arrive
+    jobs.request_sweeps(state.design())
+    page.drain()
+    assert _updating(listener) == {"transfer": False, "output": False}
+    assert not jobs.transfer_stale() and jobs.shown_output == state.output_key()
