@@ -389,10 +389,10 @@ def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None
     from sub60.app.curve_process import start_curve_process, stop_curve_process
 
     _stacks_on_signal()
-    if os.environ.get("SUB60_CURVE_PROCESS", "0") == "1":
-        # opt-in: the twin's transfer curve and output curves in a second process (README,
-        # "Curves after a design change"); off by default while an intermittent wait for
-        # its result is not understood
+    if os.environ.get("SUB60_CURVE_PROCESS", "1") != "0":
+        # the twin's transfer curve and output curves in a second process (README, "Curves
+        # after a design change"); SUB60_CURVE_PROCESS=0 computes every curve in the
+        # session's sweep thread
         start_curve_process()
     print(f"sub60: serving the explorer at http://{_host_for_url(host)}:{port}/ "
           "(Ctrl+C to stop)", file=sys.stderr, flush=True)
