@@ -29,6 +29,7 @@ This module imports Panel only when a server is built, so the command line stays
 from __future__ import annotations
 
 import ipaddress
+import logging
 import os
 import re
 import secrets
@@ -365,8 +366,12 @@ def _stacks_on_signal() -> None:
     import faulthandler
     import signal
 
-    if hasattr(signal, "SIGUSR1"):
-        faulthandler.register(signal.SIGUSR1, all_threads=True)
+    if not hasattr(signal, "SIGUSR1"):
+        return
+    try:  # the process's own error output (a test's captured stream has no descriptor)
+        faulthandler.register(signal.SIGUSR1, file=sys.__stderr__, all_threads=True)
+    except (AttributeError, ValueError, OSError) as exc:  # io.UnsupportedOperation is both
+        logging.getLogger("sub60.app").debug("sub60: no stack dump on SIGUSR1 (%s)", exc)
 
 
 def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None:
