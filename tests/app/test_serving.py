@@ -49,6 +49,7 @@ def test_cli_serve_passes_host_and_warns(monkeypatch, capsys):
         return FakeServer()
 
     monkeypatch.setattr(server, "build_server", fake_build_server)
+    monkeypatch.setenv("SUB60_CURVE_PROCESS", "0")  # no second process for a stubbed server
     assert cli.main(["serve", "--host", "0.0.0.0", "--port", "5999"]) == 0
     err = capsys.readouterr().err
     assert seen == {"port": 5999, "host": "0.0.0.0"} and "WARNING" in err
