@@ -45,6 +45,10 @@ FLAGS = 1024
 PARENT_CHECK_S = 1.0
 #: Deaths of the process after which the server stops starting new ones [-].
 MAX_FAILURES = 3
+#: Scheduling niceness added to the process [-]: on two cores shared with the browser,
+#: the sweep thread's tunnel-FET curve and the page's band diagram go first, the process
+#: takes what is left.
+PROCESS_NICE = 10
 #: Cache budget of each of the process's simulators [B] (as the server's shared ones).
 PROCESS_CACHE_BYTES = 192 * 2**20
 
@@ -71,6 +75,10 @@ def _start(flags: Any) -> None:
         os._exit(0)
 
     threading.Thread(target=watch, name="sub60-parent-watch", daemon=True).start()
+    try:  # the session's own sweep thread and the band diagram first (PROCESS_NICE)
+        os.nice(PROCESS_NICE)
+    except (AttributeError, OSError):
+        pass
     from sub60.physics import solve_bias
 
     solve_bias(Design(), 0.0, 0.1)
