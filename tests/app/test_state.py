@@ -410,3 +410,22 @@ def test_collapsed_cards_make_their_controls_when_first_opened():
     assert e.state.source_doping_log10_cm3 == pytest.approx(math.log10(2e19))
     e.state.oxide = "SiO2"
     assert e.widgets["oxide_permittivity"].disabled
+
+
+def test_page_document_passes_bokeh_integrity_checks():
+    """The served explorer skips Bokeh's per-page integrity checks (`app.server.configure`),
+    so they run here on a whole page (every card opened, a pinned design drawn): no
+    error, and no warning but the empty placeholders of views made when first opened
+    (Bokeh's own `check_integrity`)."""
+    from bokeh.core.validation.check import check_integrity
+    from bokeh.document import Document
+
+    e = _fresh()
+    for card in e.controls.cards:
+        card.collapsed = False
+    assert e.pin_present("A") is not None
+    doc = Document()
+    doc.add_root(e.__panel__().get_root(doc))
+    issues = check_integrity(set(doc.models))
+    assert issues.error == []
+    assert {w.name for w in issues.warning} <= {"EMPTY_LAYOUT"}
