@@ -27,6 +27,7 @@ import itertools
 import logging
 import multiprocessing
 import os
+import sys
 import threading
 import time
 from concurrent.futures import Future, ProcessPoolExecutor
@@ -57,17 +58,22 @@ _flags: Any = None
 _simulators: dict[tuple[float, str], Any] = {}
 
 
-def _start(flags: Any) -> None:
+def _start(flags: Any, parent: int | None = None) -> None:
     """Initializer of the process: keep the flags, end with the server, load the compiled
     kernels (one small bias point) so that the first real task is not slow."""
     global _flags
     _flags = flags
-    parent = os.getppid()
+    # the server's id as the server gave it: a server that ended while this process was
+    # still starting (its parent is then already another process) ends it at once too
+    parent = os.getppid() if parent is None else parent
     import faulthandler
     import signal
 
     if hasattr(signal, "SIGUSR1"):  # `kill -USR1` prints its threads' stacks
-        faulthandler.register(signal.SIGUSR1, all_threads=True)
+        try:
+            faulthandler.register(signal.SIGUSR1, file=sys.__stderr__, all_threads=True)
+        except (AttributeError, ValueError, OSError):  # no error output to write to
+            pass
 
     def watch() -> None:  # a server killed without closing the pool leaves no orphan
         while os.getppid() == parent:
@@ -162,7 +168,7 @@ class CurveProcess:
     def _ensure(self) -> ProcessPoolExecutor:
         if self._pool is None:
             self._pool = ProcessPoolExecutor(1, mp_context=self._ctx, initializer=_start,
-                                             initargs=(self._flags,))
+                                             initargs=(self._flags, os.getpid()))
             self._pool.submit(_ready)  # starts the process at once, not at the first task
         return self._pool
 

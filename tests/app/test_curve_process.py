@@ -248,3 +248,43 @@ def test_a_process_that_cannot_live_is_given_up_after_three_deaths(caplog):
             _same_curve(_curves(listener)[key], ref[key])
     finally:
         proc.close()
+
+
+def test_a_killed_server_leaves_no_curve_process():
+    """`sub60 serve` killed (SIGKILL: no clean-up runs) right after it listens, while its
+    curve process may still be starting: the process ends by itself within seconds
+    (it watches the server's id, given by the server; a process that read its parent's
+    id itself after the server had died would wait for good). Stated rule of the app."""
+    from tests.app.conftest import free_port, start_server, stop_server
+
+    port = free_port()
+    proc = start_server(port)
+    try:
+        children: list[int] = []
+        end = time.monotonic() + 60
+        while not children and time.monotonic() < end:
+            for task in os.listdir(f"/proc/{proc.pid}/task"):
+                with open(f"/proc/{proc.pid}/task/{task}/children") as f:
+                    children += [int(k) for k in f.read().split()
+                                 if "spawn_main" in _cmdline(int(k))]
+            time.sleep(0.01)  # polling a condition (the child's start), not a fixed wait
+        assert children, "the server started no curve process"
+        os.kill(proc.pid, signal.SIGKILL)
+        proc.wait(timeout=30)
+        end = time.monotonic() + 30
+        while not all(_gone(c) for c in children) and time.monotonic() < end:
+            time.sleep(0.05)
+        assert all(_gone(c) for c in children), "the curve process outlived its server"
+    finally:
+        for c in children:
+            if not _gone(c):
+                os.kill(c, signal.SIGKILL)
+        stop_server(proc)
+
+
+def _cmdline(pid: int) -> str:
+    try:
+        with open(f"/proc/{pid}/cmdline", "rb") as f:
+            return f.read().replace(b"\0", b" ").decode(errors="replace")
+    except OSError:
+        return ""
