@@ -58,22 +58,29 @@ _flags: Any = None
 _simulators: dict[tuple[float, str], Any] = {}
 
 
-def _start(flags: Any, parent: int | None = None) -> None:
-    """Initializer of the process: keep the flags, end with the server, load the compiled
-    kernels (one small bias point) so that the first real task is not slow."""
-    global _flags
-    _flags = flags
-    # the server's id as the server gave it: a server that ended while this process was
-    # still starting (its parent is then already another process) ends it at once too
-    parent = os.getppid() if parent is None else parent
+def stacks_on_signal() -> None:
+    """``kill -USR1 <pid>`` prints every thread's stack to the process's own error output
+    (the server's and this process's: a page that waits for good can then be diagnosed
+    without stopping anything)."""
     import faulthandler
     import signal
 
-    if hasattr(signal, "SIGUSR1"):  # `kill -USR1` prints its threads' stacks
-        try:
-            faulthandler.register(signal.SIGUSR1, file=sys.__stderr__, all_threads=True)
-        except (AttributeError, ValueError, OSError):  # no error output to write to
-            pass
+    if not hasattr(signal, "SIGUSR1"):
+        return
+    try:  # sys.__stderr__: a test's captured stream has no descriptor
+        faulthandler.register(signal.SIGUSR1, file=sys.__stderr__, all_threads=True)
+    except (AttributeError, ValueError, OSError) as exc:  # io.UnsupportedOperation is both
+        log.debug("sub60: no stack dump on SIGUSR1 (%s)", exc)
+
+
+def _start(flags: Any, parent: int) -> None:
+    """Initializer of the process: keep the flags, end with the server (``parent``, the
+    server's id as the server gave it: a server that ended while this process was still
+    starting, when its parent is already another process, ends it at once too), load the
+    compiled kernels (one small bias point) so that the first real task is not slow."""
+    global _flags
+    _flags = flags
+    stacks_on_signal()
 
     def watch() -> None:  # a server killed without closing the pool leaves no orphan
         while os.getppid() == parent:

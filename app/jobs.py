@@ -475,7 +475,7 @@ class SessionJobs:
                     n_remote = n // 2
         devices = {"tfet": job.design, "twin": job.design.twin()}
         try:
-            sent = sent_out = time.perf_counter()
+            sent = time.perf_counter()  # both tasks go to the process now
             if remote_key is not None:
                 remote = process.transfer_curve(sim, devices[remote_key], job.vg_V, job.vd_V,
                                                 job.ioff_uA_per_um, job.vdd_V)
@@ -527,7 +527,7 @@ class SessionJobs:
                     if not first:
                         self.post(self._deliver_outputs, g, list(curves), job, done, total)
                 if first:
-                    theirs = self._remote_result(g, remote_out, process, sent_out)
+                    theirs = self._remote_result(g, remote_out, process, sent)
                     remote_out = None
                     if theirs is None:
                         if not self._current(g):
@@ -572,9 +572,8 @@ class SessionJobs:
 
         ``since`` is when the task was sent (`time.perf_counter`); the sweep thread has
         worked on its own share since then. The process gets `REMOTE_PATIENCE` times that
-        long again, and at least `REMOTE_MIN_WAIT_S`: a process that hangs (it happened
-        once, not understood) is then stopped and replaced, and the page still gets its
-        curve."""
+        long again, and at least `REMOTE_MIN_WAIT_S`: a process that hangs is then stopped
+        and replaced, and the page still gets its curve."""
         from concurrent.futures import CancelledError
         from concurrent.futures import TimeoutError as FutureTimeout
         from concurrent.futures.process import BrokenProcessPool

@@ -29,7 +29,6 @@ This module imports Panel only when a server is built, so the command line stays
 from __future__ import annotations
 
 import ipaddress
-import logging
 import os
 import re
 import secrets
@@ -360,20 +359,6 @@ def build_server(port: int = 5006, host: str = "127.0.0.1", show: bool = False,
     return server
 
 
-def _stacks_on_signal() -> None:
-    """``kill -USR1 <pid>`` prints every thread's stack to the server's error output (a
-    page that waits for good can then be diagnosed without stopping the server)."""
-    import faulthandler
-    import signal
-
-    if not hasattr(signal, "SIGUSR1"):
-        return
-    try:  # the process's own error output (a test's captured stream has no descriptor)
-        faulthandler.register(signal.SIGUSR1, file=sys.__stderr__, all_threads=True)
-    except (AttributeError, ValueError, OSError) as exc:  # io.UnsupportedOperation is both
-        logging.getLogger("sub60.app").debug("sub60: no stack dump on SIGUSR1 (%s)", exc)
-
-
 def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None:
     """Serve the explorer at http://host:port/ until interrupted.
 
@@ -391,9 +376,9 @@ def serve(port: int = 5006, host: str = "127.0.0.1", show: bool = False) -> None
         reason = getattr(exc, "strerror", None) or str(exc)
         print(f"sub60: error: cannot serve on {host}:{port}: {reason}", file=sys.stderr)
         raise SystemExit(1) from None
-    from sub60.app.curve_process import start_curve_process, stop_curve_process
+    from sub60.app.curve_process import stacks_on_signal, start_curve_process, stop_curve_process
 
-    _stacks_on_signal()
+    stacks_on_signal()
     if os.environ.get("SUB60_CURVE_PROCESS", "1") != "0":
         # the twin's transfer curve and output curves in a second process (README, "Curves
         # after a design change"); SUB60_CURVE_PROCESS=0 computes every curve in the
