@@ -95,10 +95,16 @@ def _node_exponent(x, ec, ev, e, kv, up, down, scale, two_band, gl_x, gl_w):  # 
 def wkb_transverse_kernel(x, ec, ev, a, b, kvals, energies, mass_rel, two_band,
                           gl_x, gl_w):  # pragma: no cover
     """(nk, nE) WKB exponents, parabolic transverse shifts a k^2 (conduction) and b k^2
-    (valence); see `wkb_exponent_transverse` for the arguments."""
+    (valence); see `wkb_exponent_transverse` for the arguments.
+
+    Two-band: one energy at a time, segment by segment, every transverse k of that
+    energy together (`_two_band_column`). One-band: node by node (`_node_exponent`)."""
     nk, ne = kvals.shape
     out = np.empty((nk, ne))
     scale = np.sqrt(mass_rel / HBAR2_2M0_EV_NM2)
+    if two_band:
+        _two_band_column(x, ec, ev, a, b, kvals, energies, scale, gl_x, gl_w, out)
+        return out
     for kk in range(nk):
         for ie in range(ne):
             kv = kvals[kk, ie]
@@ -160,3 +166,69 @@ def wkb_transverse_kernel_varying(x, ec, ev, up, down, kvals, energies, mass_seg
                                                         gl_x, gl_w)
             out[kk, ie] = 2.0 * acc
     return out
+
+@_nb.njit(cache=True, nogil=True)
+def _two_band_column(x, ec, ev, a, b, kvals, energies, scale, gl_x, gl_w,
+                     out):  # pragma: no cover
+    """The two-band exponents of `wkb_transverse_kernel` into ``out`` (nk, nE), with the
+    same bits as `_node_exponent` node by node: each node's sum runs over the same
+    segments in the same order and adds the same numbers.
+
+    The nodes of one energy share c = E_c - E and v = E - E_v and differ only in q. On a
+    segment inside the gap at both ends, the Gauss points' c v / (c + v) are therefore
+    computed once for all of them (the in-gap branch of `segment_integral_transverse`,
+    whose arithmetic this repeats); other segments go through the skip test and
+    `segment_integral_transverse` node by node."""
+    nk, ne = kvals.shape
+    nx = x.size
+    ng = gl_x.size
+    acc = np.empty(nk)
+    qs = np.empty(nk)
+    live = np.empty(nk, np.bool_)
+    tg = np.empty(ng)
+    p = np.empty(ng)
+    for g in range(ng):
+        tg[g] = 0.0 + 0.5 * (1.0 + gl_x[g]) * 1.0
+    for ie in range(ne):
+        e = energies[ie]
+        any_live = False
+        for kk in range(nk):
+            kv = kvals[kk, ie]
+            # outside the contacts' states: +inf, as in `_node_exponent`
+            live[kk] = not (e >= ev[0] - b * kv ** 2 or e <= ec[nx - 1] + a * kv ** 2)
+            any_live = any_live or live[kk]
+            qs[kk] = kv ** 2 / scale**2
+            acc[kk] = 0.0
+        if any_live:
+            for i in range(nx - 1):
+                c0, c1, v0, v1 = ec[i] - e, ec[i + 1] - e, e - ev[i], e - ev[i + 1]
+                h = x[i + 1] - x[i]
+                if c0 > 0.0 and c1 > 0.0 and v0 > 0.0 and v1 > 0.0:
+                    dc, dv = c1 - c0, v1 - v0
+                    for g in range(ng):
+                        gc = c0 + dc * tg[g]
+                        gv = v0 + dv * tg[g]
+                        p[g] = gc * gv / (gc + gv)
+                    for kk in range(nk):
+                        q = qs[kk]
+                        if not live[kk]:
+                            continue
+                        if q >= 0.0:
+                            s = 0.0
+                            for g in range(ng):
+                                arg = p[g] + q
+                                if arg > 0.0:
+                                    s += gl_w[g] * np.sqrt(arg)
+                            acc[kk] += 0.0 + 0.5 * 1.0 * h * s
+                        else:
+                            acc[kk] += _segment_integral_transverse(c0, c1, v0, v1, q, h,
+                                                                    gl_x, gl_w)
+                else:
+                    for kk in range(nk):
+                        q = qs[kk]
+                        if not live[kk] or _outside(c0, c1, v0, v1, q):
+                            continue
+                        acc[kk] += _segment_integral_transverse(c0, c1, v0, v1, q, h,
+                                                                gl_x, gl_w)
+        for kk in range(nk):
+            out[kk, ie] = 2.0 * scale * acc[kk] if live[kk] else np.inf

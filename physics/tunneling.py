@@ -288,8 +288,22 @@ def segment_integral_transverse(c0, c1, v0, v1, q, h, gl_x, gl_w):  # pragma: no
     so the argument has the sign of the quadratic f(t) = c v + q (c + v); its roots in
     (0, 1) split the segment, and each positive piece gets 3-point Gauss-Legendre. Plain
     Python: the reference path runs it as is, `physics._wkb_compiled` compiles it.
+
+    A segment inside the gap at both ends (c and v positive there, hence on the whole
+    segment, and q >= 0) has f > 0 throughout: it is one piece, integrated at once with
+    the same arithmetic as the general path's piece [0, 1].
     """
     dc, dv = c1 - c0, v1 - v0
+    if c0 > 0.0 and c1 > 0.0 and v0 > 0.0 and v1 > 0.0 and q >= 0.0:
+        s = 0.0
+        for g in range(gl_x.size):
+            t = 0.0 + 0.5 * (1.0 + gl_x[g]) * 1.0
+            gc = c0 + dc * t
+            gv = v0 + dv * t
+            arg = gc * gv / (gc + gv) + q
+            if arg > 0.0:
+                s += gl_w[g] * np.sqrt(arg)
+        return 0.0 + 0.5 * 1.0 * h * s
     qa = dc * dv
     qb = c0 * dv + v0 * dc + q * (dc + dv)
     qc = c0 * v0 + q * (c0 + v0)
