@@ -57,3 +57,47 @@ def test_an_n_source_design_has_one_metrics_row():
     state.source_type = "p"
     view.show_metrics(stale=True)
     assert 'data-device="twin"' in view.metrics.object
+
+
+def test_an_ideal_design_sends_nothing_to_its_empty_overlays():
+    """Every assignment of a source's data is a message to the page and a repaint of its
+    plot. An ideal design (no tails, no ideal-curve overlay) clears the overlay after
+    each transfer curve and draws tails at each bias point: once empty, those sources
+    are left alone (common practice, no source: send only what changed)."""
+    from types import SimpleNamespace
+
+    from sub60.physics import Design
+
+    figs = ExplorerFigures()
+    overlay = figs.nonideal
+    sources = (overlay.transfer_source, overlay.swing_source, overlay.tail_source,
+               overlay.source_tail_source)
+    from bokeh.document import Document
+
+    doc = Document()  # what a page's document sends: its change events
+    for fig in (figs.band, figs.transfer, figs.swing_plot.figure):
+        doc.add_root(fig)
+    names = {src.name for src in sources}
+    sent: list[str] = []
+    doc.on_change(lambda event: sent.append(event.model.name)
+                  if getattr(event, "model", None) is not None and event.model.name in names
+                  else None)
+    x = np.linspace(0.0, 60.0, 7)
+    bp = SimpleNamespace(design=Design(), x_nm=x, subband_ec_eV=np.full(7, 0.5),
+                         subband_ev_eV=np.full(7, -0.5))
+    for _ in range(3):
+        overlay.clear()
+        overlay.show_tails(bp)
+    assert sent == []
+    # a curve drawn there is cleared once, and tails of a design with tails are drawn
+    figs.show_transfer("ideal", x / 100, np.logspace(-6, 0, 7), None, None, np.full(7, 60.0))
+    sent.clear()
+    overlay.clear()
+    overlay.clear()
+    assert sent == ["transfer_ideal_source", "swing_ideal_source"]
+    tails = SimpleNamespace(**{**vars(bp), "design": Design(tail_energy_channel_meV=20.0)})
+    sent.clear()
+    overlay.show_tails(tails)
+    overlay.show_tails(bp)
+    overlay.show_tails(bp)
+    assert sent == ["tail_channel_source", "tail_channel_source"]
