@@ -557,6 +557,12 @@ class DocumentPost:
                     fn(*args)
                 except Exception:  # the page must survive a bad update
                     log.exception("sub60: page update failed")
+            if self.loop is not None:  # the message may be left in Panel's write queue
+                try:
+                    for delay in STRANDED_WRITE_CHECKS_S:
+                        self.loop.call_later(delay, resend_stranded_writes, doc)
+                except RuntimeError:  # the loop is closed: the server is stopping
+                    pass
 
         if self.loop is None or threading.get_ident() == self.thread:
             self._schedule(run)
@@ -571,6 +577,39 @@ class DocumentPost:
             self.doc.add_next_tick_callback(run)
         except Exception:  # session already closed
             log.debug("sub60: session gone, update dropped")
+
+
+#: Times after a page update at which messages left in Panel's write queue are sent [s]:
+#: Panel's write task usually ends within a few ms of the update (common practice, no
+#: source: a few checks spread over a second, each two dictionary lookups).
+STRANDED_WRITE_CHECKS_S = (0.02, 0.25, 1.0)
+
+
+def resend_stranded_writes(doc: Any) -> bool:
+    """Send the messages of ``doc`` that Panel's write queue left behind; True when there
+    were some.
+
+    Panel (1.9) queues a page's messages while its websocket is busy (``_WRITE_MSGS``,
+    flag ``_WRITE_BLOCK``) and a write task sends them. A task that ends clears the flag;
+    a message queued while it awaited its last write got a new task, but that task finds
+    the flag cleared and returns without sending. The message then waits for the next
+    update of the page, and when it was the last one (the page's output curves arriving
+    right after the transfer curves) the page never completes. Here such messages get the
+    flag and a write task again, as Panel's own queueing gives them
+    (`tests/app/test_document_post.py` makes the race happen)."""
+    try:
+        from panel.io import document as panel_document
+
+        queued, writing = panel_document._WRITE_MSGS, panel_document._WRITE_BLOCK
+        write, dispatch = panel_document._dispatch_msgs, panel_document._dispatch_write_task
+    except (ImportError, AttributeError):  # another Panel: nothing of this to mend
+        return False
+    if doc not in queued or doc in writing:
+        return False
+    log.debug("sub60: page messages left in Panel's write queue, sent now")
+    writing[doc] = True
+    dispatch(doc, write, doc)
+    return True
 
 
 def release_document(doc: Any, page: pn.viewable.Viewable) -> None:

@@ -96,3 +96,65 @@ def test_posts_from_a_worker_all_reach_a_held_document():
     for cb in scheduled.callbacks:
         cb.callback()
     assert order == list(range(POSTS + 1))
+
+
+def test_a_message_left_in_panels_write_queue_is_sent():
+    """Panel queues a page's messages while its websocket is busy and a write task sends
+    them. Made to happen here in Panel's own functions, on a socket type of ours: the
+    first task sends message 1 and awaits its write; message 2 is queued (with a task of
+    its own) just as that write completes; the first task then ends, clearing the
+    write flag, and message 2's task finds the flag cleared and returns without sending.
+    `resend_stranded_writes` (run by `DocumentPost` after each update) sends it.
+    Stated invariant of the app (every update reaches the page); no source."""
+    import asyncio
+    from types import SimpleNamespace
+
+    from panel.io import document as panel_document
+
+    from sub60.app.layout import resend_stranded_writes
+
+    class Socket:  # a connection's socket of a type Panel dispatches through a handler
+        pass
+
+    sent: list[str] = []
+    writes: list[asyncio.Future] = []
+
+    def handler(conn, events=None, msg=None):
+        sent.append(msg)
+        writes.append(asyncio.get_running_loop().create_future())
+        return [writes[-1]]
+
+    panel_document.extra_socket_handlers[Socket] = handler
+    class Connection:  # a session's connection: its socket and message factory
+        _socket = Socket()
+        protocol = SimpleNamespace(create=lambda kind, events: events[0])
+
+    conn = Connection()
+    doc = Document()
+
+    async def scenario() -> tuple[list[str], list[str]]:
+        panel_document.schedule_write_events(doc, [conn], ["message 1"])
+        for _ in range(3):
+            await asyncio.sleep(0)  # the first task sends message 1 and awaits its write
+        writes[0].set_result(None)  # the write completes ...
+        panel_document.schedule_write_events(doc, [conn], ["message 2"])  # ... as 2 comes
+        await asyncio.sleep(0.05)
+        before = list(sent)
+        resend_stranded_writes(doc)
+        await asyncio.sleep(0.05)
+        for w in writes:
+            if not w.done():
+                w.set_result(None)
+        await asyncio.sleep(0.05)
+        return before, list(sent)
+
+    try:
+        before, after = asyncio.run(scenario())
+    finally:
+        panel_document.extra_socket_handlers.pop(Socket, None)
+        for registry in (panel_document._WRITE_MSGS, panel_document._WRITE_BLOCK,
+                         panel_document._WRITE_FUTURES):
+            registry.pop(doc, None)
+    assert before == ["message 1"]  # Panel alone: message 2 left in the queue
+    assert after == ["message 1", "message 2"]
+    assert doc not in panel_document._WRITE_MSGS and doc not in panel_document._WRITE_BLOCK
