@@ -26,7 +26,7 @@ from sub60.app.messages import (
     refused_sweep_message,
     refused_value_message,
 )
-from sub60.app.nonideal_view import NONIDEAL_STEPS, nonideal_card
+from sub60.app.nonideal_view import NONIDEAL_STEPS, nonideal_card, nonideal_makers
 from sub60.app.number_rules import InputError, parse_number
 from sub60.app.sharing import format_number
 from sub60.app.state import DESIGN_PARAMETERS, ExplorerState
@@ -297,26 +297,49 @@ def log_current_formatter() -> CustomJSTickFormatter:
 
 
 
-def folded_card(title: str, items: Sequence[Any], collapsed: bool = False) -> pn.Card:
+def folded_card(title: str, items: Sequence[Any] | Callable[[], Sequence[Any]],
+                collapsed: bool = False) -> pn.Card:
     """A card of the sidebar. A card that starts collapsed gets its controls when it is
     first opened: a page opens without building the browser side of controls nobody has
     looked at yet (each slider with its entry box is about a hundred Bokeh properties to
-    create, send and draw). The controls themselves exist from the start, bound to the
-    state, so their values are always those of the settings."""
+    create, send and draw). ``items`` may be a function that makes them: a collapsed card
+    then calls it when first opened, so that not even the Panel widgets of its controls
+    are made for a page that never opens it (`Controls.widgets` makes a widget asked for
+    earlier, bound to the state like the others, so values are always the settings')."""
     kw = dict(title=title, collapsed=collapsed, width=SIDEBAR_WIDTH - 14, margin=(4, 4),
               header_background="#eef2f5", css_classes=["control-group"])
     if not collapsed:
-        return pn.Card(*items, **kw)
+        return pn.Card(*(items() if callable(items) else items), **kw)
     box = pn.Card(**kw)
-    pending = list(items)
+    pending: list[Any] = [items]
 
     def fill(event: Any) -> None:
         if not event.new and pending:  # opened for the first time
-            box.objects = pending[:]
-            pending.clear()
+            made = pending.pop()
+            box.objects = list(made() if callable(made) else made)
 
     box.param.watch(fill, "collapsed")
     return box
+
+
+class LazyWidgets(dict):
+    """The sidebar's widgets by setting name, each made when first asked for (`dict`
+    semantics otherwise: ``name in widgets`` and iteration see the widgets made so far).
+
+    Parameters
+    ----------
+    make : makes the widget of a name (KeyError for an unknown name).
+    """
+
+    def __init__(self, make: Callable[[str], Any]) -> None:
+        super().__init__()
+        self._make = make
+
+    def __missing__(self, name: str) -> Any:
+        widget = self._make(name)
+        self[name] = widget
+        return widget
+
 
 class Controls:
     """The sidebar of one session: cards of widgets, the reset button.
@@ -335,16 +358,14 @@ class Controls:
         self.state = state
         self.messages = messages
         self._css = list(css)
-        self.widgets = self._make_widgets()
-        on_refused = (lambda text: messages.set("input", text)) if messages else None
-        on_accepted = (lambda: messages.clear("input")) if messages else None
+        self._on_refused = (lambda text: messages.set("input", text)) if messages else None
+        self._on_accepted = (lambda: messages.clear("input")) if messages else None
+        self._makers = self._widget_makers()
+        #: The controls by setting name, each made when first shown or asked for (the
+        #: collapsed cards' controls when the card is first opened).
+        self.widgets: dict[str, pn.widgets.Widget] = LazyWidgets(self._make_widget)
         #: Entry boxes of the dopings and the Ioff target, beside their log sliders.
-        self.entries = {name: PowerEntry(state, name, unit, on_refused, on_accepted)
-                        for name, unit in POWER_ENTRIES}
-        if messages is not None:
-            for name in [n for n, _ in EDITABLE_STEPS] + ["vg_sweep_V"]:
-                self.widgets[name].on_refused = lambda text: messages.set("input", text)
-                self.widgets[name].on_accepted = lambda: messages.clear("input")
+        self.entries: dict[str, PowerEntry] = LazyWidgets(self._make_entry)
         self.eot = pn.pane.HTML(eot_html(state), css_classes=["eot"], stylesheets=self._css,
                                 margin=(0, 12))
         self.sweep_step = pn.pane.HTML(self._step_html(), css_classes=["vg-step"],
@@ -354,50 +375,66 @@ class Controls:
                                               color="light", width=WIDGET_WIDTH,
                                               margin=(8, 10), css_classes=["reset-button"])
         self.reset_button.on_click(lambda _event: self.state.reset())
-        self._add_composition()
         self.cards = self._make_cards(snapshots)
         self.sidebar = pn.Column(
             pn.pane.HTML('<div class="side-title">Settings</div>', stylesheets=self._css,
                          margin=(4, 10)),
             *self.cards, self.reset_button, width=SIDEBAR_WIDTH, scroll=True,
             css_classes=["sub60-sidebar"], styles={"max-height": "100vh"}, margin=0)
-        for widget, rule in ENABLE_RULES.items():
-            self.widgets[widget].disabled = not getattr(state, rule)
         state.param.watch(self._apply_enable_rule, list(ENABLE_RULES.values()))
+        state.param.watch(self._apply_composition_rules,
+                          ["composition_enabled", "composition_text"])
+        state.param.watch(self._apply_source_composition_text, ["source_composition_text"])
         # the EOT line says why when the design is invalid: any design setting counts
         state.param.watch(self._refresh_eot, list(DESIGN_PARAMETERS))
 
+    # ------------------------------------------------------------ widgets made on demand
+    def _make_widget(self, name: str) -> pn.widgets.Widget:
+        """The widget of a setting (`widgets` calls this once per name), with its enable
+        rule, label and refusal messages as they stand now."""
+        if name not in self._makers:
+            raise KeyError(name)
+        widget = self._makers[name]()
+        rule = ENABLE_RULES.get(name)
+        if rule is not None:
+            widget.disabled = not getattr(self.state, rule)
+        if name == "source_composition_x":
+            widget.name = self.state.source_composition_text
+        if hasattr(widget, "on_refused") and self._on_refused is not None:
+            widget.on_refused, widget.on_accepted = self._on_refused, self._on_accepted
+        return widget
+
+    def _make_entry(self, name: str) -> PowerEntry:
+        units = dict(POWER_ENTRIES)
+        if name not in units:
+            raise KeyError(name)
+        return PowerEntry(self.state, name, units[name], self._on_refused, self._on_accepted)
+
     # ------------------------------------------------------------ alloy composition
-    def _add_composition(self) -> None:
+    def _composition_slider(self) -> pn.widgets.Widget:
         """The composition slider with its entry box: enabled for alloy bodies only, its
         label says what x is for the chosen family (derived settings of the state)."""
         s = self.state.param
         lo, hi = s.composition_x.bounds
-        widget = _NowEditableFloatSlider.from_param(
+        return _NowEditableFloatSlider.from_param(
             s.composition_x, step=0.01, throttled=True, fixed_start=lo, fixed_end=hi,
             name=self.state.composition_text, width=WIDGET_WIDTH, margin=(2, 10),
             css_classes=["ctl-composition_x"], disabled=not self.state.composition_enabled)
-        if self.messages is not None:
-            messages = self.messages
-            widget.on_refused = lambda text: messages.set("input", text)
-            widget.on_accepted = lambda: messages.clear("input")
-        self.widgets["composition_x"] = widget
-        self.state.param.watch(self._apply_composition_rules,
-                               ["composition_enabled", "composition_text"])
-        self.widgets["source_composition_x"].name = self.state.source_composition_text
-        self.state.param.watch(
-            lambda e: setattr(self.widgets["source_composition_x"], "name", e.new),
-            ["source_composition_text"])
 
     def _apply_composition_rules(self, *_events) -> None:
-        widget = self.widgets["composition_x"]
-        widget.param.update(disabled=not self.state.composition_enabled,
-                            name=self.state.composition_text)
+        if "composition_x" in self.widgets:
+            self.widgets["composition_x"].param.update(
+                disabled=not self.state.composition_enabled, name=self.state.composition_text)
+
+    def _apply_source_composition_text(self, event: Any) -> None:
+        if "source_composition_x" in self.widgets:
+            self.widgets["source_composition_x"].name = event.new
 
     def _apply_enable_rule(self, *events) -> None:
         rules = {rule: widget for widget, rule in ENABLE_RULES.items()}
         for e in events:
-            self.widgets[rules[e.name]].disabled = not e.new
+            if rules[e.name] in self.widgets:
+                self.widgets[rules[e.name]].disabled = not e.new
 
     def _step_html(self) -> str:
         return f'<div class="note">{self.state.vg_step_text()} between the sweep\'s ends</div>'
@@ -408,43 +445,55 @@ class Controls:
     def _refresh_eot(self, *_events) -> None:
         self.eot.object = eot_html(self.state)
 
-    def _make_widgets(self) -> dict[str, pn.widgets.Widget]:
+    def _widget_makers(self) -> dict[str, Callable[[], pn.widgets.Widget]]:
+        """A function making each setting's widget (`_make_widget` calls them)."""
         s = self.state.param
-        w: dict[str, pn.widgets.Widget] = {}
-        for name, step in EDITABLE_STEPS:
+        m: dict[str, Callable[[], pn.widgets.Widget]] = {}
+
+        def editable(name: str, step: float) -> pn.widgets.Widget:
             lo, hi = s[name].bounds
-            w[name] = _NowEditableFloatSlider.from_param(
+            return _NowEditableFloatSlider.from_param(
                 s[name], step=step, throttled=True, fixed_start=lo, fixed_end=hi,
                 width=WIDGET_WIDTH, margin=(2, 10), css_classes=[f"ctl-{name}"])
-        lo, hi = s.vg_sweep_V.bounds
-        w["vg_sweep_V"] = _CheckedRangeSlider.from_param(
-            s.vg_sweep_V, step=0.05, throttled=True, fixed_start=lo, fixed_end=hi,
-            width=WIDGET_WIDTH, margin=(2, 10), css_classes=["ctl-vg_sweep_V"])
-        w["vg_points"] = _NowIntSlider.from_param(s.vg_points, step=2, throttled=True,
-                                                  width=WIDGET_WIDTH, margin=(4, 10),
-                                                  css_classes=["ctl-vg_points"])
-        log_sliders = [("ioff_log10_uA_per_um", log_current_formatter())]
-        log_sliders += [(name, log_cm3_formatter()) for name in DOPINGS]
-        for name, formatter in log_sliders:  # an entry box beside each (`PowerEntry`)
-            # a short title: the unit is the entry box's title beside it
-            w[name] = _NowFloatSlider.from_param(s[name], throttled=True, format=formatter,
-                                                 name=s[name].label.split(" (")[0],
-                                                 width=WIDGET_WIDTH - POWER_ENTRY_WIDTH - 10,
-                                                 margin=(4, 10),
-                                                 css_classes=[f"ctl-{name}"])
+
+        for name, step in EDITABLE_STEPS:
+            m[name] = lambda name=name, step=step: editable(name, step)
+
+        def sweep() -> pn.widgets.Widget:
+            lo, hi = s.vg_sweep_V.bounds
+            return _CheckedRangeSlider.from_param(
+                s.vg_sweep_V, step=0.05, throttled=True, fixed_start=lo, fixed_end=hi,
+                width=WIDGET_WIDTH, margin=(2, 10), css_classes=["ctl-vg_sweep_V"])
+
+        m["vg_sweep_V"] = sweep
+        m["vg_points"] = lambda: _NowIntSlider.from_param(
+            s.vg_points, step=2, throttled=True, width=WIDGET_WIDTH, margin=(4, 10),
+            css_classes=["ctl-vg_points"])
+        m["composition_x"] = self._composition_slider
+
+        def log_slider(name: str, formatter: Any) -> pn.widgets.Widget:
+            # a short title: the unit is the entry box's title beside it (`PowerEntry`)
+            return _NowFloatSlider.from_param(s[name], throttled=True, format=formatter,
+                                              name=s[name].label.split(" (")[0],
+                                              width=WIDGET_WIDTH - POWER_ENTRY_WIDTH - 10,
+                                              margin=(4, 10), css_classes=[f"ctl-{name}"])
+
+        m["ioff_log10_uA_per_um"] = lambda: log_slider("ioff_log10_uA_per_um",
+                                                       log_current_formatter())
+        for name in DOPINGS:
+            m[name] = lambda name=name: log_slider(name, log_cm3_formatter())
         for name in ("material", "source_material", "oxide"):
-            w[name] = pn.widgets.Select.from_param(s[name], width=WIDGET_WIDTH,
-                                                   margin=(4, 10), css_classes=[f"ctl-{name}"])
-        w["tunnelling_model"] = pn.widgets.RadioBoxGroup.from_param(
-            s.tunnelling_model, inline=False, width=WIDGET_WIDTH, margin=(6, 10, 0, 10),
-            css_classes=["ctl-tunnelling_model"])
-        w["charge_model"] = pn.widgets.RadioBoxGroup.from_param(
-            s.charge_model, inline=False, width=WIDGET_WIDTH, margin=(6, 10, 0, 10),
-            css_classes=["ctl-charge_model"])
-        for name in ("gate_layout", "source_type", "channel_dopant"):
-            w[name] = pn.widgets.RadioButtonGroup.from_param(
+            m[name] = lambda name=name: pn.widgets.Select.from_param(
                 s[name], width=WIDGET_WIDTH, margin=(4, 10), css_classes=[f"ctl-{name}"])
-        return w
+        for name in ("tunnelling_model", "charge_model"):
+            m[name] = lambda name=name: pn.widgets.RadioBoxGroup.from_param(
+                s[name], inline=False, width=WIDGET_WIDTH, margin=(6, 10, 0, 10),
+                css_classes=[f"ctl-{name}"])
+        for name in ("gate_layout", "source_type", "channel_dopant"):
+            m[name] = lambda name=name: pn.widgets.RadioButtonGroup.from_param(
+                s[name], width=WIDGET_WIDTH, margin=(4, 10), css_classes=[f"ctl-{name}"])
+        m.update(nonideal_makers(self.state, WIDGET_WIDTH))  # app.nonideal_view
+        return m
 
     def _labelled(self, name: str) -> pn.Column:
         """A button group under its label (button groups show no title of their own)."""
@@ -468,12 +517,12 @@ class Controls:
             "at V<sub>off</sub> + V<sub>dd</sub>. Low-power logic targets are lower, about "
             "10–100 pA/µm; high-performance ones near 100 nA/µm (common practice).</div>",
             stylesheets=self._css, margin=(0, 12))
-        model_note = pn.pane.HTML(
+        model_note = lambda: pn.pane.HTML(  # noqa: E731 - made when its card opens
             '<div class="note">WKB integrates the decay of the wave through the gap; the '
             "exact two-band transmission solves the same two-band Hamiltonian by transfer "
             "matrices along the same subband edges (slower). The Transmission plot draws "
             "both at the present bias.</div>", stylesheets=self._css, margin=(0, 12))
-        charge_note = pn.pane.HTML(
+        charge_note = lambda: pn.pane.HTML(  # noqa: E731 - made when its card opens
             '<div class="note">The 2D subbands count the holes with the density of states '
             "of coupled heavy/light-hole subbands (4×4 k·p) and the electrons with the "
             "in-plane masses transport uses; transport then moves holes with the same "
@@ -488,17 +537,22 @@ class Controls:
             card("Structure", w["body_thickness_nm"], w["gate_length_nm"],
                  w["source_length_nm"], w["drain_length_nm"], self._labelled("gate_layout"),
                  w["gate_source_offset_nm"], w["buried_oxide_thickness_nm"]),
-            card("Doping", self._labelled("source_type"), entry("source_doping_log10_cm3"),
-                 self._labelled("channel_dopant"), entry("channel_doping_log10_cm3"),
-                 entry("drain_doping_log10_cm3"), w["doping_gradient_nm_per_dec"],
-                 collapsed=True),
-            card("Gate stack", w["oxide"], w["oxide_thickness_nm"], self.eot,
-                 w["oxide_permittivity"], w["gate_workfunction_eV"], collapsed=True),
-            card("Material and temperature", w["material"], w["composition_x"],
-                 w["source_material"], w["source_composition_x"], w["heterointerface_nm"],
-                 w["temperature_K"], collapsed=True),
-            card("Tunnelling model", w["tunnelling_model"], model_note,
-                 collapsed=True),
-            card("Carrier charge", w["charge_model"], charge_note, collapsed=True),
-            nonideal_card(self, card, WIDGET_WIDTH),  # app.nonideal_view
+            # collapsed: their controls are made when first opened (`folded_card`)
+            folded_card("Doping", lambda: [
+                self._labelled("source_type"), entry("source_doping_log10_cm3"),
+                self._labelled("channel_dopant"), entry("channel_doping_log10_cm3"),
+                entry("drain_doping_log10_cm3"), w["doping_gradient_nm_per_dec"]],
+                collapsed=True),
+            folded_card("Gate stack", lambda: [
+                w["oxide"], w["oxide_thickness_nm"], self.eot, w["oxide_permittivity"],
+                w["gate_workfunction_eV"]], collapsed=True),
+            folded_card("Material and temperature", lambda: [
+                w["material"], w["composition_x"], w["source_material"],
+                w["source_composition_x"], w["heterointerface_nm"], w["temperature_K"]],
+                collapsed=True),
+            folded_card("Tunnelling model", lambda: [w["tunnelling_model"], model_note()],
+                        collapsed=True),
+            folded_card("Carrier charge", lambda: [w["charge_model"], charge_note()],
+                        collapsed=True),
+            nonideal_card(self, folded_card, WIDGET_WIDTH),  # app.nonideal_view
         ]

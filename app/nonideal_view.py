@@ -36,38 +36,48 @@ IDEAL_LABEL = "tunnel FET, ideal"
 TAIL_ALPHA = 0.55
 
 
-def nonideal_card(controls: Any, card: Callable[..., pn.Card], width: int) -> pn.Card:
+def nonideal_makers(state: Any, width: int) -> dict[str, Callable[[], Any]]:
+    """Functions making the card's choice widgets, by setting name (its sliders are the
+    sidebar's editable sliders, `NONIDEAL_STEPS`)."""
+    return {name: (lambda name=name: pn.widgets.RadioButtonGroup.from_param(
+        state.param[name], width=width, margin=(4, 10), css_classes=[f"ctl-{name}"]))
+        for name in NONIDEAL_CHOICES}
+
+
+def nonideal_card(controls: Any, folded_card: Callable[..., pn.Card], width: int) -> pn.Card:
     """The collapsed "Non-idealities" card of the sidebar (`app.controls.Controls`):
-    the typical-process and ideal buttons, then one control per setting."""
+    the typical-process and ideal buttons, then one control per setting, made when the
+    card is first opened (`app.controls.folded_card`)."""
     state, w, css = controls.state, controls.widgets, controls._css
-    for name in NONIDEAL_CHOICES:
-        w[name] = pn.widgets.RadioButtonGroup.from_param(
-            state.param[name], width=width, margin=(4, 10), css_classes=[f"ctl-{name}"])
-    typical = pn.widgets.Button(label="Typical III–V process", width=width // 2 - 4,
-                                margin=(4, 2, 4, 10), css_classes=["ni-typical"])
-    ideal = pn.widgets.Button(label="Ideal (all off)", width=width // 2 - 4,
-                              margin=(4, 10, 4, 2), css_classes=["ni-ideal"])
-    typical.on_click(lambda _e: state.set_typical_process())
-    ideal.on_click(lambda _e: state.set_ideal())
-    w["nonideal_typical"], w["nonideal_ideal"] = typical, ideal
-    note = pn.pane.HTML(
-        '<div class="note">Typical process: our own illustration (README): tails 15 meV, '
-        "τ = 1 ns at midgap, U-shaped D<sub>it</sub> 2e12 cm⁻²eV⁻¹, R<sub>s</sub> = "
-        "R<sub>d</sub> = 100 Ω·µm. When any is on, the ideal device is drawn dashed.</div>",
-        stylesheets=css, margin=(0, 12))
 
-    def labelled(name: str) -> pn.Column:
-        head = pn.pane.HTML(f'<div class="ctl-label">{state.param[name].label}</div>',
-                            stylesheets=css, margin=(4, 10, 0, 10))
-        return pn.Column(head, w[name], margin=0)
+    def items() -> list:
+        typical = pn.widgets.Button(label="Typical III–V process", width=width // 2 - 4,
+                                    margin=(4, 2, 4, 10), css_classes=["ni-typical"])
+        ideal = pn.widgets.Button(label="Ideal (all off)", width=width // 2 - 4,
+                                  margin=(4, 10, 4, 2), css_classes=["ni-ideal"])
+        typical.on_click(lambda _e: state.set_typical_process())
+        ideal.on_click(lambda _e: state.set_ideal())
+        w["nonideal_typical"], w["nonideal_ideal"] = typical, ideal
+        note = pn.pane.HTML(
+            '<div class="note">Typical process: our own illustration (README): tails 15 meV, '
+            "τ = 1 ns at midgap, U-shaped D<sub>it</sub> 2e12 cm⁻²eV⁻¹, R<sub>s</sub> = "
+            "R<sub>d</sub> = 100 Ω·µm. When any is on, the ideal device is drawn dashed.</div>",
+            stylesheets=css, margin=(0, 12))
 
-    return card("Non-idealities", pn.Row(typical, ideal, margin=0), note,
+        def labelled(name: str) -> pn.Column:
+            head = pn.pane.HTML(f'<div class="ctl-label">{state.param[name].label}</div>',
+                                stylesheets=css, margin=(4, 10, 0, 10))
+            return pn.Column(head, w[name], margin=0)
+
+        return [pn.Row(typical, ideal, margin=0), note,
                 w["tail_energy_source_meV"], w["tail_energy_channel_meV"],
                 w["tat_lifetime_ns"], w["tat_trap_level_eV"],
                 w["interface_trap_density_cm2eV"], labelled("interface_trap_profile"),
                 w["interface_trap_neutral_level_eV"],
                 w["source_resistance_ohm_um"], w["drain_resistance_ohm_um"],
-                labelled("bandgap_narrowing"), collapsed=True)
+                labelled("bandgap_narrowing")]
+
+    return folded_card("Non-idealities", items, collapsed=True)
 
 
 class IdealOverlay:

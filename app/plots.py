@@ -14,7 +14,7 @@ Test hooks: figures are named ``band_plot``, ``spectrum_plot``, ``transmission_p
 ``window_source``, ``transfer_tfet_source``,
 ``transfer_twin_source``, ``vg_marker_source``, ``limit_source``, ``swing_tfet_source``,
 ``swing_twin_source``, ``map_source``, ``output_source_0`` ... ; pinned designs
-(slot k = 0 ... 7): ``pin_band_source_k``, ``pin_transfer_source_k`` and, once drawn,
+(slot k = 0 ... 7), once drawn: ``pin_band_source_k``, ``pin_transfer_source_k``,
 ``pin_swing_source_k``, ``pin_output_source_k``; renderers
 ``pin_band_ec_k``, ``pin_band_ev_k``, ``pin_transfer_k``, legends ``pin_band_legend``,
 ``pin_transfer_legend``; a measured file: ``measured_transfer_source``,

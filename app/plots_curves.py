@@ -278,38 +278,19 @@ class PinOverlays:
     band and transfer plots."""
 
     def __init__(self, band, transfer, swing=None, output=None) -> None:
-        self.pin_band_sources, self.pin_transfer_sources = [], []
-        # swing and output plots: the slot's lines are made when first drawn (a page opens
-        # without the 16 lines, sources and tools nobody may need)
+        # every slot's lines, sources, tools and legend entries are made when the slot is
+        # first drawn (a page opens without the 8 slots' 24 lines nobody may need)
+        self.band, self.transfer = band, transfer
+        self.pin_band_sources: dict[int, ColumnDataSource] = {}
+        self.pin_transfer_sources: dict[int, ColumnDataSource] = {}
         self.pin_swing_sources: dict[int, ColumnDataSource] = {}
         self.pin_output_sources: dict[int, ColumnDataSource] = {}
         self.swing, self.output = swing, output
-        self.pin_band_items, self.pin_transfer_items = [], []
-        for k, colour in enumerate(PIN_COLOURS):
-            src_band = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []},
-                                        name=f"pin_band_source_{k}")
-            rs = [band.line("x_nm", edge, source=src_band, line_color=colour, line_width=1.4,
-                            line_dash="dashed", line_alpha=0.95, name=f"pin_band_{tag}_{k}")
-                  for edge, tag in (("ec_eV", "ec"), ("ev_eV", "ev"))]
-            band.add_tools(HoverTool(renderers=rs, tooltips=[
-                ("pinned", "@name"), ("x", "@x_nm{0.0} nm"), ("Ec", "@ec_eV{0.000} eV"),
-                ("Ev", "@ev_eV{0.000} eV")]))
-            src_transfer = ColumnDataSource({"vg": [], "id": [], "name": []},
-                                            name=f"pin_transfer_source_{k}")
-            rt = transfer.line("vg", "id", source=src_transfer, line_color=colour,
-                               line_width=1.8, name=f"pin_transfer_{k}")
-            transfer.add_tools(HoverTool(renderers=[rt], tooltips=[
-                ("pinned", "@name"), ("Vg", "@vg{0.000} V"), ("Id", "@id{0.00e+0} µA/µm")]))
-            self.pin_band_sources.append(src_band)
-            self.pin_transfer_sources.append(src_transfer)
-            self.pin_band_items.append(LegendItem(label=value(" "), renderers=rs, visible=False))
-            self.pin_transfer_items.append(LegendItem(label=value(" "), renderers=[rt],
-                                                      visible=False))
+        self.pin_band_items: dict[int, LegendItem] = {}
+        self.pin_transfer_items: dict[int, LegendItem] = {}
         self.pin_legends = {}
-        for key, fig, items, where in (("band", band, self.pin_band_items, "top_right"),
-                                       ("transfer", transfer, self.pin_transfer_items,
-                                        "top_left")):
-            leg = Legend(items=items, location=where, click_policy="hide", visible=False,
+        for key, fig, where in (("band", band, "top_right"), ("transfer", transfer, "top_left")):
+            leg = Legend(items=[], location=where, click_policy="hide", visible=False,
                          name=f"pin_{key}_legend", title="pinned", title_text_font_size="10px",
                          title_text_font_style="italic", background_fill_alpha=0.8,
                          label_text_font_size="10px", spacing=0, padding=3,
@@ -318,10 +299,40 @@ class PinOverlays:
             fig.add_layout(leg)
             self.pin_legends[key] = leg
 
+    def _make_slot(self, k: int) -> None:
+        """The slot's band edges and transfer curve with their tools and legend entries
+        (once)."""
+        if k in self.pin_band_sources:
+            return
+        band, transfer, colour = self.band, self.transfer, PIN_COLOURS[k]
+        src_band = ColumnDataSource({"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []},
+                                    name=f"pin_band_source_{k}")
+        rs = [band.line("x_nm", edge, source=src_band, line_color=colour, line_width=1.4,
+                        line_dash="dashed", line_alpha=0.95, name=f"pin_band_{tag}_{k}")
+              for edge, tag in (("ec_eV", "ec"), ("ev_eV", "ev"))]
+        band.add_tools(HoverTool(renderers=rs, tooltips=[
+            ("pinned", "@name"), ("x", "@x_nm{0.0} nm"), ("Ec", "@ec_eV{0.000} eV"),
+            ("Ev", "@ev_eV{0.000} eV")]))
+        src_transfer = ColumnDataSource({"vg": [], "id": [], "name": []},
+                                        name=f"pin_transfer_source_{k}")
+        rt = transfer.line("vg", "id", source=src_transfer, line_color=colour,
+                           line_width=1.8, name=f"pin_transfer_{k}")
+        transfer.add_tools(HoverTool(renderers=[rt], tooltips=[
+            ("pinned", "@name"), ("Vg", "@vg{0.000} V"), ("Id", "@id{0.00e+0} µA/µm")]))
+        for r in (*rs, rt):
+            r.nonselection_glyph = r.muted_glyph = "auto"  # as `plot_style.slim_renderers`
+        self.pin_band_sources[k] = src_band
+        self.pin_transfer_sources[k] = src_transfer
+        self.pin_band_items[k] = LegendItem(label=value(" "), renderers=rs, visible=False)
+        self.pin_transfer_items[k] = LegendItem(label=value(" "), renderers=[rt], visible=False)
+        for key, items in (("band", self.pin_band_items), ("transfer", self.pin_transfer_items)):
+            self.pin_legends[key].items = [items[j] for j in sorted(items)]  # slot order
+
     def show(self, slot: int, name: str, bias=None, curve=None) -> None:
         """A pinned design in a slot: its name, and (when given) its band edges at the
         present bias (`physics.simulate.BiasPoint`) and its transfer curve
         (`physics.simulate.TransferCurve`); what is not given stays as it was."""
+        self._make_slot(slot)
         for item in (self.pin_band_items[slot], self.pin_transfer_items[slot]):
             item.label = value(name)
             item.visible = True
@@ -390,6 +401,8 @@ class PinOverlays:
 
     def clear(self, slot: int) -> None:
         """Empty a slot."""
+        if slot not in self.pin_band_sources:
+            return  # never drawn
         self.pin_band_sources[slot].data = {"x_nm": [], "ec_eV": [], "ev_eV": [], "name": []}
         self.pin_transfer_sources[slot].data = {"vg": [], "id": [], "name": []}
         for src in (self.pin_swing_sources.get(slot), self.pin_output_sources.get(slot)):
@@ -402,7 +415,7 @@ class PinOverlays:
         self._update_legends()
 
     def _update_legends(self) -> None:
-        n = sum(1 for item in self.pin_transfer_items if item.visible)
+        n = sum(1 for item in self.pin_transfer_items.values() if item.visible)
         for leg in self.pin_legends.values():
             leg.visible = n > 0
             leg.ncols = 1 if n <= 4 else 2

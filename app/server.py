@@ -314,10 +314,15 @@ def quiet_closed_sockets(io_loop: Any) -> None:
 
 
 def configure() -> None:
-    """Panel settings of the explorer: local resources, our stylesheet, no extras."""
+    """Panel settings of the explorer: local resources, our stylesheet, no extras. Bokeh's
+    integrity checks of each new page's document are off (they walked the ~650 models of
+    every page opened, ≈ 10 % of building it, to log warnings only): the page's
+    document passes them in the tests (`tests/app/test_state.py`)."""
     import panel as pn
+    from bokeh.settings import settings
 
     pn.extension(raw_css=[_page_css()], notifications=False)
+    settings.perform_document_validation.set_value(False)
 
 
 def _page_css() -> str:

@@ -66,6 +66,8 @@ if TYPE_CHECKING:
 
 #: Default memory budget of a Simulator's cache of solved bias points [B].
 DEFAULT_CACHE_BYTES = 64 * 2**20
+#: Transfer curves whose refined Id(Vg) a Simulator keeps (`Simulator.transfer_curve`).
+REFINED_CURVES = 256
 #: Design fields that change only the current computed from a solved electrostatics (band
 #: tails and trap-assisted generation act on the current alone in this model; the charge
 #: and potential do not see them), so two designs that differ only here share their
@@ -640,7 +642,11 @@ class Simulator:
 
     Notes
     -----
-    Besides the cache, the last solution of at most 16 designs is kept for warm starts.
+    Besides the cache, the last solution of at most 16 designs is kept for warm starts,
+    and the points `transfer_curve` adds by refinement are kept per curve (at most
+    `REFINED_CURVES`): keyed by the design, the drain voltage, the requested gate voltages,
+    their currents and the figure-of-merit settings, and read by refinement only, so that
+    the cache of solved points and the warm starts stay those of the requested points.
     """
 
     def __init__(self, resolution: float = 1.0, model: str = "two-band",
@@ -656,6 +662,8 @@ class Simulator:
         self._last: OrderedDict[Design, Electrostatics] = OrderedDict()
         # (V_g, V_d, I / I_0) of the last two stored points with access resistances
         self._series_ratios: OrderedDict[Design, list[tuple[float, float, float]]] = OrderedDict()
+        # refined Id(Vg) of the last transfer curves: (Vg, Id) with the added points
+        self._refined: OrderedDict[tuple, tuple[np.ndarray, np.ndarray]] = OrderedDict()
         self._lock = threading.RLock()
 
     def __repr__(self) -> str:
@@ -674,6 +682,7 @@ class Simulator:
             self._cache.clear()
             self._last.clear()
             self._series_ratios.clear()
+            self._refined.clear()
 
     def solve_bias(self, design: Design, vg_V: float, vd_V: float,
                    initial: Electrostatics | None = None, store: bool = True,
@@ -869,7 +878,21 @@ class Simulator:
                     "ioff_target_uA_per_um": ioff_target_uA_per_um, "vdd_V": vdd_V,
                     "ss_floor_uA_per_um": ss_floor_uA_per_um}
         vg_all, id_all = vg, current
+        refined_key = (design, float(vd_V), vg.tobytes(), current.tobytes(),
+                       float(ioff_target_uA_per_um), float(vdd_V),
+                       None if ss_floor_uA_per_um is None else float(ss_floor_uA_per_um))
         if refine and vg.size >= 3 and np.all(np.diff(vg) > 0):
+            with self._lock:
+                known = self._refined.get(refined_key)
+                if known is not None:
+                    self._refined.move_to_end(refined_key)
+        else:
+            refine = False
+        if refine and known is not None:
+            # the same requested points (bit for bit) refine to the same points: refinement
+            # is a function of them and of the settings alone (its points are not stored)
+            vg_all, id_all = (a.copy() for a in known)
+        elif refine:
             solved = {float(v): p for v, p in zip(vg, points, strict=True)}
 
             def evaluate(new: np.ndarray) -> np.ndarray:
@@ -885,6 +908,10 @@ class Simulator:
                 return np.array(out)
 
             vg_all, id_all = refine_curve(vg, current, evaluate, **settings)
+            with self._lock:
+                self._refined[refined_key] = (vg_all.copy(), id_all.copy())
+                while len(self._refined) > REFINED_CURVES:
+                    self._refined.pop(next(iter(self._refined)))
         metrics = figures_of_merit(vg_all, id_all, **settings)
         # the point swing of the requested samples alone: a refinement decision (which
         # can differ between two solves of the same curve at round-off) never changes it

@@ -85,9 +85,9 @@ def _pin_and_wait(page, slot: int, name: str = "") -> None:
     if name:
         page.locator(".pin-new-name input").fill(name)
     page.locator(".pin-button button").click()
-    page.wait_for_function(
-        "(k) => sub60.model('pin_transfer_source_' + k).data.vg.length > 0 && "
-        "sub60.model('pin_band_source_' + k).data.x_nm.length > 0 && "
+    page.wait_for_function(  # a slot's lines are made when it is first drawn
+        "(k) => sub60.model('pin_transfer_source_' + k)?.data.vg.length > 0 && "
+        "sub60.model('pin_band_source_' + k)?.data.x_nm.length > 0 && "
         "sub60.byClass('pin-cells-' + k) !== undefined && "
         "sub60.byClass('pin-cells-' + k).text.includes('data-row')",
         arg=slot, timeout=TIMEOUT_MS)
@@ -132,7 +132,7 @@ def test_snapshot_download_then_upload_in_a_fresh_page(browser, app_url, tmp_pat
         second.wait_for_function(
             "() => sub60.byClass('snapshot-report').text.includes('match the stored ones') "
             "&& Math.abs(sub60.data('fermi_source').y[1] + 0.35) < 1e-9 && sub60.allDone(41)"
-            " && sub60.model('pin_transfer_source_0').data.vg.length === 41",
+            " && sub60.model('pin_transfer_source_0')?.data.vg.length === 41",
             timeout=TIMEOUT_MS)
         _same_controls(controls, _controls(second))
         shown = second.evaluate("() => sub60.metrics()")

@@ -101,3 +101,34 @@ def test_an_ideal_design_sends_nothing_to_its_empty_overlays():
     overlay.show_tails(bp)
     overlay.show_tails(bp)
     assert sent == ["tail_channel_source", "tail_channel_source"]
+
+
+def test_pinned_slots_are_made_when_first_drawn():
+    """A page opens without the pinned designs' lines (app invariant, no source): slot k's
+    source, lines and legend entries appear when it is first drawn, the legends list the
+    slots in slot order, and emptying a slot never drawn changes nothing."""
+    from types import SimpleNamespace
+
+    f = ExplorerFigures()
+
+    def names() -> set[str]:
+        return {m.name for fig in (f.band, f.transfer) for m in fig.references() if m.name}
+
+    assert not {n for n in names() if n.startswith(("pin_band_source", "pin_transfer"))
+                and "legend" not in n}
+    f.pins.clear(5)  # never drawn
+    vg = np.linspace(0.0, 0.4, 5)
+    curve = SimpleNamespace(vg_V=vg, id_uA_per_um=10.0 ** (vg * 10 - 6), ss_mV_per_dec=vg * 0 + 50)
+    for slot, name in ((2, "B"), (0, "A")):
+        f.pins.show(slot, name, curve=curve)
+    made = names()
+    for k in (0, 2):
+        assert {f"pin_band_source_{k}", f"pin_transfer_source_{k}", f"pin_band_ec_{k}",
+                f"pin_band_ev_{k}", f"pin_transfer_{k}"} <= made
+    assert "pin_band_source_1" not in made
+    legend = f.pins.pin_legends["transfer"]
+    assert legend.visible and [i.label.value for i in legend.items] == ["A", "B"]
+    assert f.pins.pin_transfer_sources[2].data["name"] == ["B"] * 5
+    f.pins.clear(2)
+    f.pins.clear(0)
+    assert not legend.visible

@@ -382,3 +382,50 @@ def test_enable_rules_follow_the_state():
     assert permittivity.disabled and box.disabled
     with pytest.raises(TypeError):  # derived: set by the state's rules only
         e.state.buried_oxide_enabled = True
+
+
+def test_collapsed_cards_make_their_controls_when_first_opened():
+    """A page opens without the Panel widgets of its collapsed cards (stated rule of
+    `app.controls.folded_card`); opened, a card's controls show the settings as they are
+    then (changed meanwhile by a file, a link or the what-if bar), with their enable rules
+    and labels, and they edit the state like the others (app invariant; no source)."""
+    e = _fresh()
+    cards = {c.title: c for c in e.controls.cards}
+    assert "temperature_K" not in e.widgets and "oxide_thickness_nm" not in e.widgets
+    assert "source_doping_log10_cm3" not in e.controls.entries
+    assert "vg_V" in e.widgets and "body_thickness_nm" in e.widgets  # open cards
+    e.state.param.update(temperature_K=250.0, material="InGaAs", oxide="custom")
+    for title in ("Material and temperature", "Gate stack", "Doping", "Non-idealities"):
+        assert len(cards[title].objects) == 0
+        cards[title].collapsed = False
+        assert len(cards[title].objects) > 0
+    temperature = e.widgets["temperature_K"]
+    assert temperature.value == 250.0
+    assert not e.widgets["oxide_permittivity"].disabled  # custom oxide: enabled
+    assert not e.widgets["composition_x"].disabled  # an alloy body
+    assert e.widgets["composition_x"].name == e.state.composition_text
+    temperature.value = 280.0
+    assert e.state.temperature_K == 280.0
+    e.controls.entries["source_doping_log10_cm3"].box.value = "2e19"
+    assert e.state.source_doping_log10_cm3 == pytest.approx(math.log10(2e19))
+    e.state.oxide = "SiO2"
+    assert e.widgets["oxide_permittivity"].disabled
+
+
+def test_page_document_passes_bokeh_integrity_checks():
+    """The served explorer skips Bokeh's per-page integrity checks (`app.server.configure`),
+    so they run here on a whole page (every card opened, a pinned design drawn): no
+    error, and no warning but the empty placeholders of views made when first opened
+    (Bokeh's own `check_integrity`)."""
+    from bokeh.core.validation.check import check_integrity
+    from bokeh.document import Document
+
+    e = _fresh()
+    for card in e.controls.cards:
+        card.collapsed = False
+    assert e.pin_present("A") is not None
+    doc = Document()
+    doc.add_root(e.__panel__().get_root(doc))
+    issues = check_integrity(set(doc.models))
+    assert issues.error == []
+    assert {w.name for w in issues.warning} <= {"EMPTY_LAYOUT"}

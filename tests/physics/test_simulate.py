@@ -303,3 +303,32 @@ def test_design_import_is_light():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True, timeout=60)
     assert out.stdout.strip() == "False"
+
+
+def test_refined_points_are_reused_and_equal_a_fresh_computation():
+    """A transfer curve asked again (another page, same settings) takes the points its
+    refinement added from the simulator instead of solving them again, and equals bit for
+    bit the curve of a fresh simulator; the refinement points stay out of the cache of
+    solved points, so that later sweeps follow the same continuation path (stated
+    invariant of the API, checked by counting the Poisson solves; no source)."""
+    vg = np.linspace(-0.2, 0.5, 15)
+    sim = Simulator()
+    first = sim.transfer_curve(Design(), vg, 0.3)
+    added = first.vg_refined_V.size - vg.size
+    assert added > 0  # the default design's curve is refined
+    assert sim.cache_info().entries == vg.size  # refinement points are not stored
+    solves = []
+    solve = sim._electrostatics
+    sim._electrostatics = lambda *a: solves.append(a[1]) or solve(*a)
+    again = sim.transfer_curve(Design(), vg, 0.3)
+    assert solves == []
+    assert sim.cache_info().entries == vg.size
+    fresh = Simulator().transfer_curve(Design(), vg, 0.3)
+    for got in (first, again):
+        for name in ("vg_V", "id_uA_per_um", "btbt_uA_per_um", "thermionic_uA_per_um",
+                     "ss_mV_per_dec", "vg_refined_V", "id_refined_uA_per_um"):
+            np.testing.assert_array_equal(getattr(got, name), getattr(fresh, name))
+        assert got.metrics.to_dict() == fresh.metrics.to_dict()
+    # other figure-of-merit settings refine afresh (their points are solved)
+    sim.transfer_curve(Design(), vg, 0.3, ioff_target_uA_per_um=1e-4)
+    assert solves
