@@ -148,8 +148,16 @@ def test_a_message_left_in_panels_write_queue_is_sent():
         await asyncio.sleep(0.05)
         return before, list(sent)
 
+    result: dict = {}
+
+    def run() -> None:  # an event loop of its own: another may run in this thread
+        result["sent"] = asyncio.run(scenario())
+
     try:
-        before, after = asyncio.run(scenario())
+        worker = threading.Thread(target=run, daemon=True)
+        worker.start()
+        worker.join(30)
+        before, after = result["sent"]
     finally:
         panel_document.extra_socket_handlers.pop(Socket, None)
         for registry in (panel_document._WRITE_MSGS, panel_document._WRITE_BLOCK,
