@@ -167,6 +167,7 @@ def wkb_transverse_kernel_varying(x, ec, ev, up, down, kvals, energies, mass_seg
             out[kk, ie] = 2.0 * acc
     return out
 
+
 @_nb.njit(cache=True, nogil=True)
 def _two_band_column(x, ec, ev, a, b, kvals, energies, scale, gl_x, gl_w,
                      out):  # pragma: no cover
