@@ -139,8 +139,7 @@ class IdealOverlay:
         data assignment is a message to the page and a repaint of its plot, and an ideal
         design clears the overlay after each of its transfer curves."""
         for src in (self.transfer_source, self.swing_source):
-            if any(len(v) for v in src.data.values()):
-                src.data = {k: [] for k in src.data}
+            _fill_or_empty(src, None)
         self.set_visible(False)
 
     def show_tails(self, bp: Any) -> None:
@@ -154,18 +153,22 @@ class IdealOverlay:
         e_src = d.tail_energy_source_meV * 1e-3
         ch = (x >= d.source_junction_nm) & (x <= d.drain_junction_nm)
         src = x <= d.source_junction_nm
-        for source, data in ((self.tail_source, {"x": x[ch], "lo": ec[ch] - e_ch, "hi": ec[ch]}
-                              if e_ch > 0 else None),
-                             (self.source_tail_source,
-                              {"x": x[src], "lo": ev[src], "hi": ev[src] + e_src}
-                              if e_src > 0 else None)):
-            if data is not None:
-                source.data = data
-            elif len(source.data["x"]):  # no tails: emptied once, not at every bias point
-                source.data = {"x": [], "lo": [], "hi": []}
+        _fill_or_empty(self.tail_source, {"x": x[ch], "lo": ec[ch] - e_ch, "hi": ec[ch]}
+                       if e_ch > 0 else None)
+        _fill_or_empty(self.source_tail_source,
+                       {"x": x[src], "lo": ev[src], "hi": ev[src] + e_src} if e_src > 0 else None)
         for r, on in zip(self.tail_renderers, (e_ch > 0, e_src > 0), strict=True):
             r.visible = on
         _legend_visible(self._figures, self.tail_renderers[0], e_ch > 0 or e_src > 0)
+
+
+def _fill_or_empty(source: Any, data: dict | None) -> None:
+    """Give ``source`` new data, or (None) empty it unless it already is empty: each
+    assignment is a message to the page and a repaint of its plot."""
+    if data is not None:
+        source.data = data
+    elif any(len(v) for v in source.data.values()):
+        source.data = {k: [] for k in source.data}
 
 
 def _legend_visible(figures: Sequence[Any], renderer: Any, on: bool) -> None:
